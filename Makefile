@@ -1,0 +1,29 @@
+# Two-command set-up: `make demo` and `make test`. Both need only python3.
+PYTHON ?= python3
+VENV ?= .venv
+PY := $(VENV)/bin/python
+STAMP := $(VENV)/.installed
+
+.PHONY: demo test lint bench clean
+
+$(STAMP): pyproject.toml
+	test -x $(PY) || $(PYTHON) -m venv $(VENV)
+	$(PY) -m pip install --quiet --upgrade pip
+	$(PY) -m pip install --quiet -e '.[test]'
+	touch $(STAMP)
+
+demo: $(STAMP)
+	$(PY) -m supervisor.demo
+
+test: $(STAMP)
+	$(VENV)/bin/ruff check .
+	$(PY) -m pytest
+
+lint: $(STAMP)
+	$(VENV)/bin/ruff check .
+
+bench: $(STAMP)
+	for f in bench/bench_*.py; do $(PY) $$f || exit 1; done
+
+clean:
+	rm -rf $(VENV) build dist .pytest_cache

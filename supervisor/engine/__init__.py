@@ -1,0 +1,1 @@
+"""Engine: tissue kinetics, Bühlmann ZH-L16 and oxygen exposure (pure numpy)."""
