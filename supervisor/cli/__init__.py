@@ -43,6 +43,29 @@ for _mod in (_schedule, _tables, _plan, _checklist):
     _mod.register(app)
 
 
-def main() -> None:
-    """Console-script entry point."""
-    app()
+def main(argv: list[str] | None = None) -> None:
+    """Console-script entry point.
+
+    Usage errors (unknown option, a value of the wrong type) are printed as one
+    ``error:`` line on stderr with exit status 2, like every other bad input.
+    """
+    import sys
+
+    try:
+        rv = app(args=argv, standalone_mode=False)
+    except typer.Exit as exc:
+        sys.exit(getattr(exc, "exit_code", 0))
+    except typer.Abort:
+        typer.echo("error: aborted", err=True)
+        sys.exit(2)
+    except Exception as exc:
+        # click (or typer's vendored click) usage errors: one line, exit status 2
+        if not hasattr(exc, "format_message") or not hasattr(exc, "exit_code"):
+            raise
+        param = getattr(exc, "param", None)
+        opts = getattr(param, "opts", None) if param is not None else None
+        prefix = f"{opts[0]}: " if opts else ""
+        msg = " ".join(str(exc.format_message()).split())
+        typer.echo(f"error: {prefix}{msg}", err=True)
+        sys.exit(2)
+    sys.exit(rv if isinstance(rv, int) else 0)

@@ -1,9 +1,181 @@
-"""Commands of this family (filled in by its own issue)."""
+"""``supervisor schedule``: a model decompression schedule for one dive (stable contract)."""
 
 from __future__ import annotations
 
+import json
+import re
+
 import typer
+
+from supervisor.cli._common import fail_input, guarded
+from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedule
+from supervisor.gas import parse_gas
+from supervisor.units import altitude_pressure
+
+#: Defaults by unit: descent rate, ascent rate, stop step, last stop.
+UNIT_DEFAULTS = {
+    "fsw": (75.0, 30.0, 10.0, 10.0),
+    "msw": (23.0, 9.0, 3.0, 3.0),
+}
+
+_GF = re.compile(r"^\s*(\d+(?:\.\d+)?)\s*/\s*(\d+(?:\.\d+)?)\s*$")
+
+
+def parse_gf(text: str) -> tuple[float, float]:
+    """Parse ``LOW/HIGH`` gradient factors in percent into fractions."""
+    m = _GF.match(text or "")
+    if not m:
+        fail_input("--gf", f"got {text!r}; expected LOW/HIGH percentages such as 30/85")
+    lo, hi = float(m.group(1)), float(m.group(2))  # type: ignore[union-attr]
+    for name, v in (("low", lo), ("high", hi)):
+        if not 1.0 <= v <= 100.0:
+            fail_input("--gf", f"{name} {v:g} is outside 1-100 %")
+    if lo > hi:
+        fail_input("--gf", f"low {lo:g} is above high {hi:g}; expected LOW <= HIGH")
+    return lo / 100.0, hi / 100.0
+
+
+def parse_deco_gas(text: str) -> tuple[str, float]:
+    """Parse ``GAS@DEPTH`` (e.g. ``oxygen@20``, ``50/0@70``)."""
+    gas, sep, depth = (text or "").rpartition("@")
+    if not sep or not gas:
+        fail_input("--deco-gas", f"got {text!r}; expected GAS@DEPTH such as oxygen@20 or 50/0@70")
+    try:
+        d = float(depth)
+    except ValueError:
+        fail_input("--deco-gas", f"got depth {depth!r} in {text!r}; expected a number such as 20")
+    parse_gas(gas, "--deco-gas")
+    return gas, d
+
+
+def _parse_break(text: str | None, option: str) -> tuple[float, float] | None:
+    if text is None:
+        return None
+    m = _GF.match(text)
+    if not m or float(m.group(1)) <= 0 or float(m.group(2)) <= 0:
+        fail_input(option, f"got {text!r}; expected GAS_MIN/AIR_MIN such as 30/5")
+    return float(m.group(1)), float(m.group(2))  # type: ignore[union-attr]
+
+
+def _table(js: dict) -> str:
+    u = js["unit"]
+    lines = [
+        f"{js['depth']} {u} for {js['bottom_time_min']} min on {js['gas']}  "
+        f"[{js['model']} GF {js['gf_low_percent']:g}/{js['gf_high_percent']:g}; "
+        f"coefficients {js['coefficient_status']}]",
+        "no-stop limit: "
+        + ("unlimited" if js["no_stop_limit_min"] is None else f"{js['no_stop_limit_min']} min"),
+    ]
+    if js["stops"]:
+        lines.append(f"{'stop':>8}  {'min':>5}  {'gas':<8} place")
+        for s in js["stops"]:
+            lines.append(f"{s['depth']:>5} {u}  {s['minutes']:>5}  {s['gas']:<8} {s['place']}")
+    else:
+        lines.append("no decompression stops")
+    ox = js["oxygen"] or {}
+    cns, otu = ox.get("cns_percent"), ox.get("otu")
+    lines.append(
+        f"total stop time {js['total_stop_min']} min; ascent {js['total_ascent_min']:.1f} min; "
+        f"surfacing GF {js['surfacing_gf_percent']:.0f} % (compartment "
+        f"{js['controlling_compartment']})"
+    )
+    lines.append(
+        "oxygen: CNS "
+        + ("n/a" if cns is None else f"{cns:.1f} %")
+        + ", OTU "
+        + ("n/a" if otu is None else f"{otu:.0f}")
+        + (" (PO2 above the CNS table: needs review)" if ox.get("out_of_range") else "")
+    )
+    lines.append("Model output for review by a qualified supervisor; not a published table.")
+    return "\n".join(lines)
 
 
 def register(app: typer.Typer) -> None:
-    """Add this family's commands to the application."""
+    """Add the ``schedule`` command."""
+
+    @app.command("schedule")
+    @guarded
+    def schedule(
+        depth: float = typer.Option(..., "--depth", help="Bottom depth, in --unit."),
+        bottom_time: float = typer.Option(
+            ..., "--bottom-time", help="Bottom time [min], from leaving the surface."
+        ),
+        unit: str = typer.Option("fsw", "--unit", help="Depth unit: fsw or msw."),
+        gas: str = typer.Option("air", "--gas", help="Bottom gas: air, oxygen, O2/He e.g. 32/0."),
+        model: str = typer.Option("zhl16c", "--model", help="zhl16a, zhl16b or zhl16c."),
+        gf: str = typer.Option("30/85", "--gf", help="Gradient factors LOW/HIGH in percent."),
+        descent_rate: float = typer.Option(
+            None, "--descent-rate", help="Descent rate [unit/min] (75 fsw, 23 msw)."
+        ),
+        ascent_rate: float = typer.Option(
+            None, "--ascent-rate", help="Ascent rate [unit/min] (30 fsw, 9 msw)."
+        ),
+        stop_step: float = typer.Option(None, "--stop-step", help="Stop spacing (10 fsw, 3 msw)."),
+        last_stop: float = typer.Option(
+            None, "--last-stop", help="Shallowest stop (10 fsw, 3 msw)."
+        ),
+        deco_gas: list[str] = typer.Option(
+            [], "--deco-gas", help="Decompression gas GAS@DEPTH, e.g. oxygen@20 (repeatable)."
+        ),
+        o2_air_break: str = typer.Option(
+            None, "--o2-air-break", help="Air breaks on in-water oxygen, O2_MIN/AIR_MIN e.g. 30/5."
+        ),
+        surd: float = typer.Option(
+            None,
+            "--surface-decompression",
+            help="Surface decompression: leave the water after the stop at this depth.",
+        ),
+        surd_interval: float = typer.Option(
+            5.0, "--surface-interval", help="Surface decompression interval [min]."
+        ),
+        chamber_depth: float = typer.Option(
+            None, "--chamber-depth", help="First chamber stop (50 fsw, 15 msw)."
+        ),
+        chamber_air_break: str = typer.Option(
+            "30/5", "--chamber-air-break", help="Chamber oxygen/air periods, e.g. 30/5."
+        ),
+        altitude: float = typer.Option(0.0, "--altitude", help="Site altitude [m]."),
+        water: str = typer.Option("salt", "--water", help="salt or fresh."),
+        as_json: bool = typer.Option(False, "--json", help="Print one JSON object."),
+    ) -> None:
+        """Compute a model decompression schedule (ZH-L16 with gradient factors)."""
+        if unit not in UNIT_DEFAULTS:
+            fail_input("--unit", f"got {unit!r}; expected fsw or msw")
+        if water not in ("salt", "fresh"):
+            fail_input("--water", f"got {water!r}; expected salt or fresh")
+        dd, da, ds, dl = UNIT_DEFAULTS[unit]
+        lo, hi = parse_gf(gf)
+        sd = None
+        if surd is not None:
+            sd = SurfaceDecompression(
+                leave_water_depth=surd,
+                surface_interval_min=surd_interval,
+                chamber_depth=chamber_depth
+                if chamber_depth is not None
+                else (50.0 if unit == "fsw" else 15.0),
+                chamber_gas="oxygen",
+                air_break=_parse_break(chamber_air_break, "--chamber-air-break"),
+            )
+        req = ScheduleRequest(
+            depth=depth,
+            bottom_time_min=bottom_time,
+            unit=unit,
+            gas=gas,
+            model=model,
+            gf_low=lo,
+            gf_high=hi,
+            descent_rate=dd if descent_rate is None else descent_rate,
+            ascent_rate=da if ascent_rate is None else ascent_rate,
+            stop_step=ds if stop_step is None else stop_step,
+            last_stop=dl if last_stop is None else last_stop,
+            deco_gases=tuple(parse_deco_gas(x) for x in deco_gas),
+            p_surface_bar=float(altitude_pressure(altitude)),
+            water=water,
+            o2_air_break=_parse_break(o2_air_break, "--o2-air-break"),
+            surface_decompression=sd,
+        )
+        js = plan_schedule(req).to_json()
+        if as_json:
+            typer.echo(json.dumps(js, indent=2))
+        else:
+            typer.echo(_table(js))

@@ -1,0 +1,992 @@
+"""Decompression schedules, no-stop limits and profile evaluation with ZH-L16 + gradient factors.
+
+Conventions (also printed in every result under ``conventions``):
+
+* Bottom time counts from leaving the surface (descent included) to leaving the bottom.
+* Descent and ascent at the given rates; travel between stops at the ascent rate.
+* Stops at multiples of the stop step, none shallower than the last stop; stop
+  minutes are whole minutes and exclude travel.
+* The first stop is the deepest stop depth at which continuing to the next stop
+  would break the GF-low ceiling there (tensions taken on arrival at that next stop).
+  If even the deepest stop depth is inside that ceiling, it is the first stop.
+* The diver leaves a stop when, on arrival at the next stop (or the surface), no
+  compartment breaks the ceiling of the gradient factor in force there; the
+  gradient factor is GF low at the first stop and GF high at the surface, linear
+  in depth between.
+* The no-stop limit is the longest whole-minute bottom time whose GF-high ceiling
+  at leaving the bottom is at the surface; a dive within it has no stops.
+* Deco gases switch on arrival at the first stop depth at or above their switch
+  depth; the gas with the shallowest switch depth that is allowed is breathed.
+* Tissues start saturated with air (21 % O2, 79 % N2) at the surface pressure.
+
+Every batch of requests that share their settings (unit, rates, stop step, gradient
+factors, gases, surface pressure) is computed in one vectorised pass: the loop is
+over stop depths, never over dives.
+
+References
+----------
+.. [1] Bühlmann, A. A., Völlm, E. B., Nussberger, P., Tauchmedizin, Springer, 2002.
+.. [2] Baker, E. C., "Understanding M-values", Immersed 3(3), 1998; "Clearing up the
+       confusion about deep stops", Immersed, 1998 (gradient factors, first stop).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, fields, replace
+from typing import Any
+
+import numpy as np
+from numpy.typing import NDArray
+
+from supervisor import constants as C
+from supervisor.engine import buhlmann as bm
+from supervisor.engine.kinetics import (
+    inspired_pressure,
+    rate_constant,
+    saturated_tensions,
+    schreiner,
+    tissue_tensions,
+)
+from supervisor.errors import InputError, ScheduleError
+from supervisor.gas import AIR, Gas, parse_gas
+from supervisor.profile import Profile, Segment
+from supervisor.units import DEPTH_UNITS, bar_per_depth_unit
+
+SCHEMA = "supervisor.schedule/1"
+#: Label (prefix) of the segments of a surface-decompression interval, from leaving
+#: the last water stop to arriving at chamber depth; the ceiling is expected to be
+#: exceeded there and :func:`evaluate_profile` reports it apart.
+SURFACE_INTERVAL = "surface interval"
+_EPS = 1e-9  # bar; tolerance on ceiling comparisons
+
+CONVENTIONS: dict[str, str] = {
+    "bottom_time": "from leaving the surface (descent included) to leaving the bottom",
+    "rates": "descent and ascent at the given rates; travel between stops at the ascent rate",
+    "stops": "at multiples of the stop step, none shallower than the last stop; whole minutes, "
+    "travel excluded",
+    "first_stop": "deepest stop depth at which continuing to the next stop would break the "
+    "GF-low ceiling there",
+    "gradient_factors": "GF low at the first stop, GF high at the surface, linear in depth between",
+    "no_stop_limit": "longest whole-minute bottom time whose GF-high ceiling at leaving the "
+    "bottom is at the surface",
+    "air": "21 % O2, 79 % N2",
+    "initial_tissues": "saturated with air at the surface pressure",
+    "water_vapour": "0.0627 bar subtracted from the inspired pressure (Buhlmann, RQ 1)",
+}
+
+
+@dataclass(frozen=True)
+class SurfaceDecompression:
+    """Surface decompression: leave the water, recompress in a chamber, decompress on a gas.
+
+    Parameters
+    ----------
+    leave_water_depth : float
+        In-water stops at or deeper than this depth are done in the water; the
+        diver then surfaces instead of going to the next (shallower) stop [unit].
+    surface_interval_min : float
+        Time from leaving the last water stop to arriving at chamber depth [min].
+    chamber_depth : float
+        Depth of the first chamber stop [unit].
+    chamber_gas : str
+        Gas breathed at the chamber stops (``oxygen`` by default).
+    air_break : tuple of float or None
+        (gas minutes, air minutes) cycle for the chamber gas; ``None`` for none.
+    """
+
+    leave_water_depth: float
+    surface_interval_min: float = 5.0
+    chamber_depth: float = 50.0
+    chamber_gas: str = "oxygen"
+    air_break: tuple[float, float] | None = (30.0, 5.0)
+
+
+@dataclass(frozen=True)
+class ScheduleRequest:
+    """Inputs of one schedule; see the module docstring for the conventions.
+
+    Parameters
+    ----------
+    depth : float
+        Maximum (bottom) depth [unit], > 0.
+    bottom_time_min : float
+        Bottom time [min], counted from leaving the surface.
+    unit : {"fsw", "msw", "ft", "m"}
+        Depth unit.
+    gas : str
+        Bottom gas (``air``, ``oxygen``, ``32/0``, ``16/84`` ...).
+    model : {"zhl16a", "zhl16b", "zhl16c"}
+        Coefficient set.
+    gf_low, gf_high : float
+        Gradient factors [-], 0.01 <= gf_low <= gf_high <= 1.
+    descent_rate, ascent_rate : float
+        Rates [unit/min], > 0.
+    stop_step, last_stop : float
+        Spacing of stop depths and the shallowest stop [unit]; the last stop is a
+        multiple of the step.
+    deco_gases : tuple of (str, float)
+        Decompression gases and the depth [unit] from which each may be breathed.
+    p_surface_bar : float
+        Surface pressure [bar] (lower at altitude).
+    water : {"salt", "fresh"}
+        Water, for length units.
+    ph2o_bar : float
+        Water-vapour pressure [bar].
+    o2_air_break : tuple of float or None
+        (oxygen minutes, air minutes) cycle for in-water oxygen stops.
+    surface_decompression : SurfaceDecompression or None
+        Surface decompression in a chamber, if used.
+    p_n2_0, p_he_0 : tuple of float or None
+        Tensions at leaving the surface [bar] (a repetitive dive); default saturated with air.
+    max_stop_min : int
+        Longest single stop before the schedule is declared unable to clear [min].
+    """
+
+    depth: float
+    bottom_time_min: float
+    unit: str = "fsw"
+    gas: str = "air"
+    model: str = "zhl16c"
+    gf_low: float = 0.30
+    gf_high: float = 0.85
+    descent_rate: float = 75.0
+    ascent_rate: float = 30.0
+    stop_step: float = 10.0
+    last_stop: float = 10.0
+    deco_gases: tuple[tuple[str, float], ...] = ()
+    p_surface_bar: float = C.P_ATM_BAR
+    water: str = "salt"
+    ph2o_bar: float = C.PH2O_BAR
+    o2_air_break: tuple[float, float] | None = None
+    surface_decompression: SurfaceDecompression | None = None
+    p_n2_0: tuple[float, ...] | None = None
+    p_he_0: tuple[float, ...] | None = None
+    max_stop_min: int = 1440
+
+    def validate(self) -> None:
+        """Raise InputError naming the option and the accepted range for bad input."""
+        _num = _finite
+        if self.unit not in DEPTH_UNITS:
+            raise InputError(
+                "--unit", f"got {self.unit!r}; expected one of {', '.join(DEPTH_UNITS)}"
+            )
+        if self.model not in bm.MODELS:
+            raise InputError(
+                "--model", f"unknown model {self.model!r}; expected one of {', '.join(bm.MODELS)}"
+            )
+        if not _num(self.depth) or self.depth <= 0:
+            raise InputError("--depth", f"got {self.depth!r}; expected a depth > 0 {self.unit}")
+        for name, v in (("--descent-rate", self.descent_rate), ("--ascent-rate", self.ascent_rate)):
+            if not _num(v) or v <= 0:
+                raise InputError(name, f"got {v!r}; expected a rate > 0 {self.unit}/min")
+        if not _num(self.bottom_time_min) or self.bottom_time_min <= 0:
+            raise InputError("--bottom-time", f"got {self.bottom_time_min!r}; expected minutes > 0")
+        t_desc = self.depth / self.descent_rate
+        if self.bottom_time_min + 1e-9 < t_desc:
+            raise InputError(
+                "--bottom-time",
+                f"{self.bottom_time_min:g} min is shorter than the descent "
+                f"({t_desc:.2f} min at {self.descent_rate:g} {self.unit}/min); "
+                "bottom time counts from leaving the surface",
+            )
+        for name, v in (("--gf low", self.gf_low), ("--gf high", self.gf_high)):
+            if not _num(v) or not (0.01 - 1e-12 <= v <= 1.0 + 1e-12):
+                raise InputError("--gf", f"{name[5:]} {v * 100:g} is outside 1-100 %")
+        if self.gf_low > self.gf_high + 1e-12:
+            raise InputError(
+                "--gf",
+                f"low {self.gf_low * 100:g} is above high {self.gf_high * 100:g}; "
+                "expected LOW/HIGH with LOW <= HIGH",
+            )
+        if not _num(self.stop_step) or self.stop_step <= 0:
+            raise InputError("--stop-step", f"got {self.stop_step!r}; expected > 0 {self.unit}")
+        ratio = self.last_stop / self.stop_step if self.stop_step else 0.0
+        if not _num(self.last_stop) or self.last_stop <= 0 or abs(ratio - round(ratio)) > 1e-9:
+            raise InputError(
+                "--last-stop",
+                f"got {self.last_stop!r}; expected a positive multiple of the stop step "
+                f"({self.stop_step:g} {self.unit})",
+            )
+        if not _num(self.p_surface_bar) or not (0.2 <= self.p_surface_bar <= 1.2):
+            raise InputError("p_surface_bar", f"got {self.p_surface_bar!r}; expected 0.2-1.2 bar")
+        parse_gas(self.gas, "--gas")
+        for g, d in self.deco_gases:
+            parse_gas(g, "--deco-gas")
+            if not _num(d) or d < 0:
+                raise InputError("--deco-gas", f"switch depth {d!r} must be >= 0 {self.unit}")
+        for name, ab in (("o2_air_break", self.o2_air_break),):
+            if ab is not None and (len(ab) != 2 or min(ab) <= 0):
+                raise InputError(name, "expected (gas minutes, air minutes), both > 0")
+        sd = self.surface_decompression
+        if sd is not None:
+            if sd.leave_water_depth < self.last_stop or sd.chamber_depth < self.last_stop:
+                raise InputError("surface_decompression", "depths must not be above the last stop")
+            if sd.surface_interval_min <= 0:
+                raise InputError("surface_decompression.surface_interval_min", "expected > 0 min")
+            travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / self.descent_rate
+            if sd.surface_interval_min + 1e-9 < travel:
+                raise InputError(
+                    "surface_decompression.surface_interval_min",
+                    f"{sd.surface_interval_min:g} min is shorter than the travel "
+                    f"({travel:.2f} min)",
+                )
+            parse_gas(sd.chamber_gas, "surface_decompression.chamber_gas")
+
+
+def _finite(v: Any) -> bool:
+    try:
+        return math.isfinite(float(v))
+    except (TypeError, ValueError):
+        return False
+
+
+@dataclass(frozen=True)
+class Stop:
+    """A decompression stop: depth [unit], whole minutes, gas and place."""
+
+    depth: float
+    minutes: int
+    gas: str
+    place: str = "water"
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready dictionary."""
+        return {
+            "depth": _num_out(self.depth),
+            "minutes": int(self.minutes),
+            "gas": self.gas,
+            "place": self.place,
+        }
+
+
+def _num_out(x: float) -> float | int:
+    return int(round(x)) if abs(x - round(x)) < 1e-9 else round(float(x), 3)
+
+
+@dataclass
+class ScheduleResult:
+    """Outcome of one schedule computation."""
+
+    request: ScheduleRequest
+    stops: list[Stop]
+    no_stop_limit_min: int | None
+    first_stop_depth: float | None
+    total_stop_min: int
+    total_ascent_min: float
+    profile: Profile
+    final_p_n2: NDArray[np.float64]
+    final_p_he: NDArray[np.float64]
+    surfacing_gf: float
+    controlling_compartment: str
+    coefficient_status: str
+    surface_interval_max_gf: float | None = None
+    oxygen: Any = None
+    labels: tuple[str, ...] = field(default=())
+
+    def to_json(self) -> dict[str, Any]:
+        """The ``supervisor.schedule/1`` JSON object."""
+        r = self.request
+        ox = self.oxygen
+        oxygen = ox.to_dict() if hasattr(ox, "to_dict") else {"cns_percent": None, "otu": None}
+        return {
+            "schema": SCHEMA,
+            "unit": r.unit,
+            "depth": _num_out(r.depth),
+            "bottom_time_min": _num_out(r.bottom_time_min),
+            "gas": parse_gas(r.gas).name,
+            "deco_gases": [
+                {"gas": parse_gas(g).name, "from_depth": _num_out(d)} for g, d in r.deco_gases
+            ],
+            "model": r.model,
+            "gf_low_percent": round(r.gf_low * 100, 6),
+            "gf_high_percent": round(r.gf_high * 100, 6),
+            "coefficient_status": self.coefficient_status,
+            "no_stop_limit_min": self.no_stop_limit_min,
+            "first_stop_depth": None
+            if self.first_stop_depth is None
+            else _num_out(self.first_stop_depth),
+            "stops": [s.to_dict() for s in self.stops],
+            "total_stop_min": int(self.total_stop_min),
+            "total_ascent_min": round(float(self.total_ascent_min), 2),
+            "surfacing_gf_percent": round(100 * self.surfacing_gf, 1),
+            "controlling_compartment": self.controlling_compartment,
+            "surface_interval_max_gf_percent": None
+            if self.surface_interval_max_gf is None
+            else round(100 * self.surface_interval_max_gf, 1),
+            "oxygen": oxygen,
+            "descent_rate": _num_out(r.descent_rate),
+            "ascent_rate": _num_out(r.ascent_rate),
+            "stop_step": _num_out(r.stop_step),
+            "last_stop": _num_out(r.last_stop),
+            "p_surface_bar": round(r.p_surface_bar, 5),
+            "conventions": dict(CONVENTIONS),
+            "caution": "Model output for planning review only; it does not replace the "
+            "reference tables named in the contractor's manual or a qualified supervisor's "
+            "judgement. Every schedule carries a residual risk of decompression sickness.",
+        }
+
+
+# --------------------------------------------------------------------------- batch engine
+
+_GROUP_EXCLUDE = {"depth", "bottom_time_min", "gas", "p_n2_0", "p_he_0"}
+
+
+def _group_key(r: ScheduleRequest) -> tuple:
+    return tuple(getattr(r, f.name) for f in fields(r) if f.name not in _GROUP_EXCLUDE)
+
+
+def plan_schedule(request: ScheduleRequest) -> ScheduleResult:
+    """Compute one schedule.
+
+    Parameters
+    ----------
+    request : ScheduleRequest
+
+    Returns
+    -------
+    ScheduleResult
+
+    Raises
+    ------
+    InputError
+        For bad input (naming the option and the accepted range).
+    ScheduleError
+        If a stop can never clear (e.g. a GF high the slowest compartment cannot
+        reach at the last stop on the gas breathed there).
+    """
+    return plan_schedules([request])[0]
+
+
+def plan_schedules(requests: list[ScheduleRequest]) -> list[ScheduleResult]:
+    """Compute many schedules; requests sharing settings are computed as one batch.
+
+    Parameters
+    ----------
+    requests : list of ScheduleRequest
+
+    Returns
+    -------
+    list of ScheduleResult, in the order of the requests.
+    """
+    for r in requests:
+        r.validate()
+    groups: dict[tuple, list[int]] = {}
+    for i, r in enumerate(requests):
+        groups.setdefault(_group_key(r), []).append(i)
+    out: list[ScheduleResult | None] = [None] * len(requests)
+    for idx in groups.values():
+        res = _Batch([requests[i] for i in idx]).run()
+        for i, rr in zip(idx, res, strict=True):
+            out[i] = rr
+    return out  # type: ignore[return-value]
+
+
+class _Batch:
+    """Lock-step schedule computation for requests that share all settings."""
+
+    def __init__(self, reqs: list[ScheduleRequest]) -> None:
+        self.reqs = reqs
+        r0 = reqs[0]
+        self.r0 = r0
+        self.c = bm.load_coefficients(r0.model)
+        self.kn = rate_constant(self.c.n2_half)
+        self.kh = rate_constant(self.c.he_half)
+        self.bpu = bar_per_depth_unit(r0.unit, r0.water)  # type: ignore[arg-type]
+        self.ps = r0.p_surface_bar
+        self.B = len(reqs)
+        self.depth = np.array([r.depth for r in reqs], float)
+        self.bt = np.array([r.bottom_time_min for r in reqs], float)
+        gases = [parse_gas(r.gas) for r in reqs]
+        self.bottom_gas = gases
+        self.deco = sorted(
+            ((parse_gas(g), float(d)) for g, d in r0.deco_gases), key=lambda gd: gd[1]
+        )
+        n = self.c.n
+        pn0 = np.empty((self.B, n))
+        ph0 = np.zeros((self.B, n))
+        sat = saturated_tensions(self.ps, AIR.fn2, n, r0.ph2o_bar)
+        for i, r in enumerate(reqs):
+            pn0[i] = sat if r.p_n2_0 is None else np.asarray(r.p_n2_0, float)
+            if r.p_he_0 is not None:
+                ph0[i] = np.asarray(r.p_he_0, float)
+        if pn0.shape[1] != n or ph0.shape[1] != n:
+            raise InputError("p_n2_0", f"expected {n} compartment tensions")
+        self.pn0, self.ph0 = pn0, ph0
+        self.segs: list[list[Segment]] = [[] for _ in range(self.B)]
+        self.uses_he = any(g.fhe > 0 for g in gases) or any(g.fhe > 0 for g, _ in self.deco)
+        sd = r0.surface_decompression
+        if sd is not None and parse_gas(sd.chamber_gas).fhe > 0:
+            self.uses_he = True
+
+    # -- helpers --------------------------------------------------------------------------
+    def p(self, depth: NDArray | float) -> NDArray:
+        return self.ps + np.asarray(depth, float) * self.bpu
+
+    def gas_at(self, stop_depth: float) -> list[Gas]:
+        """Gas breathed at a stop depth, per row: the allowed gas with the shallowest switch."""
+        for g, d in self.deco:
+            if stop_depth <= d + 1e-9:
+                return [g] * self.B
+        return list(self.bottom_gas)
+
+    def segment(self, pn, ph, d0, d1, minutes, gases: list[Gas]):
+        """Advance tensions over one linear segment per row (vectorised)."""
+        fn2 = np.array([g.fn2 for g in gases])
+        fhe = np.array([g.fhe for g in gases])
+        p0, p1 = self.p(d0), self.p(d1)
+        t = np.asarray(minutes, float)
+        ph2o = self.r0.ph2o_bar
+        pa_n = inspired_pressure(p0, fn2, ph2o)
+        pa_h = inspired_pressure(p0, fhe, ph2o)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            rn = np.where(
+                t > 0, (inspired_pressure(p1, fn2, ph2o) - pa_n) / np.where(t > 0, t, 1), 0
+            )
+            rh = np.where(
+                t > 0, (inspired_pressure(p1, fhe, ph2o) - pa_h) / np.where(t > 0, t, 1), 0
+            )
+        pn = schreiner(pn, pa_n[:, None], rn[:, None], t[:, None], self.kn)
+        ph = schreiner(ph, pa_h[:, None], rh[:, None], t[:, None], self.kh)
+        return pn, ph
+
+    def record(self, rows: NDArray[np.bool_], d0, d1, minutes, gases, place="water", label=""):
+        d0 = np.broadcast_to(np.asarray(d0, float), (self.B,))
+        d1 = np.broadcast_to(np.asarray(d1, float), (self.B,))
+        m = np.broadcast_to(np.asarray(minutes, float), (self.B,))
+        for i in np.flatnonzero(rows):
+            if m[i] > 0:
+                self.segs[i].append(
+                    Segment(float(d0[i]), float(d1[i]), float(m[i]), gases[i], place, label)
+                )
+
+    # -- no-stop limit ------------------------------------------------------------------
+    def no_stop_limits(self, pn_desc, ph_desc, t_desc) -> list[int | None]:
+        """Longest whole-minute bottom time with the GF-high ceiling at the surface."""
+        ph2o = self.r0.ph2o_bar
+        pb = self.p(self.depth)
+        fn2 = np.array([g.fn2 for g in self.bottom_gas])
+        fhe = np.array([g.fhe for g in self.bottom_gas])
+        pa_n = inspired_pressure(pb, fn2, ph2o)[:, None]
+        pa_h = inspired_pressure(pb, fhe, ph2o)[:, None]
+        gfh = self.r0.gf_high
+
+        def ok(pn, ph):
+            return np.all(bm.ceiling(pn, ph, self.c, gfh) <= self.ps + _EPS, axis=-1)
+
+        unlimited = ok(np.broadcast_to(pa_n, pn_desc.shape), np.broadcast_to(pa_h, ph_desc.shape))
+        out: list[int | None] = [None] * self.B
+        todo = np.flatnonzero(~unlimited)
+        if todo.size == 0:
+            return out
+        start = np.ceil(t_desc[todo] - 1e-9)
+        found = np.full(todo.size, -1.0)
+        lo = 0
+        width = 512
+        while np.any(found < 0) and lo < 200000:
+            j = np.arange(lo, lo + width, dtype=float)
+            bt = start[:, None] + j[None, :]  # (n, W)
+            dt = (bt - t_desc[todo, None])[..., None]
+            en = np.exp(-self.kn * dt)
+            eh = np.exp(-self.kh * dt)
+            pn = pa_n[todo, None] + (pn_desc[todo, None] - pa_n[todo, None]) * en
+            ph = pa_h[todo, None] + (ph_desc[todo, None] - pa_h[todo, None]) * eh
+            bad = ~ok(pn, ph)  # (n, W)
+            first = np.where(bad.any(axis=1), bad.argmax(axis=1), -1)
+            new = (found < 0) & (first >= 0)
+            found[new] = bt[new, first[new]]
+            lo += width
+            width *= 4
+        for n_i, row in enumerate(todo):
+            f = found[n_i]
+            out[row] = int(max(f - 1, 0)) if f >= 0 else None
+        return out
+
+    # -- stop time search --------------------------------------------------------------
+    def stop_minutes(self, active, pn, ph, d_stop, d_next, gases, gf_next, breaks, cycle, place):
+        """Whole minutes at a stop so that, on arrival at the next stop, no ceiling is broken.
+
+        Only the rows in ``active`` are computed; minutes are searched in growing
+        windows, all candidate minutes of a window at once.  Returns minutes (B,),
+        the tensions after the stop and the new air-break cycle position.
+        """
+        B = self.B
+        ph2o = self.r0.ph2o_bar
+        p_stop = float(self.p(d_stop))
+        p_next = float(self.p(d_next))
+        travel = (d_stop - d_next) / self.r0.ascent_rate
+        minutes = np.zeros(B, dtype=int)
+        idx = np.flatnonzero(active)
+        if idx.size == 0:
+            return minutes, pn, ph, cycle
+        g_rows = [gases[i] for i in idx]
+        fn2 = np.array([g.fn2 for g in g_rows])
+        fhe = np.array([g.fhe for g in g_rows])
+        gfv = np.broadcast_to(np.asarray(gf_next, float), (B,))[idx]
+        per = None
+        if breaks is not None and any(g.fo2 > 0.5 for g in g_rows):
+            per = (float(breaks[0]), float(breaks[1]))
+        pa_n = inspired_pressure(p_stop, fn2, ph2o)
+        pa_h = inspired_pressure(p_stop, fhe, ph2o)
+        if travel > 0:
+            rn = (inspired_pressure(p_next, fn2, ph2o) - pa_n) / travel
+            rh = (inspired_pressure(p_next, fhe, ph2o) - pa_h) / travel
+        else:
+            rn, rh = np.zeros_like(fn2), np.zeros_like(fhe)
+        he = bool(np.any(fhe > 0) or np.any(ph[idx] > 0))
+
+        def clear(pn_, ph_, rows):
+            """pn_/ph_ shaped (n, ..., C) for the subset ``rows`` (indices into idx)."""
+            sh = (rows,) + (None,) * (pn_.ndim - 1)
+            a_n = schreiner(pn_, pa_n[sh], rn[sh], travel, self.kn)
+            if he:
+                a_h = schreiner(ph_, pa_h[sh], rh[sh], travel, self.kh)
+                ceil = bm.ceiling(a_n, a_h, self.c, gfv[sh])
+            else:
+                ceil = bm.ceiling_n2(a_n, self.c, gfv[sh])
+            return np.all(ceil <= p_next + _EPS, axis=-1)
+
+        sub = np.arange(idx.size)
+        done = clear(pn[idx], ph[idx], sub)
+        if np.all(done):
+            return minutes, pn, ph, cycle
+        if per is None:
+            sat_n = np.broadcast_to(pa_n[:, None], (idx.size, self.c.n))
+            sat_h = np.broadcast_to(pa_h[:, None], (idx.size, self.c.n))
+            never = ~done & ~clear(sat_n, sat_h, sub)
+            if np.any(never):
+                j = int(np.flatnonzero(never)[0])
+                a_n = schreiner(sat_n[j], pa_n[j], rn[j], travel, self.kn)
+                a_h = schreiner(sat_h[j], pa_h[j], rh[j], travel, self.kh)
+                ceil = bm.ceiling(a_n, a_h, self.c, gfv[j])
+                cj = int(np.argmax(ceil))
+                nxt = "the surface" if d_next == 0 else f"{_num_out(d_next)} {self.r0.unit}"
+                raise ScheduleError(
+                    f"the stop at {_num_out(d_stop)} {self.r0.unit} on {g_rows[j].name} can never "
+                    f"clear: compartment {self.c.labels[cj]} (N2 half-time "
+                    f"{self.c.n2_half[cj]:g} min) would saturate above the tension allowed on "
+                    f"arriving at {nxt} with GF {gfv[j] * 100:.0f} %; choose a deeper last "
+                    "stop, a higher GF high or an oxygen-rich decompression gas"
+                )
+        cur_n, cur_h = pn[idx].copy(), ph[idx].copy()
+        cyc = cycle[idx].copy()
+        elapsed = 0
+        width = 32
+        todo = np.flatnonzero(~done)
+        while todo.size:
+            if elapsed >= self.r0.max_stop_min:
+                j = int(todo[0])
+                raise ScheduleError(
+                    f"the stop at {_num_out(d_stop)} {self.r0.unit} on {g_rows[j].name} does not "
+                    f"clear within {self.r0.max_stop_min} min; the schedule cannot be computed"
+                )
+            w = int(min(width, self.r0.max_stop_min - elapsed))
+            if per is None:
+                m = np.arange(1, w + 1, dtype=float)[:, None]
+                en = np.exp(-self.kn * m)  # (w, C), shared by every row
+                tn = pa_n[todo, None, None] + (cur_n[todo, None, :] - pa_n[todo, None, None]) * en
+                if he:
+                    eh = np.exp(-self.kh * m)
+                    th = (
+                        pa_h[todo, None, None]
+                        + (cur_h[todo, None, :] - pa_h[todo, None, None]) * eh
+                    )
+                else:
+                    th = np.zeros_like(tn)
+            else:
+                pos = (cyc[todo, None] + np.arange(w)[None, :]) % (per[0] + per[1])
+                o2row = np.array([g_rows[j].fo2 > 0.5 for j in todo])[:, None]
+                brk = (pos >= per[0]) & o2row
+                seg_n = np.where(brk, AIR.fn2, fn2[todo, None])
+                seg_h = np.where(brk, AIR.fhe, fhe[todo, None])
+                t = np.ones((todo.size, w))
+                tn = tissue_tensions(t, p_stop, p_stop, seg_n, self.c.n2_half, cur_n[todo], ph2o)
+                th = tissue_tensions(t, p_stop, p_stop, seg_h, self.c.he_half, cur_h[todo], ph2o)
+            ok = clear(tn, th, todo)  # (n, w)
+            hit = ok.any(axis=1)
+            first = ok.argmax(axis=1)
+            hr = np.flatnonzero(hit)
+            rows_b = idx[todo[hr]]
+            minutes[rows_b] = elapsed + first[hr] + 1
+            pn[rows_b] = tn[hr, first[hr]]
+            ph[rows_b] = th[hr, first[hr]]
+            if per is not None:
+                cycle[rows_b] = (cyc[todo[hr]] + first[hr] + 1) % (per[0] + per[1])
+            cur_n[todo] = tn[:, -1]
+            cur_h[todo] = th[:, -1]
+            if per is not None:
+                cyc[todo] = (cyc[todo] + w) % (per[0] + per[1])
+            todo = todo[~hit]
+            elapsed += w
+            width *= 4
+        return minutes, pn, ph, cycle
+
+    # -- main ------------------------------------------------------------------------------
+    def run(self) -> list[ScheduleResult]:
+        r0, B = self.r0, self.B
+        every = np.ones(B, bool)
+        t_desc = self.depth / r0.descent_rate
+        pn, ph = self.segment(self.pn0, self.ph0, 0.0, self.depth, t_desc, self.bottom_gas)
+        self.record(every, 0.0, self.depth, t_desc, self.bottom_gas, "water", "descent")
+        ndl = self.no_stop_limits(pn, ph, t_desc)
+        t_bot = self.bt - t_desc
+        pn, ph = self.segment(pn, ph, self.depth, self.depth, t_bot, self.bottom_gas)
+        self.record(every, self.depth, self.depth, t_bot, self.bottom_gas, "water", "bottom")
+
+        needs = np.array(
+            [n is not None and bt > n + 1e-9 for n, bt in zip(ndl, self.bt, strict=True)]
+        )
+        step, last = r0.stop_step, r0.last_stop
+        i_last = int(round(last / step))
+        i_top = int(math.ceil(self.depth.max() / step - 1e-9)) - 1
+        cur = self.depth.copy()
+        cur_gas = list(self.bottom_gas)
+        phase = np.where(needs, 0, 3)  # 0 seek first stop, 1 stopping, 2 pending SurD, 3 done
+        first_stop = np.zeros(B)
+        stops: list[list[Stop]] = [[] for _ in range(B)]
+        ascent_time = np.zeros(B)
+        cycle = np.zeros(B)
+        sd = r0.surface_decompression
+
+        for i in range(i_top, i_last - 1, -1):
+            s = i * step
+            nxt = (i - 1) * step if i - 1 >= i_last else 0.0
+            if sd is not None:
+                # in-water stops end at the surface-decompression depth: surface from there
+                phase = np.where((phase == 1) & (s < sd.leave_water_depth - 1e-9), 2, phase)
+            here = (phase < 2) & (s < self.depth - 1e-9)
+            if not here.any():
+                continue
+            # travel to s
+            tt = np.where(here, (cur - s) / r0.ascent_rate, 0.0)
+            pn2, ph2 = self.segment(pn, ph, cur, np.where(here, s, cur), tt, cur_gas)
+            pn = np.where(here[:, None], pn2, pn)
+            ph = np.where(here[:, None], ph2, ph)
+            self.record(here, cur, s, tt, cur_gas, "water", "travel")
+            ascent_time += tt
+            cur = np.where(here, s, cur)
+            g_here = self.gas_at(s)
+            for b in np.flatnonzero(here):
+                if g_here[b] != cur_gas[b]:
+                    cycle[b] = 0.0
+                cur_gas[b] = g_here[b]
+            # first stop?
+            seek = here & (phase == 0)
+            if seek.any():
+                travel = (s - nxt) / r0.ascent_rate
+                a_n, a_h = self.segment(pn, ph, s, nxt, np.full(B, travel), cur_gas)
+                broke = np.any(
+                    bm.ceiling(a_n, a_h, self.c, r0.gf_low) > self.p(nxt) + _EPS, axis=-1
+                )
+                newly = seek & broke
+                phase = np.where(newly, 1, phase)
+                first_stop = np.where(newly, s, first_stop)
+            if sd is not None:
+                to_surd = here & (phase == 1) & (s < sd.leave_water_depth - 1e-9)
+                phase = np.where(to_surd, 2, phase)
+            stopping = here & (phase == 1)
+            if stopping.any():
+                gf_next = bm.gf_at_depth(nxt, first_stop, r0.gf_low, r0.gf_high)
+                mins, pn, ph, cycle = self.stop_minutes(
+                    stopping, pn, ph, s, nxt, cur_gas, gf_next, r0.o2_air_break, cycle, "water"
+                )
+                self.record(stopping & (mins > 0), s, s, mins, cur_gas, "water", "stop")
+                for b in np.flatnonzero(stopping & (mins > 0)):
+                    stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))
+                ascent_time += np.where(stopping, mins, 0)
+
+        si_gf = [None] * B
+        pend = phase == 2
+        if sd is not None and pend.any():
+            pn, ph, cur = self._surface_decompression(
+                pend, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf
+            )
+            phase = np.where(pend, 4, phase)  # 4: finished in the chamber, at the surface
+        # final ascent to the surface (rows still in the water)
+        wet = phase != 4
+        tt = np.where(wet, cur / r0.ascent_rate, 0.0)
+        pn2, ph2 = self.segment(pn, ph, cur, np.where(wet, 0.0, cur), tt, cur_gas)
+        pn = np.where(wet[:, None], pn2, pn)
+        ph = np.where(wet[:, None], ph2, ph)
+        self.record(wet, cur, 0.0, tt, cur_gas, "water", "ascent")
+        ascent_time += tt
+
+        gf_surf = bm.gradient_factor(pn, ph, self.ps, self.c)
+        status = self.c.status_for(self.uses_he)
+        results = []
+        from supervisor.engine import oxygen as _oxygen
+
+        for b, req in enumerate(self.reqs):
+            prof = Profile(self.segs[b], req.unit, req.p_surface_bar, req.water)  # type: ignore[arg-type]
+            ctrl = int(np.argmax(gf_surf[b]))
+            results.append(
+                ScheduleResult(
+                    request=req,
+                    stops=stops[b],
+                    no_stop_limit_min=ndl[b],
+                    first_stop_depth=float(first_stop[b]) if first_stop[b] > 0 else None,
+                    total_stop_min=int(sum(s.minutes for s in stops[b])),
+                    total_ascent_min=float(ascent_time[b]),
+                    profile=prof,
+                    final_p_n2=pn[b].copy(),
+                    final_p_he=ph[b].copy(),
+                    surfacing_gf=float(gf_surf[b, ctrl]),
+                    controlling_compartment=self.c.labels[ctrl],
+                    coefficient_status=status,
+                    surface_interval_max_gf=si_gf[b],
+                    oxygen=_oxygen.profile_exposure(prof),
+                    labels=self.c.labels,
+                )
+            )
+        return results
+
+    def _surface_decompression(
+        self, rows, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf
+    ):
+        """Surface, recompress in the chamber and decompress there (rows in SurD)."""
+        r0 = self.r0
+        sd = r0.surface_decompression
+        assert sd is not None
+        up = np.where(rows, cur / r0.ascent_rate, 0.0)
+        down = np.where(rows, sd.chamber_depth / r0.descent_rate, 0.0)
+        on_surface = np.where(rows, sd.surface_interval_min - up - down, 0.0)
+        # peak supersaturation during the interval is at arrival on the surface or just after
+        pn, ph = self.segment(pn, ph, cur, np.where(rows, 0.0, cur), up, cur_gas)
+        self.record(rows, cur, 0.0, up, cur_gas, "water", SURFACE_INTERVAL + ": ascent")
+        gf_peak = bm.gradient_factor(pn, ph, self.ps, self.c).max(axis=1)
+        pn, ph = self.segment(
+            pn, ph, np.where(rows, 0.0, cur), np.where(rows, 0.0, cur), on_surface, [AIR] * self.B
+        )
+        self.record(rows, 0.0, 0.0, on_surface, [AIR] * self.B, "surface", SURFACE_INTERVAL)
+        gf_peak = np.maximum(gf_peak, bm.gradient_factor(pn, ph, self.ps, self.c).max(axis=1))
+        pn, ph = self.segment(
+            pn,
+            ph,
+            np.where(rows, 0.0, cur),
+            np.where(rows, sd.chamber_depth, cur),
+            down,
+            [AIR] * self.B,
+        )
+        self.record(
+            rows,
+            0.0,
+            sd.chamber_depth,
+            down,
+            [AIR] * self.B,
+            "chamber",
+            SURFACE_INTERVAL + ": compression",
+        )
+        ascent_time += up + on_surface + down
+        for b in np.flatnonzero(rows):
+            si_gf[b] = float(gf_peak[b])
+        cgas = [parse_gas(sd.chamber_gas)] * self.B
+        cur = np.where(rows, sd.chamber_depth, cur)
+        step, last = r0.stop_step, r0.last_stop
+        i_first = int(math.floor(sd.chamber_depth / step + 1e-9))
+        i_last = int(round(last / step))
+        cycle = np.zeros(self.B)
+        for i in range(i_first, i_last - 1, -1):
+            s = i * step
+            nxt = (i - 1) * step if i - 1 >= i_last else 0.0
+            tt = np.where(rows, (cur - s) / r0.ascent_rate, 0.0)
+            pn2, ph2 = self.segment(pn, ph, cur, np.where(rows, s, cur), tt, cgas)
+            pn = np.where(rows[:, None], pn2, pn)
+            ph = np.where(rows[:, None], ph2, ph)
+            self.record(rows, cur, s, tt, cgas, "chamber", "travel")
+            ascent_time += tt
+            cur = np.where(rows, s, cur)
+            gf_next = bm.gf_at_depth(
+                nxt, np.maximum(first_stop, sd.chamber_depth), r0.gf_low, r0.gf_high
+            )
+            mins, pn, ph, cycle = self.stop_minutes(
+                rows, pn, ph, s, nxt, cgas, gf_next, sd.air_break, cycle, "chamber"
+            )
+            self.record(rows & (mins > 0), s, s, mins, cgas, "chamber", "stop")
+            for b in np.flatnonzero(rows & (mins > 0)):
+                stops[b].append(Stop(s, int(mins[b]), cgas[b].name, "chamber"))
+            ascent_time += np.where(rows, mins, 0)
+        tt = np.where(rows, cur / r0.ascent_rate, 0.0)
+        pn2, ph2 = self.segment(pn, ph, cur, np.where(rows, 0.0, cur), tt, cgas)
+        pn = np.where(rows[:, None], pn2, pn)
+        ph = np.where(rows[:, None], ph2, ph)
+        self.record(rows, cur, 0.0, tt, cgas, "chamber", "decompression to surface")
+        ascent_time += tt
+        return pn, ph, np.where(rows, 0.0, cur)
+
+
+def with_bottom_time(req: ScheduleRequest, bottom_time_min: float) -> ScheduleRequest:
+    """Return a copy of a request with another bottom time."""
+    return replace(req, bottom_time_min=bottom_time_min)
+
+
+# --------------------------------------------------------------------------- evaluation
+
+
+@dataclass
+class ProfileEvaluation:
+    """A profile run through the model: ceilings, supersaturation and final tensions.
+
+    Attributes
+    ----------
+    t_min, depth, ceiling_depth : ndarray
+        Sample times [min], depths and the gradient-factor ceiling [profile unit]
+        (0 where the ceiling is at or above the surface).
+    ceiling_broken : bool
+        True if, in the water or the chamber, a sample lies above the ceiling.
+    worst_excess_bar : float
+        Largest (ceiling - ambient) pressure over those samples [bar]; <= 0 when never broken.
+    first_break_min : float or None
+        Time of the first broken sample [min].
+    max_gf : float
+        Largest supersaturation, as a fraction of the M-value gradient, in water or chamber.
+    surfacing_gf : float
+        Supersaturation at the end of the profile [-].
+    controlling_compartment : str
+        Compartment with the largest supersaturation at the end.
+    loading_percent_of_limit : ndarray
+        Each compartment's tension at the end as a share of the tension allowed at
+        the surface with GF high [%].
+    surface_interval_max_gf : float or None
+        Largest supersaturation during ``place == "surface"`` segments (surface decompression).
+    final_p_n2, final_p_he : ndarray
+        Tensions at the end [bar], to carry across a surface interval.
+    first_stop_depth : float or None
+        Depth the gradient-factor line was anchored at.
+    coefficient_status : str
+        Least certain source status of the coefficients used.
+    labels : tuple of str
+        Compartment labels.
+    """
+
+    t_min: NDArray[np.float64]
+    depth: NDArray[np.float64]
+    ceiling_depth: NDArray[np.float64]
+    ceiling_broken: bool
+    worst_excess_bar: float
+    first_break_min: float | None
+    max_gf: float
+    surfacing_gf: float
+    controlling_compartment: str
+    loading_percent_of_limit: NDArray[np.float64]
+    surface_interval_max_gf: float | None
+    final_p_n2: NDArray[np.float64]
+    final_p_he: NDArray[np.float64]
+    first_stop_depth: float | None
+    coefficient_status: str
+    labels: tuple[str, ...]
+
+
+def infer_first_stop(profile: Profile) -> float | None:
+    """Depth of the first stop: the deepest level segment shallower than the maximum depth.
+
+    Only level segments after the profile first leaves its maximum depth count.
+    Returns None when the profile has no stop.
+    """
+    dmax = profile.max_depth
+    left_bottom = False
+    best = None
+    for s in profile.segments:
+        if not left_bottom:
+            if s.start_depth >= dmax - 1e-9 and s.end_depth < s.start_depth:
+                left_bottom = True
+            continue
+        if s.minutes > 0 and abs(s.start_depth - s.end_depth) < 1e-9 and 0 < s.start_depth < dmax:
+            best = s.start_depth if best is None else max(best, s.start_depth)
+    return best
+
+
+def evaluate_profile(
+    profile: Profile,
+    model: str = "zhl16c",
+    gf_low: float = 0.30,
+    gf_high: float = 0.85,
+    p_n2_0: NDArray[np.float64] | None = None,
+    p_he_0: NDArray[np.float64] | None = None,
+    first_stop_depth: float | None = None,
+    ph2o_bar: float = C.PH2O_BAR,
+    max_sample_min: float = 0.5,
+) -> ProfileEvaluation:
+    """Run a profile through ZH-L16 with gradient factors.
+
+    Parameters
+    ----------
+    profile : Profile
+        The dive (or chamber run); segments are subdivided to at most
+        ``max_sample_min`` so ceilings are checked inside travel segments too.
+    model : {"zhl16a", "zhl16b", "zhl16c"}
+        Coefficient set.
+    gf_low, gf_high : float
+        Gradient factors [-].
+    p_n2_0, p_he_0 : ndarray or None
+        Starting tensions [bar]; default saturated with air at the surface.
+    first_stop_depth : float or None
+        Anchor of the gradient-factor line [profile unit]; inferred from the
+        profile's first stop when None.
+    ph2o_bar : float
+        Water-vapour pressure [bar].
+    max_sample_min : float
+        Longest sub-segment [min].
+
+    Returns
+    -------
+    ProfileEvaluation
+    """
+    if model not in bm.MODELS:
+        raise InputError(
+            "model", f"unknown model {model!r}; expected one of {', '.join(bm.MODELS)}"
+        )
+    c = bm.load_coefficients(model)
+    if not profile.segments:
+        raise InputError("profile", "the profile has no segments")
+    bpu = bar_per_depth_unit(profile.unit, profile.water)  # type: ignore[arg-type]
+    ps = profile.p_surface_bar
+    n = np.array(
+        [max(1, int(math.ceil(s.minutes / max_sample_min - 1e-9))) for s in profile.segments]
+    )
+    seg_idx = np.repeat(np.arange(len(profile.segments)), n)
+    frac_end = np.concatenate([np.arange(1, k + 1) / k for k in n])
+    frac_start = np.concatenate([np.arange(0, k) / k for k in n])
+    d0 = np.array([s.start_depth for s in profile.segments])[seg_idx]
+    d1 = np.array([s.end_depth for s in profile.segments])[seg_idx]
+    mins = np.array([s.minutes for s in profile.segments])[seg_idx] / n[seg_idx]
+    da = d0 + (d1 - d0) * frac_start
+    db = d0 + (d1 - d0) * frac_end
+    fn2 = np.array([s.gas.fn2 for s in profile.segments])[seg_idx]
+    fhe = np.array([s.gas.fhe for s in profile.segments])[seg_idx]
+    place = np.array([s.place for s in profile.segments])[seg_idx]
+    pn0 = saturated_tensions(ps, AIR.fn2, c.n, ph2o_bar) if p_n2_0 is None else np.asarray(p_n2_0)
+    ph0 = np.zeros(c.n) if p_he_0 is None else np.asarray(p_he_0)
+    pa, pb = ps + da * bpu, ps + db * bpu
+    tn = tissue_tensions(mins, pa, pb, fn2, c.n2_half, pn0, ph2o_bar)
+    th = tissue_tensions(mins, pa, pb, fhe, c.he_half, ph0, ph2o_bar)
+    fs = infer_first_stop(profile) if first_stop_depth is None else first_stop_depth
+    gf = bm.gf_at_depth(db, fs if fs else 0.0, gf_low, gf_high)[:, None]
+    ceil = bm.ceiling(tn, th, c, gf).max(axis=1)  # bar
+    excess = ceil - pb
+    labels = np.array([s.label for s in profile.segments])[seg_idx]
+    inside = (place != "surface") & ~np.char.startswith(labels.astype(str), SURFACE_INTERVAL)
+    broken = inside & (excess > 1e-6)
+    gfs = bm.gradient_factor(tn, th, pb[:, None], c).max(axis=1)
+    t_end = np.cumsum(mins)
+    surf_gf = bm.gradient_factor(tn[-1], th[-1], ps, c)
+    ctrl = int(np.argmax(surf_gf))
+    allowed = bm.allowed_tension(ps, tn[-1], th[-1], c, gf_high)
+    uses_he = bool(np.any(fhe > 0) or np.any(ph0 > 0))
+    return ProfileEvaluation(
+        t_min=np.concatenate([[0.0], t_end]),
+        depth=np.concatenate([[profile.segments[0].start_depth], db]),
+        ceiling_depth=np.concatenate([[0.0], np.maximum((ceil - ps) / bpu, 0.0)]),
+        ceiling_broken=bool(broken.any()),
+        worst_excess_bar=float(excess[inside].max()) if inside.any() else float("-inf"),
+        first_break_min=float(t_end[np.argmax(broken)]) if broken.any() else None,
+        max_gf=float(gfs[inside].max()) if inside.any() else float("nan"),
+        surfacing_gf=float(surf_gf[ctrl]),
+        controlling_compartment=c.labels[ctrl],
+        loading_percent_of_limit=100.0 * (tn[-1] + th[-1]) / allowed,
+        surface_interval_max_gf=float(gfs[~inside].max()) if (~inside).any() else None,
+        final_p_n2=tn[-1].copy(),
+        final_p_he=th[-1].copy(),
+        first_stop_depth=fs,
+        coefficient_status=c.status_for(uses_he),
+        labels=c.labels,
+    )
