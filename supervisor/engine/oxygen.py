@@ -1,0 +1,1143 @@
+"""Oxygen exposure: CNS percentage against the NOAA limits and pulmonary dose (UPTD/OTU).
+
+A dive is a list of segments along which the inspired oxygen partial pressure changes
+linearly with time.  For every segment the module computes
+
+* the pulmonary dose in OTU (= UPTD) by the Clark–Lambertsen formula, integrated exactly
+  along the linear PO2 change [2];
+* the CNS percentage, time / limit x 100, against the single-exposure and the 24-hour
+  columns of the NOAA normal-exposure table [1], integrated exactly over the table's
+  step curve (a PO2 between two rows takes the next-higher row, the shorter limit);
+* the minutes spent above the table's highest row (1.6 atm): they are flagged, never
+  extrapolated, so the CNS percentage of such a dive is a lower bound that needs review.
+
+:func:`daily_exposure` combines several exposures on one time line: the highest OTU and
+24-hour CNS percentage over any 24 hours, and the REPEX series check over any k
+consecutive days [3].
+
+Pressures enter in bar absolute, as everywhere in the package; the NOAA limits and the
+UPTD formula are written in atm, so PO2 is converted with 1 atm = 1.01325 bar
+(:data:`supervisor.constants.P_ATM_BAR`).  Times are minutes.
+
+The limit tables are ``tables/limits/noaa-cns-limits.toml`` and
+``tables/limits/pulmonary-daily-limits.toml``; a file without a ``[provenance]`` table is
+refused.  Every row is unverified and FROM MEMORY or SECONDARY, so every result here
+carries ``needs_review = True`` until the rows are checked against the documents.
+
+References
+----------
+.. [1] NOAA Diving Manual, oxygen partial pressure and exposure time limits for normal
+       exposures (3rd to 6th editions), adapted from Butler FK, Thalmann ED (1986).
+.. [2] Clark JM, Lambertsen CJ, "Pulmonary oxygen toxicity: a review", Pharmacological
+       Reviews 23 (1971) 37-133 (journal details from memory); the dose formula as printed
+       in Naikagaku (Internal Medicine), 12th ed., Asakura Publishing, digital appendix,
+       Fig. 2-1-2.
+.. [3] Hamilton RW, Kenyon DJ, Peterson RE, REPEX habitat diving procedures, NOAA Office
+       of Undersea Research Technical Report 88-1B (1988).
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from collections.abc import Sequence
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from supervisor import constants as C
+from supervisor.errors import InputError, TableError
+from supervisor.profile import Profile
+from supervisor.resources import tables_dir
+
+__all__ = [
+    "CNS_TABLE",
+    "DAY_MIN",
+    "OTU_EXPONENT",
+    "OTU_THRESHOLD_ATM",
+    "PULMONARY_TABLE",
+    "CnsLimits",
+    "DailyExposure",
+    "OxygenExposure",
+    "PulmonaryLimits",
+    "TableInfo",
+    "daily_exposure",
+    "load_cns_limits",
+    "load_pulmonary_limits",
+    "otu_rate",
+    "profile_exposure",
+    "segment_exposure",
+]
+
+#: PO2 at or below which the UPTD formula gives no dose [atm] (Clark & Lambertsen [2]).
+OTU_THRESHOLD_ATM: float = 0.5
+#: Exponent of the UPTD formula [-] (Clark & Lambertsen [2]; often rounded to 0.83).
+OTU_EXPONENT: float = 0.833
+#: Length of the rolling window of the NOAA 24-hour limit and of a REPEX day [min].
+DAY_MIN: float = 24.0 * 60.0
+#: File stems of the two limit tables under ``tables/limits``.
+CNS_TABLE: str = "noaa-cns-limits"
+PULMONARY_TABLE: str = "pulmonary-daily-limits"
+
+# A PO2 within this distance of a table row counts as that row: bar -> atm conversion
+# rounding must not push 1.6 atm (1.6212 bar) to just above the table.
+_P_TOL_ATM = 1e-12
+# Exceeding a limit means exceeding it by more than summation rounding.
+_LIMIT_TOL = 1e-9
+# Placement grid for rolling windows inside segments whose PO2 changes [min].
+_WINDOW_GRID_MIN = 0.1
+
+_SCHEMA = "supervisor-table/1"
+_RESULT_SCHEMA = "supervisor-oxygen/1"
+_PROVENANCE_KEYS = (
+    "source_document",
+    "issuing_body",
+    "edition",
+    "table",
+    "date",
+    "licence",
+    "source_status",
+    "transcribed_by",
+    "transcribed_on",
+)
+# Larger is less certain; the least certain status of a table's rows is its status.
+_STATUS_RANK = {
+    "VERIFIED": 0,
+    "COMPUTED": 0,
+    "OLDER-EDITION": 1,
+    "SECONDARY": 2,
+    "DERIVED": 3,
+    "FROM MEMORY": 4,
+}
+
+
+# --------------------------------------------------------------------------- tables
+
+
+@dataclass(frozen=True)
+class TableInfo:
+    """Provenance summary of a limit table.
+
+    Attributes
+    ----------
+    name : str
+        Table name (the file stem).
+    source_document, edition, table : str
+        From the file's ``[provenance]``.
+    source_status : str
+        Least certain source status of the rows (``VERIFIED`` ... ``FROM MEMORY``).
+    verified : bool
+        True only when every row has ``verification = "verified"``.
+    """
+
+    name: str
+    source_document: str
+    edition: str
+    table: str
+    source_status: str
+    verified: bool
+
+    @property
+    def usable_without_review(self) -> bool:
+        """True when every row is verified and the source status is VERIFIED."""
+        return self.verified and self.source_status == "VERIFIED"
+
+    def to_dict(self) -> dict[str, Any]:
+        """Return a JSON-ready dictionary."""
+        return {
+            "name": self.name,
+            "source_document": self.source_document,
+            "edition": self.edition,
+            "table": self.table,
+            "source_status": self.source_status,
+            "verified": self.verified,
+        }
+
+
+@dataclass(frozen=True, eq=False)
+class CnsLimits:
+    """NOAA single-exposure and 24-hour CNS limits by PO2 [1].
+
+    Attributes
+    ----------
+    po2_atm : ndarray
+        Table rows, increasing [atm].
+    single_exposure_min : ndarray
+        Single-exposure limit of each row [min].
+    daily_limit_min : ndarray
+        Total time allowed in 24 hours at each row [min].
+    no_accrual_atm : float
+        PO2 at or below which no CNS percentage accrues [atm].
+    info : TableInfo
+        Provenance.
+    """
+
+    po2_atm: NDArray[np.float64]
+    single_exposure_min: NDArray[np.float64]
+    daily_limit_min: NDArray[np.float64]
+    no_accrual_atm: float
+    info: TableInfo
+
+    @property
+    def range_top_atm(self) -> float:
+        """Highest tabulated PO2 [atm]; above it no limit is defined."""
+        return float(self.po2_atm[-1])
+
+    @property
+    def band_edges_atm(self) -> NDArray[np.float64]:
+        """Upper-closed band edges [atm]: band j is (edge[j], edge[j+1]] with row j's limits."""
+        return np.concatenate(([self.no_accrual_atm], self.po2_atm)) + _P_TOL_ATM
+
+
+@dataclass(frozen=True, eq=False)
+class PulmonaryLimits:
+    """REPEX OTU allowances by number of exposure days [3].
+
+    Attributes
+    ----------
+    exposure_days : ndarray of int
+        1, 2, ... N.
+    daily_allowance_otu : ndarray
+        Average allowance per day for a series of that many days [OTU].
+    total_allowance_otu : ndarray
+        Allowance for the whole series [OTU].
+    info : TableInfo
+        Provenance.
+    """
+
+    exposure_days: NDArray[np.int64]
+    daily_allowance_otu: NDArray[np.float64]
+    total_allowance_otu: NDArray[np.float64]
+    info: TableInfo
+
+    def total_allowance(self, days: ArrayLike) -> NDArray[np.float64]:
+        """Total OTU allowance of a series of ``days`` consecutive days.
+
+        Parameters
+        ----------
+        days : array_like of int
+            Series length [day], >= 1.
+
+        Returns
+        -------
+        ndarray
+            Allowance [OTU]; beyond the last row each further day adds the last row's
+            daily allowance (the file's ``after_last_row`` convention).
+        """
+        k = np.asarray(days)
+        if k.size and (np.any(k < 1) or np.any(k != np.floor(k))):
+            raise InputError("days", f"got {days!r}; expected whole numbers of days >= 1")
+        k = k.astype(np.int64)
+        last = int(self.exposure_days[-1])
+        inside = np.minimum(k, last) - 1
+        extra = np.maximum(k - last, 0)
+        return self.total_allowance_otu[inside] + extra * self.daily_allowance_otu[-1]
+
+
+def _read_table(path: Path) -> dict[str, Any]:
+    """Read a limit table and check its common header; refuse one without provenance."""
+    try:
+        raw = tomllib.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise TableError(f"{path.name}: limit table not found") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise TableError(f"{path.name}: not valid TOML ({exc})") from None
+    prov = raw.get("provenance")
+    if not isinstance(prov, dict):
+        raise TableError(
+            f"{path.name}: no [provenance] table; a table without provenance cannot be loaded"
+        )
+    missing = [k for k in _PROVENANCE_KEYS if not str(prov.get(k, "")).strip()]
+    if missing:
+        raise TableError(f"{path.name}: [provenance] lacks {', '.join(missing)}")
+    if prov["source_status"] not in _STATUS_RANK:
+        raise TableError(f"{path.name}: unknown source_status {prov['source_status']!r}")
+    if raw.get("schema") != _SCHEMA:
+        raise TableError(f"{path.name}: schema must be {_SCHEMA!r}, got {raw.get('schema')!r}")
+    if raw.get("name") != path.stem:
+        raise TableError(f"{path.name}: name {raw.get('name')!r} must equal the file stem")
+    if raw.get("kind") != "limits":
+        raise TableError(f"{path.name}: kind must be 'limits', got {raw.get('kind')!r}")
+    rows = raw.get("rows")
+    if not isinstance(rows, list) or not rows or not all(isinstance(r, dict) for r in rows):
+        raise TableError(f"{path.name}: expected one or more [[rows]]")
+    for i, row in enumerate(rows):
+        status = row.get("source_status", prov["source_status"])
+        if status not in _STATUS_RANK:
+            raise TableError(f"{path.name}: row {i + 1}: unknown source_status {status!r}")
+        if row.get("verification") not in ("verified", "unverified"):
+            raise TableError(
+                f"{path.name}: row {i + 1}: verification must be 'verified' or 'unverified'"
+            )
+    return raw
+
+
+def _info(raw: dict[str, Any]) -> TableInfo:
+    prov = raw["provenance"]
+    statuses = [r.get("source_status", prov["source_status"]) for r in raw["rows"]]
+    return TableInfo(
+        name=raw["name"],
+        source_document=prov["source_document"],
+        edition=prov["edition"],
+        table=prov["table"],
+        source_status=max(statuses, key=_STATUS_RANK.__getitem__),
+        verified=all(r["verification"] == "verified" for r in raw["rows"]),
+    )
+
+
+def _column(raw: dict[str, Any], key: str, path: Path) -> NDArray[np.float64]:
+    try:
+        out = np.array([float(r[key]) for r in raw["rows"]])
+    except (KeyError, TypeError, ValueError):
+        raise TableError(f"{path.name}: every row needs a numeric {key!r}") from None
+    if not np.all(np.isfinite(out)):
+        raise TableError(f"{path.name}: {key!r} must be finite")
+    out.setflags(write=False)
+    return out
+
+
+def _default_path(stem: str) -> Path:
+    return tables_dir() / "limits" / f"{stem}.toml"
+
+
+@lru_cache(maxsize=8)
+def _cns_limits_cached(path: Path) -> CnsLimits:
+    raw = _read_table(path)
+    po2 = _column(raw, "po2_atm", path)
+    single = _column(raw, "single_exposure_min", path)
+    daily = _column(raw, "daily_limit_min", path)
+    try:
+        floor = float(raw.get("conventions", {})["no_accrual_at_or_below_atm"])
+    except (KeyError, TypeError, ValueError):
+        raise TableError(
+            f"{path.name}: [conventions] needs a numeric no_accrual_at_or_below_atm"
+        ) from None
+    if np.any(np.diff(po2) <= 0):
+        raise TableError(f"{path.name}: po2_atm must increase strictly from row to row")
+    if not (0.0 <= floor < po2[0]):
+        raise TableError(f"{path.name}: no_accrual_at_or_below_atm must lie below the first row")
+    if np.any(single <= 0) or np.any(daily <= 0):
+        raise TableError(f"{path.name}: limits must be positive minutes")
+    if np.any(np.diff(single) > 0) or np.any(np.diff(daily) > 0):
+        raise TableError(f"{path.name}: limits must not lengthen as PO2 rises")
+    if np.any(daily < single):
+        raise TableError(f"{path.name}: a 24-hour limit is shorter than its single exposure")
+    return CnsLimits(po2, single, daily, floor, _info(raw))
+
+
+@lru_cache(maxsize=8)
+def _pulmonary_limits_cached(path: Path) -> PulmonaryLimits:
+    raw = _read_table(path)
+    days = _column(raw, "exposure_days", path)
+    daily = _column(raw, "daily_allowance_otu", path)
+    total = _column(raw, "total_allowance_otu", path)
+    if not np.array_equal(days, np.arange(1, days.size + 1)):
+        raise TableError(f"{path.name}: exposure_days must run 1, 2, 3 ... without gaps")
+    if np.any(daily <= 0) or np.any(np.diff(daily) > 0):
+        raise TableError(f"{path.name}: daily allowances must be positive and not increase")
+    if np.any(np.diff(total) < 0):
+        raise TableError(f"{path.name}: total allowances must not decrease")
+    d = days.astype(np.int64)
+    d.setflags(write=False)
+    return PulmonaryLimits(d, daily, total, _info(raw))
+
+
+def load_cns_limits(path: Path | None = None) -> CnsLimits:
+    """Load the NOAA CNS limit table.
+
+    Parameters
+    ----------
+    path : pathlib.Path, optional
+        A table file; by default the bundled ``tables/limits/noaa-cns-limits.toml``.
+
+    Returns
+    -------
+    CnsLimits
+        Rows [atm, min] with provenance (cached per path).
+
+    Raises
+    ------
+    TableError
+        If the file lacks ``[provenance]``, its header is wrong or its rows are inconsistent.
+
+    References
+    ----------
+    .. [1] NOAA Diving Manual, normal-exposure oxygen limits (3rd to 6th editions).
+    """
+    return _cns_limits_cached(Path(path) if path else _default_path(CNS_TABLE))
+
+
+def load_pulmonary_limits(path: Path | None = None) -> PulmonaryLimits:
+    """Load the REPEX daily OTU allowance table.
+
+    Parameters
+    ----------
+    path : pathlib.Path, optional
+        A table file; by default the bundled ``tables/limits/pulmonary-daily-limits.toml``.
+
+    Returns
+    -------
+    PulmonaryLimits
+        Allowances [OTU] by series length [day] with provenance (cached per path).
+
+    Raises
+    ------
+    TableError
+        If the file lacks ``[provenance]``, its header is wrong or its rows are inconsistent.
+
+    References
+    ----------
+    .. [1] Hamilton RW, Kenyon DJ, Peterson RE, REPEX habitat diving procedures, NOAA OUR
+           Technical Report 88-1B (1988).
+    """
+    return _pulmonary_limits_cached(Path(path) if path else _default_path(PULMONARY_TABLE))
+
+
+# --------------------------------------------------------------------------- physics
+
+
+def otu_rate(po2_atm: ArrayLike) -> NDArray[np.float64] | float:
+    """Pulmonary dose rate at a constant PO2.
+
+    Parameters
+    ----------
+    po2_atm : array_like
+        Inspired oxygen partial pressure [atm].
+
+    Returns
+    -------
+    ndarray or float
+        Dose rate [OTU/min]; 0 at or below 0.5 atm.
+
+    Notes
+    -----
+    OTU/min = ((PO2 - 0.5) / 0.5)^0.833, the UPTD formula of Clark & Lambertsen [1];
+    1 OTU is one minute of 100 % oxygen at 1 atm.
+
+    References
+    ----------
+    .. [1] Clark JM, Lambertsen CJ, Pharmacological Reviews 23 (1971) 37-133 (from memory);
+           formula as printed in Naikagaku, 12th ed., Asakura, digital appendix Fig. 2-1-2.
+    """
+    x = (np.asarray(po2_atm, dtype=float) - OTU_THRESHOLD_ATM) / OTU_THRESHOLD_ATM
+    out = np.maximum(x, 0.0) ** OTU_EXPONENT
+    return float(out) if out.ndim == 0 else out
+
+
+def _otu(minutes: NDArray, p1: NDArray, p2: NDArray) -> NDArray[np.float64]:
+    """Exact UPTD integral over segments with PO2 linear from p1 to p2 [atm] over minutes.
+
+    With x = (PO2 - 0.5)/0.5 linear from x1 to x2 and a = 0.833 + 1, the dose is
+    t (x2+^a - x1+^a) / (a (x2 - x1)), x+ = max(x, 0); this also covers a segment that
+    crosses 0.5 atm.  For nearby x1, x2 > 0 the difference of powers is written with
+    expm1/log1p to avoid cancellation; for x1 = x2 it is t x^0.833.
+    """
+    a = OTU_EXPONENT + 1.0
+    x1 = (p1 - OTU_THRESHOLD_ATM) / OTU_THRESHOLD_ATM
+    x2 = (p2 - OTU_THRESHOLD_ATM) / OTU_THRESHOLD_ATM
+    lo = np.minimum(x1, x2)
+    hi = np.maximum(x1, x2)
+    mean = np.zeros_like(lo)
+    both = lo > 0.0
+    d = np.zeros_like(lo)
+    d[both] = (hi[both] - lo[both]) / lo[both]
+    near = both & (d <= 1.0) & (d > 0.0)
+    far = both & (d > 1.0)
+    equal = both & (d == 0.0)
+    cross = (lo <= 0.0) & (hi > 0.0)
+    mean[equal] = lo[equal] ** OTU_EXPONENT
+    mean[near] = lo[near] ** OTU_EXPONENT * np.expm1(a * np.log1p(d[near])) / (a * d[near])
+    mean[far] = (hi[far] ** a - lo[far] ** a) / (a * (hi[far] - lo[far]))
+    mean[cross] = hi[cross] ** a / (a * (hi[cross] - lo[cross]))
+    return minutes * mean
+
+
+def _bands(
+    minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits
+) -> tuple[NDArray, NDArray, NDArray]:
+    """Minutes of each segment in each CNS band, above the table, and below its first row.
+
+    Returns (n, m) minutes per band, (n,) minutes above the highest row and (n,) minutes
+    between the no-accrual PO2 and the first row.  A linear PO2 spends in a band the
+    fraction of the segment's time that the band's overlap is of its PO2 span, so the
+    CNS integral over the table's step curve is exact.
+    """
+    edges = limits.band_edges_atm
+    lo = np.minimum(p1, p2)
+    hi = np.maximum(p1, p2)
+    width = hi - lo
+    ramp = width > _P_TOL_ATM
+    safe = np.where(ramp, width, 1.0)
+    mid = 0.5 * (lo + hi)
+    top = edges[-1]
+
+    overlap = np.minimum(hi[:, None], edges[None, 1:]) - np.maximum(lo[:, None], edges[None, :-1])
+    frac_ramp = np.clip(overlap, 0.0, None) / safe[:, None]
+    frac_const = (mid[:, None] > edges[None, :-1]) & (mid[:, None] <= edges[None, 1:])
+    in_band = minutes[:, None] * np.where(ramp[:, None], frac_ramp, frac_const)
+
+    above_ramp = np.clip(hi - np.maximum(lo, top), 0.0, None) / safe
+    above = minutes * np.where(ramp, above_ramp, mid > top)
+
+    below_const = (mid > edges[0]) & (mid < edges[1] - 2.0 * _P_TOL_ATM)
+    below = np.where(ramp, in_band[:, 0], minutes * below_const)
+    return in_band, above, below
+
+
+def _cns(minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits):
+    """Single-exposure and 24-hour CNS percentages, minutes above and below the table."""
+    in_band, above, below = _bands(minutes, p1, p2, limits)
+    single = 100.0 * np.sum(in_band / limits.single_exposure_min[None, :], axis=1)
+    daily = 100.0 * np.sum(in_band / limits.daily_limit_min[None, :], axis=1)
+    return single, daily, above, below
+
+
+# --------------------------------------------------------------------------- results
+
+
+@dataclass(frozen=True, eq=False)
+class OxygenExposure:
+    """Oxygen exposure of one dive or chamber run, per segment and in total.
+
+    Attributes
+    ----------
+    segment_minutes : ndarray
+        Segment durations [min].
+    segment_po2_start_atm, segment_po2_end_atm : ndarray
+        Inspired PO2 at segment start and end [atm].
+    segment_otu : ndarray
+        Pulmonary dose [OTU].
+    segment_cns_percent : ndarray
+        CNS percentage against the single-exposure limits [%], in-range part only.
+    segment_cns_24h_percent : ndarray
+        CNS percentage against the 24-hour limits [%], in-range part only.
+    segment_minutes_above_range : ndarray
+        Minutes above the table's highest PO2 [min]; not charged to the CNS figures.
+    segment_minutes_below_table : ndarray
+        Minutes between the no-accrual PO2 and the first row, charged at the first row [min].
+    otu, cns_percent, cns_24h_percent : float
+        Totals of the dive [OTU, %, %].
+    max_po2_atm : float
+        Highest PO2 reached, zero-length segments included [atm].
+    out_of_range : bool
+        True when a PO2 above the table's highest row is reached: the CNS totals are then
+        lower bounds that need review.
+    minutes_above_range, minutes_below_table : float
+        Totals [min].
+    range_top_atm : float
+        Highest PO2 of the CNS table [atm].
+    cns_limits : TableInfo
+        Provenance of the CNS limits.
+    """
+
+    segment_minutes: NDArray[np.float64]
+    segment_po2_start_atm: NDArray[np.float64]
+    segment_po2_end_atm: NDArray[np.float64]
+    segment_otu: NDArray[np.float64]
+    segment_cns_percent: NDArray[np.float64]
+    segment_cns_24h_percent: NDArray[np.float64]
+    segment_minutes_above_range: NDArray[np.float64]
+    segment_minutes_below_table: NDArray[np.float64]
+    otu: float
+    cns_percent: float
+    cns_24h_percent: float
+    max_po2_atm: float
+    out_of_range: bool
+    minutes_above_range: float
+    minutes_below_table: float
+    range_top_atm: float
+    cns_limits: TableInfo
+
+    @property
+    def duration_min(self) -> float:
+        """Total duration [min]."""
+        return float(np.sum(self.segment_minutes))
+
+    @property
+    def max_po2_bar(self) -> float:
+        """Highest PO2 reached [bar]."""
+        return self.max_po2_atm * C.P_ATM_BAR
+
+    @property
+    def cns_status(self) -> str:
+        """``"computed"``, or ``"lower bound"`` when PO2 went above the table."""
+        return "lower bound" if self.out_of_range else "computed"
+
+    @property
+    def review_reasons(self) -> tuple[str, ...]:
+        """Why the CNS figures cannot be taken as checked (empty when they can)."""
+        out = []
+        if self.out_of_range:
+            out.append(
+                f"PO2 reached {self.max_po2_atm:.3g} atm, above the CNS table's highest row "
+                f"({self.range_top_atm:g} atm) for {self.minutes_above_range:.4g} min: "
+                "CNS percentage not computable, the figure shown is a lower bound"
+            )
+        if not self.cns_limits.usable_without_review:
+            out.append(
+                f"CNS limits {self.cns_limits.name} are {self.cns_limits.source_status} and "
+                f"{'verified' if self.cns_limits.verified else 'unverified'}"
+            )
+        return tuple(out)
+
+    @property
+    def needs_review(self) -> bool:
+        """True when the CNS figures are a lower bound or rest on unchecked limits."""
+        return bool(self.review_reasons)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Return a JSON-ready dictionary (schema ``supervisor-oxygen/1``)."""
+        segments = [
+            {
+                "minutes": float(m),
+                "po2_start_atm": float(a),
+                "po2_end_atm": float(b),
+                "otu": float(o),
+                "cns_percent": float(c),
+                "cns_24h_percent": float(c24),
+                "minutes_above_range": float(up),
+            }
+            for m, a, b, o, c, c24, up in zip(
+                self.segment_minutes,
+                self.segment_po2_start_atm,
+                self.segment_po2_end_atm,
+                self.segment_otu,
+                self.segment_cns_percent,
+                self.segment_cns_24h_percent,
+                self.segment_minutes_above_range,
+                strict=True,
+            )
+        ]
+        return {
+            "schema": _RESULT_SCHEMA,
+            "duration_min": self.duration_min,
+            "otu": self.otu,
+            "cns_percent": self.cns_percent,
+            "cns_24h_percent": self.cns_24h_percent,
+            "cns_status": self.cns_status,
+            "cns_percent_is_lower_bound": self.out_of_range,
+            "max_po2_atm": self.max_po2_atm,
+            "max_po2_bar": self.max_po2_bar,
+            "out_of_range": self.out_of_range,
+            "minutes_above_range": self.minutes_above_range,
+            "minutes_below_table": self.minutes_below_table,
+            "range_top_atm": self.range_top_atm,
+            "needs_review": self.needs_review,
+            "review_reasons": list(self.review_reasons),
+            "cns_limits": self.cns_limits.to_dict(),
+            "segments": segments,
+        }
+
+
+def _checked(value: ArrayLike, field: str, unit: str) -> NDArray[np.float64]:
+    try:
+        arr = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(field, f"got {value!r}; expected numbers >= 0 [{unit}]") from None
+    if not np.all(np.isfinite(arr)) or np.any(arr < 0):
+        bad = arr[~(np.isfinite(arr) & (arr >= 0))].ravel()[0]
+        raise InputError(field, f"got {bad!r}; expected finite values >= 0 [{unit}]")
+    return arr
+
+
+def _exposure(minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits) -> OxygenExposure:
+    otu = _otu(minutes, p1, p2)
+    single, daily, above, below = _cns(minutes, p1, p2, limits)
+    top = limits.range_top_atm
+    max_po2 = float(np.max(np.maximum(p1, p2))) if p1.size else 0.0
+    for arr in (minutes, p1, p2, otu, single, daily, above, below):
+        arr.setflags(write=False)
+    return OxygenExposure(
+        segment_minutes=minutes,
+        segment_po2_start_atm=p1,
+        segment_po2_end_atm=p2,
+        segment_otu=otu,
+        segment_cns_percent=single,
+        segment_cns_24h_percent=daily,
+        segment_minutes_above_range=above,
+        segment_minutes_below_table=below,
+        otu=float(np.sum(otu)),
+        cns_percent=float(np.sum(single)),
+        cns_24h_percent=float(np.sum(daily)),
+        max_po2_atm=max_po2,
+        out_of_range=bool(max_po2 > top + _P_TOL_ATM or np.any(above > 0)),
+        minutes_above_range=float(np.sum(above)),
+        minutes_below_table=float(np.sum(below)),
+        range_top_atm=top,
+        cns_limits=limits.info,
+    )
+
+
+def segment_exposure(
+    minutes: ArrayLike,
+    po2_start_bar: ArrayLike,
+    po2_end_bar: ArrayLike | None = None,
+    limits: CnsLimits | None = None,
+) -> OxygenExposure:
+    """Oxygen exposure of segments with a linear change of PO2, vectorised.
+
+    Parameters
+    ----------
+    minutes : array_like
+        Segment durations [min], >= 0.
+    po2_start_bar : array_like
+        Inspired oxygen partial pressure at segment start [bar], >= 0.
+    po2_end_bar : array_like, optional
+        PO2 at segment end [bar]; by default equal to ``po2_start_bar`` (constant PO2).
+    limits : CnsLimits, optional
+        CNS limits; by default the bundled NOAA table.
+
+    Returns
+    -------
+    OxygenExposure
+        Per-segment arrays (in the broadcast order of the inputs) and totals; all the
+        segments are taken as one dive.
+
+    Raises
+    ------
+    InputError
+        If a duration or a PO2 is negative or not finite, or the inputs do not broadcast
+        to one dimension.
+
+    Notes
+    -----
+    PO2 is converted to atm with 1 atm = 1.01325 bar.  OTU is the exact integral of
+    ((PO2 - 0.5)/0.5)^0.833 over the linear change [2]; it is zero where PO2 <= 0.5 atm.
+    The CNS percentage is 100 * sum over the table bands of (minutes in band / limit),
+    exact for the step curve of the table [1] (a constant PO2 gives exactly t/limit*100);
+    minutes above 1.6 atm are counted and flagged, never charged by extrapolation.  The
+    pulmonary formula is applied at any PO2, as in chamber treatment practice, although
+    its fit is known to be poor between 1.5 and 2.5 atm.
+
+    References
+    ----------
+    .. [1] NOAA Diving Manual, normal-exposure oxygen limits (3rd to 6th editions).
+    .. [2] Clark JM, Lambertsen CJ, Pharmacological Reviews 23 (1971) 37-133 (from memory).
+    """
+    t = _checked(minutes, "minutes", "min")
+    p1 = _checked(po2_start_bar, "po2_start_bar", "bar")
+    p2 = p1 if po2_end_bar is None else _checked(po2_end_bar, "po2_end_bar", "bar")
+    try:
+        t, p1, p2 = np.broadcast_arrays(t, p1, p2)
+    except ValueError:
+        raise InputError(
+            "minutes",
+            f"shapes {np.shape(t)}, {np.shape(p1)}, {np.shape(p2)} do not broadcast; "
+            "give one value per segment",
+        ) from None
+    if t.ndim > 1:
+        raise InputError("minutes", f"got shape {t.shape}; expected one value per segment (1-D)")
+    t, p1, p2 = (np.atleast_1d(a).astype(float) for a in (t, p1, p2))
+    return _exposure(t, p1 / C.P_ATM_BAR, p2 / C.P_ATM_BAR, limits or load_cns_limits())
+
+
+def profile_exposure(profile: Profile, limits: CnsLimits | None = None) -> OxygenExposure:
+    """Oxygen exposure of a profile, segment by segment.
+
+    Parameters
+    ----------
+    profile : Profile
+        The dive or chamber run; PO2 = ambient pressure [bar] x oxygen fraction [-],
+        linear within each segment because depth is.
+    limits : CnsLimits, optional
+        CNS limits; by default the bundled NOAA table.
+
+    Returns
+    -------
+    OxygenExposure
+        One entry per profile segment, and totals.
+
+    References
+    ----------
+    .. [1] NOAA Diving Manual, normal-exposure oxygen limits (3rd to 6th editions).
+    .. [2] Clark JM, Lambertsen CJ, Pharmacological Reviews 23 (1971) 37-133 (from memory).
+    """
+    if not isinstance(profile, Profile):
+        raise InputError("profile", f"got {type(profile).__name__}; expected a Profile")
+    arr = profile.arrays()
+    return segment_exposure(
+        arr.minutes, arr.p_start * arr.fo2, arr.p_end * arr.fo2, limits=limits
+    )
+
+
+# --------------------------------------------------------------------------- series
+
+
+@dataclass(frozen=True, eq=False)
+class DailyExposure:
+    """Several exposures on one time line: rolling 24-hour and REPEX series checks.
+
+    Attributes
+    ----------
+    start_min, end_min : ndarray
+        Start and end of each exposure, in time order [min from the caller's origin].
+    otu, cns_percent, cns_24h_percent : ndarray
+        Per-exposure totals [OTU, %, %].
+    max_otu_24h : float
+        Highest OTU in any 24 hours [OTU].
+    otu_24h_window_start_min : float
+        Start of that 24-hour window [min].
+    otu_allowance_24h : float
+        REPEX single-day allowance [OTU].
+    series_days : ndarray of int
+        Window lengths checked: 1 ... number of days the exposures span [day].
+    series_max_otu : ndarray
+        Highest OTU in any window of that many consecutive days [OTU].
+    series_allowance_otu : ndarray
+        REPEX total allowance of a series of that many days [OTU].
+    max_cns_24h_percent : float
+        Highest sum of time / 24-hour limit over any 24 hours [%]; a lower bound when
+        ``out_of_range``.
+    cns_24h_window_start_min : float
+        Start of that window [min].
+    out_of_range : bool
+        Some exposure went above the CNS table.
+    max_po2_atm, minutes_above_range : float
+        Over all exposures [atm, min].
+    cns_half_time_min : float or None
+        Recovery half-time supplied by the caller [min], or None (no recovery assumed).
+    cns_carried_percent : ndarray or None
+        Single-exposure CNS percentage carried at the end of each exposure with that
+        half-time [%]; None when no half-time was given.
+    cns_limits, pulmonary_limits : TableInfo
+        Provenance.
+    """
+
+    start_min: NDArray[np.float64]
+    end_min: NDArray[np.float64]
+    otu: NDArray[np.float64]
+    cns_percent: NDArray[np.float64]
+    cns_24h_percent: NDArray[np.float64]
+    max_otu_24h: float
+    otu_24h_window_start_min: float
+    otu_allowance_24h: float
+    series_days: NDArray[np.int64]
+    series_max_otu: NDArray[np.float64]
+    series_allowance_otu: NDArray[np.float64]
+    max_cns_24h_percent: float
+    cns_24h_window_start_min: float
+    out_of_range: bool
+    max_po2_atm: float
+    minutes_above_range: float
+    cns_half_time_min: float | None
+    cns_carried_percent: NDArray[np.float64] | None
+    cns_limits: TableInfo
+    pulmonary_limits: TableInfo
+
+    @property
+    def otu_24h_exceeded(self) -> bool:
+        """Some 24 hours hold more than the REPEX single-day allowance."""
+        return bool(self.max_otu_24h > self.otu_allowance_24h + _LIMIT_TOL)
+
+    @property
+    def series_exceeded(self) -> bool:
+        """Some window of k consecutive days holds more than the k-day REPEX allowance."""
+        return bool(np.any(self.series_max_otu > self.series_allowance_otu + _LIMIT_TOL))
+
+    @property
+    def cns_24h_exceeded(self) -> bool:
+        """Some 24 hours exceed the NOAA 24-hour limits (100 %)."""
+        return bool(self.max_cns_24h_percent > 100.0 + _LIMIT_TOL)
+
+    @property
+    def single_exposure_exceeded(self) -> bool:
+        """Some exposure exceeds the NOAA single-exposure limits (100 %)."""
+        return bool(np.any(self.cns_percent > 100.0 + _LIMIT_TOL))
+
+    @property
+    def cns_carried_exceeded(self) -> bool | None:
+        """Carried CNS above 100 % (None when no recovery half-time was given)."""
+        if self.cns_carried_percent is None:
+            return None
+        return bool(np.any(self.cns_carried_percent > 100.0 + _LIMIT_TOL))
+
+    @property
+    def review_reasons(self) -> tuple[str, ...]:
+        """Why the figures cannot be taken as checked (empty when they can)."""
+        out = []
+        if self.out_of_range:
+            out.append(
+                f"PO2 reached {self.max_po2_atm:.3g} atm, above the CNS table, for "
+                f"{self.minutes_above_range:.4g} min: CNS figures are lower bounds"
+            )
+        for info in (self.cns_limits, self.pulmonary_limits):
+            if not info.usable_without_review:
+                out.append(
+                    f"limits {info.name} are {info.source_status} and "
+                    f"{'verified' if info.verified else 'unverified'}"
+                )
+        if self.cns_half_time_min is not None:
+            out.append(
+                f"CNS recovery with a {self.cns_half_time_min:g}-min half-time is an "
+                "assumption supplied by the caller, not a tabulated limit"
+            )
+        return tuple(out)
+
+    @property
+    def needs_review(self) -> bool:
+        """True when any figure is a lower bound or rests on unchecked limits."""
+        return bool(self.review_reasons)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Return a JSON-ready dictionary (schema ``supervisor-oxygen/1``)."""
+        carried = self.cns_carried_percent
+        return {
+            "schema": _RESULT_SCHEMA,
+            "exposures": [
+                {
+                    "start_min": float(s),
+                    "end_min": float(e),
+                    "otu": float(o),
+                    "cns_percent": float(c),
+                    "cns_24h_percent": float(c24),
+                    "cns_carried_percent": None if carried is None else float(carried[i]),
+                }
+                for i, (s, e, o, c, c24) in enumerate(
+                    zip(
+                        self.start_min,
+                        self.end_min,
+                        self.otu,
+                        self.cns_percent,
+                        self.cns_24h_percent,
+                        strict=True,
+                    )
+                )
+            ],
+            "max_otu_24h": self.max_otu_24h,
+            "otu_24h_window_start_min": self.otu_24h_window_start_min,
+            "otu_allowance_24h": self.otu_allowance_24h,
+            "otu_24h_exceeded": self.otu_24h_exceeded,
+            "series": [
+                {"days": int(k), "max_otu": float(m), "allowance_otu": float(a)}
+                for k, m, a in zip(
+                    self.series_days, self.series_max_otu, self.series_allowance_otu, strict=True
+                )
+            ],
+            "series_exceeded": self.series_exceeded,
+            "max_cns_24h_percent": self.max_cns_24h_percent,
+            "cns_24h_window_start_min": self.cns_24h_window_start_min,
+            "cns_24h_exceeded": self.cns_24h_exceeded,
+            "single_exposure_exceeded": self.single_exposure_exceeded,
+            "cns_status": "lower bound" if self.out_of_range else "computed",
+            "out_of_range": self.out_of_range,
+            "max_po2_atm": self.max_po2_atm,
+            "minutes_above_range": self.minutes_above_range,
+            "cns_half_time_min": self.cns_half_time_min,
+            "cns_carried_exceeded": self.cns_carried_exceeded,
+            "needs_review": self.needs_review,
+            "review_reasons": list(self.review_reasons),
+            "cns_limits": self.cns_limits.to_dict(),
+            "pulmonary_limits": self.pulmonary_limits.to_dict(),
+        }
+
+
+class _Timeline:
+    """All segments of several exposures on one absolute time axis, with exact doses."""
+
+    def __init__(
+        self,
+        t0: NDArray,
+        minutes: NDArray,
+        p1: NDArray,
+        p2: NDArray,
+        limits: CnsLimits,
+        grid_min: float,
+    ) -> None:
+        keep = minutes > 0
+        self.t0, self.m, self.p1, self.p2 = t0[keep], minutes[keep], p1[keep], p2[keep]
+        self.limits = limits
+        otu = _otu(self.m, self.p1, self.p2)
+        cns = _cns(self.m, self.p1, self.p2, limits)[1]
+        self.otu0 = np.concatenate(([0.0], np.cumsum(otu)))
+        self.cns0 = np.concatenate(([0.0], np.cumsum(cns)))
+        # Window-edge positions: every segment boundary, plus a fine grid inside segments
+        # whose PO2 changes (there the dose rate is not constant).
+        ramp = np.abs(self.p2 - self.p1) > _P_TOL_ATM
+        n = np.where(ramp, np.ceil(self.m / grid_min), 1).astype(np.int64)
+        owner = np.repeat(np.arange(self.m.size), n)
+        step = np.arange(owner.size) - np.repeat(np.cumsum(n) - n, n)
+        inner = self.t0[owner] + self.m[owner] * step / n[owner]
+        self.edges = np.unique(np.concatenate((inner, self.t0 + self.m)))
+
+    def dose_at(self, t: NDArray) -> tuple[NDArray, NDArray]:
+        """Cumulative OTU and 24-hour CNS percentage from the first segment up to times t."""
+        i = np.searchsorted(self.t0, t, side="right") - 1
+        before = i < 0
+        j = np.clip(i, 0, None)
+        tau = np.clip(t - self.t0[j], 0.0, self.m[j])
+        p_tau = self.p1[j] + (self.p2[j] - self.p1[j]) * tau / self.m[j]
+        otu = self.otu0[j] + _otu(tau, self.p1[j], p_tau)
+        cns = self.cns0[j] + _cns(tau, self.p1[j], p_tau, self.limits)[1]
+        return np.where(before, 0.0, otu), np.where(before, 0.0, cns)
+
+    def window_max(self, length_min: float, want_cns: bool = True):
+        """Highest OTU (and 24-hour CNS) in any window of the given length, and its start.
+
+        The window is placed with one edge on each segment boundary or grid point; this is
+        exact where PO2 is constant and second order in the grid step inside ramps.
+        """
+        if self.m.size == 0:
+            return 0.0, 0.0, 0.0, 0.0
+        s = np.unique(np.concatenate((self.edges, self.edges - length_min)))
+        otu_a, cns_a = self.dose_at(s)
+        otu_b, cns_b = self.dose_at(s + length_min)
+        w_otu = otu_b - otu_a
+        k = int(np.argmax(w_otu))
+        if not want_cns:
+            return float(w_otu[k]), self._first_dose(s[k]), 0.0, 0.0
+        w_cns = cns_b - cns_a
+        c = int(np.argmax(w_cns))
+        return float(w_otu[k]), self._first_dose(s[k]), float(w_cns[c]), self._first_dose(s[c])
+
+    def _first_dose(self, s: float) -> float:
+        """Move a window start through a gap to the next segment (the dose is unchanged)."""
+        i = int(np.searchsorted(self.t0 + self.m, s, side="right"))
+        return float(max(s, self.t0[i])) if i < self.t0.size else float(s)
+
+
+def daily_exposure(
+    exposures: Sequence[tuple[float, OxygenExposure]],
+    cns_half_time_min: float | None = None,
+    pulmonary_limits: PulmonaryLimits | None = None,
+    limits: CnsLimits | None = None,
+    grid_min: float = _WINDOW_GRID_MIN,
+) -> DailyExposure:
+    """Combine exposures on one time line and check rolling 24-hour and multi-day limits.
+
+    Parameters
+    ----------
+    exposures : sequence of (float, OxygenExposure)
+        Start time of each exposure [min from any common origin] with its exposure, for
+        example from :func:`profile_exposure`.  Exposures must not overlap in time.
+    cns_half_time_min : float, optional
+        Half-time of an exponential recovery of the single-exposure CNS percentage
+        between exposures [min].  None (the default) assumes no recovery: the 24-hour
+        check then rests on the NOAA 24-hour limits alone.  No half-time is given in the
+        sources of this package's tables; a 90-min half-time is often quoted (from memory).
+    pulmonary_limits : PulmonaryLimits, optional
+        REPEX allowances; by default the bundled table.
+    limits : CnsLimits, optional
+        CNS limits used to recompute the 24-hour percentage over partial windows; by
+        default the bundled NOAA table.
+    grid_min : float
+        Placement grid for window edges inside segments whose PO2 changes [min].
+
+    Returns
+    -------
+    DailyExposure
+        Per-exposure totals, rolling 24-hour maxima, and the REPEX series check.
+
+    Raises
+    ------
+    InputError
+        If the list is empty, a start time is not finite, exposures overlap, or the
+        half-time or grid is not a positive number.
+
+    Notes
+    -----
+    The dose in a window is D(s + L) - D(s), with D the exact cumulative dose.  The 24-hour
+    CNS percentage is the sum of time / 24-hour limit within the window [1] (the usual
+    reading for mixed PO2, common practice, no source); the OTU of every window of k
+    consecutive days is compared with the REPEX total allowance of a k-day series [3]
+    (k = 1 is the single-day 850 OTU allowance; this placement of windows is an
+    interpretation, from memory).  With a half-time h, the carried CNS percentage is
+    C_k = C_(k-1) 2^(-gap/h) + CNS_k.
+
+    References
+    ----------
+    .. [1] NOAA Diving Manual, normal-exposure oxygen limits (3rd to 6th editions).
+    .. [2] Clark JM, Lambertsen CJ, Pharmacological Reviews 23 (1971) 37-133 (from memory).
+    .. [3] Hamilton RW, Kenyon DJ, Peterson RE, REPEX habitat diving procedures, NOAA OUR
+           Technical Report 88-1B (1988).
+    """
+    items = list(exposures)
+    if not items:
+        raise InputError("exposures", "got none; expected one or more (start_min, exposure)")
+    for i, item in enumerate(items):
+        if (
+            not isinstance(item, tuple)
+            or len(item) != 2
+            or not isinstance(item[1], OxygenExposure)
+        ):
+            raise InputError(
+                f"exposures[{i}]", "expected a (start_min, OxygenExposure) pair"
+            )
+        try:
+            ok = math.isfinite(float(item[0]))
+        except (TypeError, ValueError):
+            ok = False
+        if not ok:
+            raise InputError(
+                f"exposures[{i}].start_min", f"got {item[0]!r}; expected a finite time [min]"
+            )
+    for name, value in (("cns_half_time_min", cns_half_time_min), ("grid_min", grid_min)):
+        if value is not None and not (math.isfinite(value) and value > 0):
+            raise InputError(name, f"got {value!r}; expected a positive number of minutes")
+    cns_lim = limits or load_cns_limits()
+    pul_lim = pulmonary_limits or load_pulmonary_limits()
+
+    items.sort(key=lambda it: float(it[0]))
+    start = np.array([float(s) for s, _ in items])
+    end = start + np.array([e.duration_min for _, e in items])
+    gap = start[1:] - end[:-1]
+    if np.any(gap < -1e-9):
+        k = int(np.argmax(gap < -1e-9)) + 1
+        raise InputError(
+            "exposures",
+            f"exposure starting at {start[k]:g} min begins before the previous one ends at "
+            f"{end[k - 1]:g} min; give non-overlapping start times",
+        )
+
+    seg_t0 = np.concatenate(
+        [s + np.concatenate(([0.0], np.cumsum(e.segment_minutes)[:-1])) for s, e in items]
+    )
+    seg_m = np.concatenate([e.segment_minutes for _, e in items])
+    seg_p1 = np.concatenate([e.segment_po2_start_atm for _, e in items])
+    seg_p2 = np.concatenate([e.segment_po2_end_atm for _, e in items])
+    line = _Timeline(seg_t0, seg_m, seg_p1, seg_p2, cns_lim, grid_min)
+
+    otu24, s_otu, cns24, s_cns = line.window_max(DAY_MIN)
+    span = float(end[-1] - start[0])
+    n_days = max(1, math.ceil(span / DAY_MIN - 1e-12))
+    days = np.arange(1, n_days + 1, dtype=np.int64)
+    series_max = np.array(
+        [otu24] + [line.window_max(k * DAY_MIN, want_cns=False)[0] for k in days[1:]]
+    )
+
+    cns_each = np.array([e.cns_percent for _, e in items])
+    carried = None
+    if cns_half_time_min is not None:
+        carried = np.empty_like(cns_each)
+        acc = 0.0
+        for i, c in enumerate(cns_each):
+            if i:
+                acc *= 2.0 ** (-max(gap[i - 1], 0.0) / cns_half_time_min)
+            acc += c
+            carried[i] = acc
+
+    return DailyExposure(
+        start_min=start,
+        end_min=end,
+        otu=np.array([e.otu for _, e in items]),
+        cns_percent=cns_each,
+        cns_24h_percent=np.array([e.cns_24h_percent for _, e in items]),
+        max_otu_24h=otu24,
+        otu_24h_window_start_min=s_otu,
+        otu_allowance_24h=float(pul_lim.total_allowance(1)[()]),
+        series_days=days,
+        series_max_otu=series_max,
+        series_allowance_otu=pul_lim.total_allowance(days),
+        max_cns_24h_percent=cns24,
+        cns_24h_window_start_min=s_cns,
+        out_of_range=any(e.out_of_range for _, e in items),
+        max_po2_atm=max(e.max_po2_atm for _, e in items),
+        minutes_above_range=float(sum(e.minutes_above_range for _, e in items)),
+        cns_half_time_min=None if cns_half_time_min is None else float(cns_half_time_min),
+        cns_carried_percent=carried,
+        cns_limits=cns_lim.info,
+        pulmonary_limits=pul_lim.info,
+    )
