@@ -131,7 +131,8 @@ class TableInfo:
     source_status : str
         Least certain source status of the rows (``VERIFIED`` ... ``FROM MEMORY``).
     verified : bool
-        True only when every row has ``verification = "verified"``.
+        True only when every row has ``verification = "verified"`` with a checker's name
+        and a row hash (the hash itself is checked by ``supervisor tables verify``).
     """
 
     name: str
@@ -285,7 +286,12 @@ def _info(raw: dict[str, Any]) -> TableInfo:
         edition=prov["edition"],
         table=prov["table"],
         source_status=max(statuses, key=_STATUS_RANK.__getitem__),
-        verified=all(r["verification"] == "verified" for r in raw["rows"]),
+        verified=all(
+            r["verification"] == "verified"
+            and str(r.get("verified_by", "")).strip()
+            and str(r.get("row_hash", "")).strip()
+            for r in raw["rows"]
+        ),
     )
 
 

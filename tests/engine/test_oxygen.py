@@ -556,3 +556,24 @@ def test_daily_bad_input_raises_input_error(pairs, kwargs, field):
     with pytest.raises(InputError) as exc:
         ox.daily_exposure(pairs, **kwargs)
     assert exc.value.field == field
+
+
+def test_verified_needs_checker_and_hash(tmp_path):
+    """A row marked verified without a checker's name and row hash does not count."""
+    src = tables_dir() / "limits" / f"{ox.PULMONARY_TABLE}.toml"
+    text = src.read_text(encoding="utf-8").replace(
+        'verification = "unverified"', 'verification = "verified"'
+    )
+    dst = tmp_path / src.name
+    dst.write_text(text, encoding="utf-8")
+    assert not ox.load_pulmonary_limits(dst).info.verified
+    dst.write_text(
+        text.replace('verified_by = ""', 'verified_by = "checker"').replace(
+            'row_hash = ""', 'row_hash = "0123abcd"'
+        ),
+        encoding="utf-8",
+    )
+    ox._pulmonary_limits_cached.cache_clear()
+    info = ox.load_pulmonary_limits(dst).info
+    assert info.verified
+    assert not info.usable_without_review  # still FROM MEMORY / SECONDARY
