@@ -1,9 +1,328 @@
-"""Commands of this family (filled in by its own issue)."""
+"""``supervisor tables``: list, show, validate, verify and import reference tables.
+
+Exit status
+-----------
+list      0; 1 if a bundled table fails to load.
+show      0; 2 if the table cannot be found, read or loaded.
+validate  0 valid (warnings allowed); 1 the file reads but fails validation;
+          2 the file cannot be read (missing, not UTF-8, not TOML).
+verify    0 recorded; 1 the file fails validation (nothing written);
+          2 bad option, unknown row or unreadable file (nothing written).
+import    0 written; 1 the imported table fails validation (nothing written);
+          2 bad option or cell, or the output exists without --force.
+build     0 written; 2 bad option or a schedule the engine cannot compute.
+screen    0 no row flagged; 1 rows flagged; 2 unreadable or invalid file.
+"""
 
 from __future__ import annotations
 
+import json
+import math
+from enum import StrEnum
+from pathlib import Path
+from typing import Any
+
 import typer
+
+from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, guarded
+from supervisor.references import (
+    ImportOptions,
+    InvalidTableError,
+    Table,
+    UnreadableTableError,
+    bundled_paths,
+    import_csv,
+    load_table,
+    validate_file,
+    verify_rows,
+)
+from supervisor.references.issues import errors
+from supervisor.references.schema import MODE_TITLES
+
+tables_app = typer.Typer(
+    name="tables",
+    help="Reference tables: list, show, validate, verify, import, build and screen.",
+    no_args_is_help=True,
+    pretty_exceptions_show_locals=False,
+)
+
+
+class KindChoice(StrEnum):
+    """Table kinds accepted by ``tables import``."""
+
+    no_stop = "no-stop"
+    decompression = "decompression"
+    treatment = "treatment"
+    limits = "limits"
+    model_coefficients = "model-coefficients"
+
+
+class StatusChoice(StrEnum):
+    """Source statuses accepted by ``tables import``."""
+
+    verified = "VERIFIED"
+    secondary = "SECONDARY"
+    older_edition = "OLDER-EDITION"
+    derived = "DERIVED"
+    from_memory = "FROM MEMORY"
+
+
+class UnitChoice(StrEnum):
+    """Depth units of a table."""
+
+    fsw = "fsw"
+    msw = "msw"
+
+
+def _cut(text: str, width: int) -> str:
+    return text if len(text) <= width else text[: width - 1] + "…"
+
+
+def _fmt(x: Any) -> str:
+    if isinstance(x, float):
+        if math.isinf(x):
+            return "unlimited"
+        return f"{x:g}"
+    return str(x)
+
+
+@tables_app.command("list")
+@guarded
+def list_tables(
+    as_json: bool = typer.Option(False, "--json", help="Print JSON (supervisor.tables-list/1)."),
+) -> None:
+    """List the bundled tables: name, kind, edition, source status, rows verified/total."""
+    entries: list[dict[str, Any]] = []
+    failed = False
+    for path in bundled_paths():
+        try:
+            t = load_table(path)
+        except (InvalidTableError, UnreadableTableError) as exc:
+            failed = True
+            entries.append({"name": path.stem, "kind": path.parent.name, "edition": "",
+                            "source_status": "", "rows": 0, "verified": 0,
+                            "error": str(exc)})
+            continue
+        entries.append({"name": t.name, "kind": t.kind, "edition": t.model.provenance.edition,
+                        "source_status": t.least_status, "rows": len(t.rows),
+                        "verified": t.n_verified, "error": None})
+    if as_json:
+        typer.echo(json.dumps({"schema": "supervisor.tables-list/1", "tables": entries},
+                              indent=2, ensure_ascii=False))
+    else:
+        typer.echo(f"{'name':<26} {'kind':<19} {'edition':<32} {'source status':<14} verified")
+        for e in entries:
+            if e["error"]:
+                typer.echo(f"{e['name']:<26} {e['kind']:<19} INVALID: {e['error']}")
+                continue
+            typer.echo(f"{e['name']:<26} {e['kind']:<19} {_cut(e['edition'], 32):<32} "
+                       f"{e['source_status']:<14} {e['verified']}/{e['rows']}")
+    if failed:
+        raise typer.Exit(EXIT_FAIL)
+
+
+def _row_status(t: Table, i: int) -> str:
+    st = t.row_states[i]
+    return f"{st.source_status}, {'verified' if st.verified else 'unverified'}"
+
+
+def _show_rows(t: Table) -> list[str]:
+    out: list[str] = []
+    unit = getattr(t.model.conventions, "depth_unit", "")
+    if t.kind == "no-stop":
+        out.append(f"{'row':>4}  {'depth ' + unit:>9}  {'no-stop limit':>13}  groups  status")
+        for i, r in enumerate(t.rows):
+            groups = " ".join(f"{g}:{_fmt(v)}" for g, v in r.repetitive_groups.items()) or "-"
+            lim = "unlimited" if r.unlimited else f"{_fmt(r.limit_min)} min"
+            out.append(f"{i + 1:>4}  {_fmt(r.depth):>9}  {lim:>13}  {groups}  {_row_status(t, i)}")
+    elif t.kind == "decompression":
+        out.append(f"{'row':>4}  {'depth/time':>10}  {'mode':<7} {'stops (depth:min)':<34} "
+                   f"{'total':>6} group flags  status")
+        for i, r in enumerate(t.rows):
+            key = f"{_fmt(r.depth)}/{_fmt(r.bottom_time)}"
+            for k, (mode, s) in enumerate(r.schedules().items()):
+                stops = " ".join(
+                    f"{_fmt(x.depth)}:{_fmt(x.minutes)}"
+                    + ("" if x.gas == "air" else f" {x.gas}")
+                    + ("" if x.place == "water" else " ch") for x in s.stops) or "-"
+                if s.chamber_o2_periods is not None:
+                    stops += f" +{_fmt(s.chamber_o2_periods)} ch-O2"
+                flags = ",".join(f for f, on in (("EE", r.exceptional_exposure),
+                                                 ("not-permitted", not s.permitted)) if on) or "-"
+                total = _fmt(s.total_ascent) if s.total_ascent is not None else "-"
+                lead = f"{i + 1:>4}  {key:>10}" if k == 0 else " " * 16
+                out.append(f"{lead}  {mode:<7} {_cut(stops, 34):<34} {total:>6} "
+                           f"{r.repetitive_group or '-':<5} {flags:<5}  "
+                           f"{_row_status(t, i) if k == 0 else ''}")
+    elif t.kind == "treatment":
+        out.append(f"{'step':>4}  {'from→to ' + unit:>12}  {'min':>5}  {'gas':<8} {'rate':>5} "
+                   f"{'elapsed':>7}  status")
+        for i, s in enumerate(t.rows):
+            ft = f"{_fmt(s.from_depth)}→{_fmt(s.to_depth)}"
+            rate = _fmt(s.travel_rate) if s.travel_rate else "-"
+            el = _fmt(s.elapsed_min) if s.elapsed_min is not None else "-"
+            out.append(f"{s.step:>4}  {ft:>12}  {_fmt(s.minutes):>5}  {s.gas:<8} {rate:>5} "
+                       f"{el:>7}  {_row_status(t, i)}")
+    else:
+        cols = [k for k, v in t.rows[0].data().items() if not isinstance(v, dict)]
+        widths = [max(len(c), *(len(_fmt(r.data().get(c, ""))) for r in t.rows)) for c in cols]
+        out.append(f"{'row':>4}  " + "  ".join(f"{c:>{w}}" for c, w in zip(cols, widths,
+                                                                          strict=True))
+                   + "  status")
+        for i, r in enumerate(t.rows):
+            cells = "  ".join(f"{_fmt(r.data().get(c, '')):>{w}}"
+                              for c, w in zip(cols, widths, strict=True))
+            out.append(f"{i + 1:>4}  {cells}  {_row_status(t, i)}")
+    return out
+
+
+@tables_app.command("show")
+@guarded
+def show(
+    name: str = typer.Argument(..., help="Bundled table name (see `tables list`) or a file path."),
+) -> None:
+    """Show one table compactly: source, conventions and rows with their status."""
+    t = load_table(name)
+    p = t.model.provenance
+    typer.echo(f"{t.name}: {t.model.title} ({t.kind})")
+    typer.echo(f"source:  {p.source_document}; {p.edition}; {p.table}; {p.date}")
+    typer.echo(f"issued:  {p.issuing_body}; licence: {p.licence}")
+    typer.echo(f"status:  {p.source_status}; {t.n_verified} of {len(t.rows)} rows verified; "
+               f"transcribed by {p.transcribed_by} {p.transcribed_on}".rstrip())
+    c = t.model.conventions
+    if t.kind in ("no-stop", "decompression"):
+        typer.echo(f"conventions: {c.depth_unit}; next deeper depth, next longer bottom time; "
+                   f"ascent {_fmt(c.ascent_rate)} {c.depth_unit}/min; gas {c.gas}; {c.place}; "
+                   f"stops measured at: {c.stop_depth_reference}")
+        typer.echo(f"bottom time: {c.bottom_time_definition}")
+    elif t.kind == "treatment":
+        typer.echo(f"conventions: {c.depth_unit}; {c.place}; time: {c.time_definition}")
+    if t.kind == "decompression":
+        typer.echo("modes: " + "; ".join(f"{k} = {v}" for k, v in MODE_TITLES.items()))
+    for line in _show_rows(t):
+        typer.echo(line.rstrip())
+    for issue in t.issues:
+        typer.echo(issue.line(t.name), err=True)
+
+
+@tables_app.command("validate")
+def validate(
+    file: Path = typer.Argument(..., help="Table file (TOML) to check."),
+    as_json: bool = typer.Option(False, "--json",
+                                 help="Print JSON (supervisor.tables-validate/1)."),
+) -> None:
+    """Check a table file: provenance, schema and units, verification record, sanity rules.
+
+    Exit 0 valid, 1 the file reads but fails validation, 2 the file cannot be read.
+    """
+    try:
+        issues = validate_file(file)
+    except UnreadableTableError as exc:
+        typer.echo(f"error: {exc}", err=True)
+        raise typer.Exit(EXIT_BAD_INPUT) from None
+    errs = errors(issues)
+    if as_json:
+        typer.echo(json.dumps({"schema": "supervisor.tables-validate/1", "file": str(file),
+                               "valid": not errs,
+                               "issues": [i.to_dict() for i in issues]}, indent=2,
+                              ensure_ascii=False))
+    else:
+        for i in issues:
+            typer.echo(i.line(str(file)))
+        n_warn = len(issues) - len(errs)
+        if errs:
+            typer.echo(f"{file}: invalid: {len(errs)} error(s), {n_warn} warning(s)")
+        else:
+            typer.echo(f"{file}: valid ({n_warn} warning(s))")
+    if errs:
+        raise typer.Exit(EXIT_FAIL)
+
+
+@tables_app.command("verify")
+@guarded
+def verify(
+    file: Path = typer.Argument(..., help="Table file (TOML) whose rows were checked."),
+    rows: str = typer.Option(..., "--rows", help="Rows checked: all; row numbers and ranges "
+                             "such as 1-5,9; or keys @DEPTH and @DEPTH/TIME."),
+    by: str = typer.Option(..., "--by", help="Name of the second person who checked the rows "
+                           "(not the transcriber)."),
+    method: str = typer.Option(..., "--method", help="How the rows were checked, e.g. 'read "
+                               "aloud against the printed table, p. 9-63'."),
+    on: str = typer.Option(None, "--on", help="Date of the check, YYYY-MM-DD (default today)."),
+) -> None:
+    """Record a second person's check of table rows, with the date and the row hashes."""
+    try:
+        outcome = verify_rows(file, rows, by, method, on)
+    except InvalidTableError as exc:
+        for i in exc.issues:
+            typer.echo(i.line(str(file)), err=True)
+        typer.echo(f"error: {file} fails validation; nothing recorded", err=True)
+        raise typer.Exit(EXIT_FAIL) from None
+    typer.echo(f"{file}: recorded check by {by.strip()} of {len(outcome.rows)} row(s)")
+    if outcome.voided:
+        typer.echo(f"{file}: earlier checks no longer valid, reset to unverified: rows "
+                   + ", ".join(map(str, outcome.voided)))
+    t = load_table(file)
+    low = {t.row_states[r - 1].source_status for r in outcome.rows} - {"VERIFIED"}
+    if low:
+        typer.echo(f"note: the checked rows' source status is {', '.join(sorted(low))}; "
+                   "findings that use them stay 'needs review'")
+
+
+@tables_app.command("import")
+@guarded
+def import_table(
+    csv_file: Path = typer.Argument(..., metavar="CSV", help="The contractor's table as CSV "
+                                    "(columns per kind: see tables/README.md)."),
+    kind: KindChoice = typer.Option(..., "--kind", help="Kind of table."),
+    source: str = typer.Option(..., "--source", help="Title of the source document."),
+    out: Path = typer.Option(None, "--out", help="Output table file (default: CSV name with "
+                             ".toml)."),
+    force: bool = typer.Option(False, "--force", help="Overwrite an existing output file."),
+    issuing_body: str = typer.Option("not stated", "--issuing-body", help="Who issued it."),
+    edition: str = typer.Option("not stated", "--edition", help="Edition or revision."),
+    table_id: str = typer.Option("not stated", "--table", help="Table number or section."),
+    date: str = typer.Option("not stated", "--date", help="Date of the edition."),
+    licence: str = typer.Option("not stated", "--licence", help="Licence or release statement."),
+    source_status: StatusChoice = typer.Option(StatusChoice.secondary, "--source-status",
+                                               help="How good the source is."),
+    transcribed_by: str = typer.Option("not stated", "--transcribed-by",
+                                       help="Who transcribed the CSV."),
+    unit: UnitChoice = typer.Option(UnitChoice.fsw, "--unit", help="Depth unit."),
+    ascent_rate: float = typer.Option(30.0, "--ascent-rate",
+                                      help="Ascent rate [depth unit/min]."),
+    stop_step: float = typer.Option(10.0, "--stop-step", help="Stop interval [depth unit]."),
+    last_stop: float = typer.Option(10.0, "--last-stop", help="Last stop depth [depth unit]."),
+    includes_travel: bool = typer.Option(False, "--stop-time-includes-travel",
+                                         help="Stop minutes include travel from the stop "
+                                         "before."),
+    bottom_time_definition: str = typer.Option("not stated", "--bottom-time-definition",
+                                               help="How the source defines bottom time."),
+    stop_depth_reference: str = typer.Option("not stated", "--stop-depth-reference",
+                                             help="Where stop depth is measured."),
+) -> None:
+    """Import a contractor's own table from CSV; every row unverified, provenance from options."""
+    opts = ImportOptions(
+        source=source, issuing_body=issuing_body, edition=edition, table=table_id, date=date,
+        licence=licence, source_status=source_status.value, transcribed_by=transcribed_by,
+        unit=unit.value, ascent_rate=ascent_rate, stop_step=stop_step, last_stop=last_stop,
+        stop_time_includes_travel=includes_travel,
+        bottom_time_definition=bottom_time_definition,
+        stop_depth_reference=stop_depth_reference,
+    )
+    try:
+        target, warnings = import_csv(csv_file, kind.value, opts, out, force)
+    except InvalidTableError as exc:
+        for i in exc.issues:
+            typer.echo(i.line(str(exc.path)), err=True)
+        typer.echo(f"error: {csv_file} does not make a valid table; nothing written", err=True)
+        raise typer.Exit(EXIT_FAIL) from None
+    for w in warnings:
+        typer.echo(w.line(str(target)), err=True)
+    t = load_table(target)
+    typer.echo(f"{target}: {t.kind} table {t.name} with {len(t.rows)} rows, all unverified")
 
 
 def register(app: typer.Typer) -> None:
-    """Add this family's commands to the application."""
+    """Add the ``tables`` sub-app to the application."""
+    app.add_typer(tables_app, name="tables")
