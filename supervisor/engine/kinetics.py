@@ -231,6 +231,12 @@ def tissue_tensions(
     ends = starts[1:] + [n_seg]
     p_ref = np.array(p0, dtype=float)
     for s, e in zip(starts, ends, strict=True):
+        if e - s == 1:
+            # a single segment (possibly longer than the block limit): closed form
+            block = schreiner(p_ref, pa1[..., s, None], r[..., s, None], t[..., s, None], k)
+            out[..., s, :] = block
+            p_ref = block
+            continue
         tb = t[..., s:e, None]
         rel = np.cumsum(tb, axis=-2)  # elapsed time since the block's reference
         grow = np.exp(k * rel)  # exp(k (T_j - T_ref)), shape (..., L, n_comp)

@@ -7,14 +7,16 @@ Conventions (also printed in every result under ``conventions``):
 * Stops at multiples of the stop step, none shallower than the last stop; stop
   minutes are whole minutes and exclude travel.
 * The first stop is the deepest stop depth at which continuing to the next stop
-  would break the GF-low ceiling there (tensions taken on arrival at that next stop).
-  If even the deepest stop depth is inside that ceiling, it is the first stop.
-* The diver leaves a stop when, on arrival at the next stop (or the surface), no
-  compartment breaks the ceiling of the gradient factor in force there; the
+  would break the GF-low ceiling there.  Ceilings are always judged on the tensions
+  when leaving the current depth, with no credit for off-gassing during the travel
+  (the criterion of the no-stop limit, applied at every stop).
+* The diver leaves a stop when no compartment's ceiling, for the gradient factor in
+  force at the next stop (or the surface), is deeper than that next stop; the
   gradient factor is GF low at the first stop and GF high at the surface, linear
   in depth between.
 * The no-stop limit is the longest whole-minute bottom time whose GF-high ceiling
-  at leaving the bottom is at the surface; a dive within it has no stops.
+  at leaving the bottom is at the surface; a dive within it has no stops, and a dive
+  beyond it stops at least one minute at the last stop.
 * Deco gases switch on arrival at the first stop depth at or above their switch
   depth; the gas with the shallowest switch depth that is allowed is breathed.
 * Tissues start saturated with air (21 % O2, 79 % N2) at the surface pressure.
@@ -67,6 +69,8 @@ CONVENTIONS: dict[str, str] = {
     "travel excluded",
     "first_stop": "deepest stop depth at which continuing to the next stop would break the "
     "GF-low ceiling there",
+    "ceiling_check": "tensions on leaving the current depth, no credit for off-gassing "
+    "during travel",
     "gradient_factors": "GF low at the first stop, GF high at the surface, linear in depth between",
     "no_stop_limit": "longest whole-minute bottom time whose GF-high ceiling at leaving the "
     "bottom is at the surface",
@@ -514,7 +518,8 @@ class _Batch:
         ph2o = self.r0.ph2o_bar
         p_stop = float(self.p(d_stop))
         p_next = float(self.p(d_next))
-        travel = (d_stop - d_next) / self.r0.ascent_rate
+        # the ceiling is judged on the tensions when leaving the stop (no credit for
+        # off-gassing during the travel), the same criterion as the no-stop limit
         minutes = np.zeros(B, dtype=int)
         idx = np.flatnonzero(active)
         if idx.size == 0:
@@ -528,22 +533,15 @@ class _Batch:
             per = (float(breaks[0]), float(breaks[1]))
         pa_n = inspired_pressure(p_stop, fn2, ph2o)
         pa_h = inspired_pressure(p_stop, fhe, ph2o)
-        if travel > 0:
-            rn = (inspired_pressure(p_next, fn2, ph2o) - pa_n) / travel
-            rh = (inspired_pressure(p_next, fhe, ph2o) - pa_h) / travel
-        else:
-            rn, rh = np.zeros_like(fn2), np.zeros_like(fhe)
         he = bool(np.any(fhe > 0) or np.any(ph[idx] > 0))
 
         def clear(pn_, ph_, rows):
             """pn_/ph_ shaped (n, ..., C) for the subset ``rows`` (indices into idx)."""
             sh = (rows,) + (None,) * (pn_.ndim - 1)
-            a_n = schreiner(pn_, pa_n[sh], rn[sh], travel, self.kn)
             if he:
-                a_h = schreiner(ph_, pa_h[sh], rh[sh], travel, self.kh)
-                ceil = bm.ceiling(a_n, a_h, self.c, gfv[sh])
+                ceil = bm.ceiling(pn_, ph_, self.c, gfv[sh])
             else:
-                ceil = bm.ceiling_n2(a_n, self.c, gfv[sh])
+                ceil = bm.ceiling_n2(pn_, self.c, gfv[sh])
             return np.all(ceil <= p_next + _EPS, axis=-1)
 
         sub = np.arange(idx.size)
@@ -556,16 +554,14 @@ class _Batch:
             never = ~done & ~clear(sat_n, sat_h, sub)
             if np.any(never):
                 j = int(np.flatnonzero(never)[0])
-                a_n = schreiner(sat_n[j], pa_n[j], rn[j], travel, self.kn)
-                a_h = schreiner(sat_h[j], pa_h[j], rh[j], travel, self.kh)
-                ceil = bm.ceiling(a_n, a_h, self.c, gfv[j])
+                ceil = bm.ceiling(sat_n[j], sat_h[j], self.c, gfv[j])
                 cj = int(np.argmax(ceil))
                 nxt = "the surface" if d_next == 0 else f"{_num_out(d_next)} {self.r0.unit}"
                 raise ScheduleError(
                     f"the stop at {_num_out(d_stop)} {self.r0.unit} on {g_rows[j].name} can never "
                     f"clear: compartment {self.c.labels[cj]} (N2 half-time "
-                    f"{self.c.n2_half[cj]:g} min) would saturate above the tension allowed on "
-                    f"arriving at {nxt} with GF {gfv[j] * 100:.0f} %; choose a deeper last "
+                    f"{self.c.n2_half[cj]:g} min) would saturate above the tension that allows "
+                    f"going on to {nxt} with GF {gfv[j] * 100:.0f} %; choose a deeper last "
                     "stop, a higher GF high or an oxygen-rich decompression gas"
                 )
         cur_n, cur_h = pn[idx].copy(), ph[idx].copy()
@@ -673,12 +669,13 @@ class _Batch:
             # first stop?
             seek = here & (phase == 0)
             if seek.any():
-                travel = (s - nxt) / r0.ascent_rate
-                a_n, a_h = self.segment(pn, ph, s, nxt, np.full(B, travel), cur_gas)
                 broke = np.any(
-                    bm.ceiling(a_n, a_h, self.c, r0.gf_low) > self.p(nxt) + _EPS, axis=-1
+                    bm.ceiling(pn, ph, self.c, r0.gf_low) > self.p(nxt) + _EPS, axis=-1
                 )
                 newly = seek & broke
+                if i == i_last:
+                    # beyond the no-stop limit there is always a stop: the last one at least
+                    newly = seek
                 phase = np.where(newly, 1, phase)
                 first_stop = np.where(newly, s, first_stop)
             if sd is not None:
@@ -690,6 +687,15 @@ class _Batch:
                 mins, pn, ph, cycle = self.stop_minutes(
                     stopping, pn, ph, s, nxt, cur_gas, gf_next, r0.o2_air_break, cycle, "water"
                 )
+                if i == i_last:
+                    # a dive beyond the no-stop limit stops at least one minute at the last stop
+                    short = stopping & (mins == 0) & np.array([not st for st in stops])
+                    if short.any():
+                        one = np.where(short, 1.0, 0.0)
+                        pn2, ph2 = self.segment(pn, ph, cur, cur, one, cur_gas)
+                        pn = np.where(short[:, None], pn2, pn)
+                        ph = np.where(short[:, None], ph2, ph)
+                        mins = np.where(short, 1, mins)
                 self.record(stopping & (mins > 0), s, s, mins, cur_gas, "water", "stop")
                 for b in np.flatnonzero(stopping & (mins > 0)):
                     stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))

@@ -1,0 +1,103 @@
+"""Tests of the ``supervisor schedule`` command: options, JSON keys and exit codes."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from supervisor.cli import main
+
+CONTRACT = [
+    "--depth", "100", "--unit", "fsw", "--bottom-time", "30", "--gas", "air", "--model", "zhl16c",
+    "--gf", "30/85", "--descent-rate", "75", "--ascent-rate", "30", "--stop-step", "10",
+    "--last-stop", "10",
+]
+
+
+def run(args, capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(["schedule", *args])
+    out = capsys.readouterr()
+    return exc.value.code, out.out, out.err
+
+
+def test_contract_command_json(capsys):
+    code, out, err = run([*CONTRACT, "--deco-gas", "oxygen@20", "--json"], capsys)
+    assert code == 0, err
+    js = json.loads(out)
+    assert js["schema"] == "supervisor.schedule/1"
+    assert js["unit"] == "fsw"
+    for key in ("no_stop_limit_min", "stops", "total_stop_min", "total_ascent_min", "oxygen",
+                "conventions"):
+        assert key in js
+    assert js["stops"] and js["stops"][0]["depth"] > js["stops"][-1]["depth"]
+    assert {s["gas"] for s in js["stops"] if s["depth"] <= 20} == {"oxygen"}
+    assert js["oxygen"]["cns_percent"] > 0 and js["oxygen"]["otu"] > 0
+    assert js["total_stop_min"] == sum(s["minutes"] for s in js["stops"])
+
+
+def test_human_table(capsys):
+    code, out, _ = run(CONTRACT, capsys)
+    assert code == 0
+    assert "no-stop limit: " in out and "10 fsw" in out and "not a published table" in out
+
+
+def test_no_stop_dive_has_empty_stops(capsys):
+    code, out, _ = run(["--depth", "40", "--bottom-time", "20", "--json"], capsys)
+    js = json.loads(out)
+    assert code == 0 and js["stops"] == [] and js["total_stop_min"] == 0
+    assert isinstance(js["no_stop_limit_min"], int)
+
+
+def test_unlimited_no_stop_is_null(capsys):
+    code, out, _ = run(["--depth", "10", "--bottom-time", "300", "--json"], capsys)
+    assert code == 0 and json.loads(out)["no_stop_limit_min"] is None
+
+
+def test_msw(capsys):
+    code, out, _ = run(["--depth", "30", "--unit", "msw", "--bottom-time", "30", "--json"], capsys)
+    js = json.loads(out)
+    assert code == 0 and js["unit"] == "msw"
+    assert all(s["depth"] % 3 == 0 for s in js["stops"])
+
+
+@pytest.mark.parametrize(
+    ("args", "option"),
+    [
+        (["--depth", "-10", "--bottom-time", "30"], "--depth"),
+        (["--depth", "0", "--bottom-time", "30"], "--depth"),
+        (["--depth", "100", "--bottom-time", "1"], "--bottom-time"),
+        (["--depth", "100", "--bottom-time", "30", "--gf", "0/85"], "--gf"),
+        (["--depth", "100", "--bottom-time", "30", "--gf", "90/40"], "--gf"),
+        (["--depth", "100", "--bottom-time", "30", "--gf", "30-85"], "--gf"),
+        (["--depth", "100", "--bottom-time", "30", "--gas", "80/40"], "--gas"),
+        (["--depth", "100", "--bottom-time", "30", "--model", "foo"], "--model"),
+        (["--depth", "abc", "--bottom-time", "30"], "--depth"),
+        (["--depth", "100", "--bottom-time", "30", "--unit", "furlong"], "--unit"),
+        (["--depth", "100", "--bottom-time", "30", "--deco-gas", "oxygen"], "--deco-gas"),
+    ],
+)
+def test_bad_input_exit_2_one_line(args, option, capsys):
+    code, out, err = run(args, capsys)
+    assert code == 2
+    assert out == ""
+    lines = err.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("error: ") and option in lines[0]
+
+
+def test_cannot_clear_is_a_clear_message(capsys):
+    code, _, err = run(["--depth", "100", "--bottom-time", "60", "--last-stop", "20",
+                        "--gf", "30/70"], capsys)
+    assert code == 2
+    assert "never clear" in err and "compartment 16" in err
+
+
+def test_console_script_subprocess():
+    """One run of the installed console entry point in a subprocess."""
+    proc = subprocess.run([sys.executable, "-m", "supervisor", "schedule", *CONTRACT, "--json"],
+                          capture_output=True, text=True, timeout=60, check=False)
+    assert proc.returncode == 0, proc.stderr
+    assert json.loads(proc.stdout)["schema"] == "supervisor.schedule/1"
