@@ -8,7 +8,9 @@ law), the depth range between the hypoxic and the hyperoxic limit (minimum and
 maximum operating depth), the equivalent narcotic depth in either of the two
 conventions in use, and the gas density, either as an ideal gas or with the
 Peng-Robinson equation of state.  Limits themselves (PO2, density) are the
-contractor's policy; the functions take them as inputs.
+contractor's policy; the functions take them as inputs.  The figures support
+a supervisor's check of a plan; local codes, the contractor's manual and the
+diving medical officer govern the limits applied.
 
 References
 ----------
@@ -623,12 +625,13 @@ def compressibility(
     Notes
     -----
     P = R T / (v - b) - a(T) / (v^2 + 2 b v - b^2), solved for the gas root in
-    Z, then v -> v - c.  Against CoolProp at 15 degC (tests/test_gas.py) the
-    model is within 0.6 % up to 10 bar for air, oxygen, nitrogen, helium and
-    their mixtures; at 200-300 bar within 2 % for air, nitrox, oxygen and
-    nitrogen, within 4 % for helium and helium mixtures, where it gives Z
-    low (contents high) for heliox and trimix.  CoolProp's own helium-oxygen
-    mixing has no fitted departure term, so neither is a measurement.
+    Z, then v -> v - c.  Measured against CoolProp 8 at 0-30 degC
+    (tests/test_gas.py): within 0.5 % up to 10 bar for air, oxygen, nitrogen,
+    helium and their mixtures; at 100-300 bar within 2.1 % for air, nitrox,
+    oxygen and nitrogen, 3.5 % for helium and 4.5 % for heliox and trimix,
+    where it gives Z low (contents high by that much).  CoolProp's own
+    helium-oxygen pair has no fitted departure term, so neither is a
+    measurement: keep a pressure reserve on helium banks.
     """
     p, t = _state(p_abs_bar, temperature_c)
     if eos == "ideal":
