@@ -320,7 +320,7 @@ def _coolprop_density(fluid: str, p_bar: np.ndarray, t_k: float) -> np.ndarray:
 @pytest.mark.parametrize(("gas", "fluid"), FLUIDS, ids=IDS)
 def test_density_vs_coolprop_up_to_10_bar(gas, fluid, temperature_c, eos):
     """Gas density vs CoolProp ``PropsSI('D','T',T,'P',P,fluid)`` (LIBRARY, CoolProp 8): within
-    1 % to 10 bar.  Measured: ideal within 0.8 %, Peng-Robinson within 0.5 %."""
+    1 % to 10 bar.  Measured: ideal within 1.0 % (oxygen at 0 degC), Peng-Robinson 0.5 %."""
     p = np.array([1.01325, 2.0, 4.0, 5.0, 7.0, 10.0])
     ours = np.asarray(gas_density(p, gas, temperature_c, eos))
     ref = _coolprop_density(fluid, p, temperature_c + 273.15)
@@ -345,10 +345,12 @@ def test_density_at_depth_vs_coolprop():
 
 
 BANK_P = np.array([100.0, 200.0, 232.0, 300.0])
-# Tolerance at bank pressures (measured against CoolProp at 15 degC): 2 % for the
-# nitrogen-oxygen gases, 4.5 % for helium and its mixtures.  CoolProp's own helium-
-# oxygen pair has no fitted departure function, so its heliox values are models too.
-BANK_TOL = [0.02, 0.02, 0.045, 0.045, 0.02, 0.045, 0.045]
+# Tolerance at bank pressures, from the deviation measured against CoolProp at 15 degC
+# (air 1.1 %, O2 1.8 %, He 3.3 %, heliox 16/84 2.4 %, nitrox 1.2 %, trimix 4.0 %,
+# heliox 10/90 1.5 %) with a small margin, so a change to the model shows here.
+# CoolProp's own helium-oxygen pair has no fitted departure function, so its heliox
+# values are models too.
+BANK_TOL = [0.015, 0.02, 0.035, 0.03, 0.015, 0.045, 0.02]
 
 
 @pytest.mark.parametrize(
