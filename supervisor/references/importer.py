@@ -79,10 +79,10 @@ class _Cells:
     """Typed access to one CSV row, with errors naming file, row and column."""
 
     def __init__(self, file: str, number: int, row: dict[str, str]) -> None:
-        self.file, self.number, self.row = file, number, row
+        self.file, self.row_no, self.row = file, number, row
 
     def fail(self, column: str, message: str) -> InputError:
-        return InputError(f"{self.file}: row {self.number}, column {column}", message)
+        return InputError(f"{self.file}: row {self.row_no}, column {column}", message)
 
     def text(self, column: str, default: str = "") -> str:
         return (self.row.get(column) or default).strip()
@@ -158,9 +158,13 @@ def _no_stop_rows(path: Path, header: list[str], rows: list[dict[str, str]]
     for n, rec in enumerate(rows, start=1):
         c = _Cells(str(path), n, rec)
         lim_text = c.text("no_stop_limit").lower()
-        lim: Any = "unlimited" if lim_text == "unlimited" else c.number("no_stop_limit")
-        if lim_text != "unlimited" and lim is None:  # pragma: no cover - number() raised
-            raise c.fail("no_stop_limit", "expected minutes or unlimited")
+        lim: Any = "unlimited"
+        if lim_text != "unlimited":
+            try:
+                lim = c.number("no_stop_limit")
+            except InputError:
+                raise c.fail("no_stop_limit", f"got {c.text('no_stop_limit')!r}; expected "
+                             "minutes (a number >= 0) or unlimited") from None
         row: dict[str, Any] = {"depth": c.number("depth", positive=True), "no_stop_limit": lim}
         row["repetitive_groups"] = {g: c.number(col, required=False, positive=True)
                                     for col, g in groups if c.text(col)}
