@@ -14,7 +14,8 @@ without a Python loop over segments: within a block of segments,
 
     P_n = exp(-k (T_n - T_ref)) * [P_ref + sum_(j<=n) c_j exp(k (T_j - T_ref))],
 
-T being elapsed time; blocks are cut so the exponent stays far from overflow.
+T being elapsed time; blocks are cut so the exponent stays far from overflow and
+the working arrays stay in cache.
 
 References
 ----------
@@ -37,6 +38,8 @@ LN2 = float(np.log(2.0))
 #: Largest k * (time span) allowed inside one block of the vectorised scan.
 #: exp(600) ~ 4e260 stays below the float64 maximum (~1.8e308) with margin.
 _MAX_EXPONENT = 600.0
+#: Largest number of segments in one block (keeps the working arrays in cache).
+_BLOCK_LEN = 2048
 
 
 def rate_constant(half_time_min: ArrayLike) -> NDArray[np.float64]:
@@ -149,8 +152,15 @@ def schreiner(
     return p0 * (1.0 - one_minus_d) + pa * one_minus_d + r * (t - one_minus_d / k)
 
 
-def _block_starts(t_span: NDArray[np.float64], k_max: float) -> list[int]:
-    """Indices where blocks of the scan start, so that k_max * block span <= limit."""
+def _block_starts(
+    t_span: NDArray[np.float64], k_max: float, max_len: int = _BLOCK_LEN
+) -> list[int]:
+    """Indices where blocks of the scan start.
+
+    A block holds at most ``max_len`` segments (so its arrays stay in cache) and
+    spans at most ``_MAX_EXPONENT / k_max`` minutes (so the growth factor cannot
+    overflow); a single segment longer than that forms a block of its own.
+    """
     n = t_span.shape[-1]
     cum = np.cumsum(t_span)
     starts = [0]
@@ -158,9 +168,8 @@ def _block_starts(t_span: NDArray[np.float64], k_max: float) -> list[int]:
     while True:
         s = starts[-1]
         base = cum[s - 1] if s > 0 else 0.0
-        # last index j with cum[j] - base <= limit; at least one segment per block
         e = int(np.searchsorted(cum, base + limit, side="right"))
-        e = max(e, s + 1)
+        e = min(max(e, s + 1), s + max_len)
         if e >= n:
             return starts
         starts.append(e)
@@ -225,11 +234,25 @@ def tissue_tensions(
     out = np.empty(batch + (n_seg, n_comp))
     if n_seg == 0:
         return out
-    # One block boundary set for the whole batch, from the longest span per index.
-    span = t.reshape(-1, n_seg).max(axis=0) if batch else t
-    starts = _block_starts(span, float(k.max()))
+    # Flatten the batch; scan cache-sized groups of profiles, each in blocks of segments.
+    rows = int(np.prod(batch)) if batch else 1
+    t2, pa2_, r2 = t.reshape(rows, n_seg), pa1.reshape(rows, n_seg), r.reshape(rows, n_seg)
+    p02 = np.array(p0, dtype=float).reshape(rows, n_comp)
+    out2 = out.reshape(rows, n_seg, n_comp)
+    group = max(1, _BLOCK_LEN // n_seg)
+    for g0 in range(0, rows, group):
+        g1 = min(rows, g0 + group)
+        _scan(t2[g0:g1], pa2_[g0:g1], r2[g0:g1], p02[g0:g1], k, out2[g0:g1])
+    return out
+
+
+def _scan(t, pa1, r, p_ref, k, out) -> None:
+    """Block scan of the Schreiner recurrence for a group of profiles (2-D inputs)."""
+    n_seg = t.shape[-1]
+    # One block boundary set for the group, from the longest span per index.
+    starts = _block_starts(t.max(axis=0), float(k.max()))
     ends = starts[1:] + [n_seg]
-    p_ref = np.array(p0, dtype=float)
+    inv_k = 1.0 / k
     for s, e in zip(starts, ends, strict=True):
         if e - s == 1:
             # a single segment (possibly longer than the block limit): closed form
@@ -237,20 +260,22 @@ def tissue_tensions(
             out[..., s, :] = block
             p_ref = block
             continue
-        tb = t[..., s:e, None]
-        rel = np.cumsum(tb, axis=-2)  # elapsed time since the block's reference
-        grow = np.exp(k * rel)  # exp(k (T_j - T_ref)), shape (..., L, n_comp)
-        prev = np.empty_like(grow)
-        prev[..., 0, :] = 1.0
-        prev[..., 1:, :] = grow[..., :-1, :]
-        one_minus_d = 1.0 - prev / grow  # 1 - exp(-k t_j)
-        c = pa1[..., s:e, None] * one_minus_d + r[..., s:e, None] * (tb - one_minus_d / k)
-        acc = np.cumsum(c * grow, axis=-2)
+        tb = t[..., s:e]
+        # G_j = exp(k (T_j - T_ref)); c_j G_j = (G_j - G_(j-1)) (P_alv0 - R/k) + R t_j G_j
+        grow = np.exp(np.cumsum(tb, axis=-1)[..., None] * k)
+        acc = np.empty_like(grow)
+        acc[..., 0, :] = 1.0
+        acc[..., 1:, :] = grow[..., :-1, :]
+        np.subtract(grow, acc, out=acc)
+        tmp = pa1[..., s:e, None] - r[..., s:e, None] * inv_k
+        np.multiply(acc, tmp, out=acc)
+        np.multiply(grow, (r[..., s:e] * tb)[..., None], out=tmp)
+        np.add(acc, tmp, out=acc)
+        np.cumsum(acc, axis=-2, out=acc)
         acc += p_ref[..., None, :]
-        block = acc / grow
-        out[..., s:e, :] = block
+        block = out[..., s:e, :]
+        np.divide(acc, grow, out=block)
         p_ref = block[..., -1, :]
-    return out
 
 
 def final_tensions(
