@@ -94,16 +94,6 @@ def test_first_stop_is_where_next_stop_would_break_gf_low():
         assert ev.surfacing_gf <= r.request.gf_high + 1e-9
 
 
-def test_shortened_stops_break_the_ceiling():
-    r = plan_schedule(ScheduleRequest(depth=130, bottom_time_min=40, **FSW))
-    prof = Profile(unit="fsw")
-    for s in r.profile.segments:
-        m = s.minutes * (0.3 if s.label == "stop" else 1.0)
-        prof.add(s.end_depth, m, s.gas, s.place, s.label)
-    ev = evaluate_profile(prof, "zhl16c", 0.3, 0.85, first_stop_depth=r.first_stop_depth)
-    assert ev.ceiling_broken and ev.worst_excess_bar > 0 and ev.first_break_min is not None
-
-
 def test_oxygen_deco_shortens_decompression():
     air = plan_schedule(ScheduleRequest(depth=150, bottom_time_min=40, **FSW))
     o2 = plan_schedule(ScheduleRequest(depth=150, bottom_time_min=40,
