@@ -1,0 +1,867 @@
+"""The plan file: one diving job written as TOML and validated with pydantic.
+
+A plan holds the job, the unit (stated once), the site conditions, the
+recompression chamber, the team, the gas supply, the contractor's policy
+limits and the proposed dives.  :func:`load_plan` reads a file and raises
+:class:`PlanValidationError` listing every problem as ``(field path, message)``,
+for example ``dives[1].stops[0].depth: got -10; expected a depth >= 0 fsw``.
+:func:`plan_json_schema` exports the schema (``supervisor plan schema``).
+
+Depths in a plan are in the plan's unit (fsw or msw, both pressure units);
+rates are that unit per minute; times are minutes; pressures bar gauge;
+volumes litres.
+
+Policy defaults (the contractor's own choice; a plan that breaks its policy
+fails):
+
+======================  =================  =============================================
+field                   default            source of the default
+======================  =================  =============================================
+model                   zhl16c             common practice, no source
+gf_low, gf_high         30 %, 85 %         common practice, no source
+po2_bottom_max          1.4 bar            NOAA working maximum 1.4 ATA (NOAA Diving
+                                           Manual; VERIFIED)
+po2_decompression_max   1.6 bar            commercial practice, from memory
+po2_chamber_max         2.8 bar            Navy treatment practice 2.8 ata (U.S. Navy
+                                           Diving Manual Rev 4 Change A; OLDER-EDITION)
+density_warn/fail       5.2 / 6.2 g/L      Anthony & Mitchell (2016) recommendation,
+                                           from memory
+end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY)
+descent_rate_max        75 fsw/min         U.S. Navy Diving Manual ch. 9, from memory
+ascent_rate             30 fsw/min         U.S. Navy Diving Manual Rev 4 Change A ch. 9
+                                           (OLDER-EDITION)
+ascent_rate_min/max     20 / 40 fsw/min    U.S. Navy Diving Manual Rev 4 Change A ch. 14
+                                           tolerance (OLDER-EDITION)
+stop_step, last_stop    10 fsw / 3 msw     common practice, no source
+======================  =================  =============================================
+
+msw defaults are the fsw values converted and rounded to a practical figure.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import hashlib
+import json
+import tomllib
+import typing
+from pathlib import Path
+from typing import Annotated, Any, Literal
+
+from pydantic import (
+    AfterValidator,
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    Field,
+    ValidationError,
+    ValidationInfo,
+    model_validator,
+)
+
+from supervisor import constants as C
+from supervisor.errors import InputError, PlanError
+from supervisor.gas import Gas, parse_gas
+from supervisor.plan_errors import Problems, problems_from, show
+from supervisor.profile import Profile
+from supervisor.units import altitude_pressure, convert_pressure
+
+SCHEMA_ID = "supervisor-plan/1"
+
+Jurisdiction = Literal["osha-1910-t", "uscg-46-197-b", "none"]
+PlanUnit = Literal["fsw", "msw"]
+Mode = Literal[
+    "scuba", "surface-supplied-air", "surface-supplied-nitrox", "surface-supplied-heliox"
+]
+Role = Literal["supervisor", "diver", "standby-diver", "tender", "chamber-operator"]
+Decompression = Literal["none", "in-water", "in-water-oxygen", "surface-oxygen"]
+StopPlace = Literal["water", "chamber"]
+Bell = Literal["none", "open", "closed"]
+ModelName = Literal["zhl16a", "zhl16b", "zhl16c"]
+SourceKind = Literal["hp-bank", "cylinders", "compressor"]
+
+ROLES: tuple[str, ...] = typing.get_args(Role)
+MODES: tuple[str, ...] = typing.get_args(Mode)
+
+#: Deepest depth a plan may state [fsw]; anything deeper is taken as a typing error.
+MAX_PLAN_DEPTH_FSW = 2000.0
+
+#: Chamber compression rate used to draw a surface-decompression profile [fsw/min]:
+#: "compress in the chamber to 50 fsw at up to 100 fsw/min", U.S. Navy Diving Manual
+#: Rev 7 ch. 9 surface decompression on oxygen (SECONDARY).
+CHAMBER_COMPRESSION_FSW_PER_MIN = 100.0
+
+# Policy defaults per unit: (fsw value, msw value).
+_UNIT_DEFAULTS: dict[str, tuple[float, float]] = {
+    "end_max": (100.0, 30.0),
+    "descent_rate_max": (75.0, 23.0),
+    "ascent_rate": (30.0, 9.0),
+    "ascent_rate_min": (20.0, 6.0),
+    "ascent_rate_max": (40.0, 12.0),
+    "stop_step": (10.0, 3.0),
+    "last_stop": (10.0, 3.0),
+}
+
+
+class PlanValidationError(PlanError):
+    """A plan that does not validate; ``problems`` lists ``(field path, message)``.
+
+    Parameters
+    ----------
+    problems : list of (str, str)
+        One entry per problem: the field path such as ``dives[0].max_depth`` and
+        a message giving the value and the accepted form.
+    """
+
+    def __init__(self, problems: list[tuple[str, str]]) -> None:
+        self.problems = list(problems)
+        field, message = self.problems[0] if self.problems else ("plan", "invalid")
+        super().__init__(field, message)
+
+    def lines(self) -> list[str]:
+        """Return one ``error: FIELD: MESSAGE`` line per problem."""
+        return [f"error: {f}: {m}" for f, m in self.problems]
+
+    def __str__(self) -> str:
+        return "\n".join(f"{f}: {m}" for f, m in self.problems)
+
+
+# ---------------------------------------------------------------------------
+# field types
+
+
+def _ctx_unit(info: ValidationInfo | None) -> str:
+    ctx = info.context if info is not None else None
+    unit = ctx.get("unit") if isinstance(ctx, dict) else None
+    return unit if unit in ("fsw", "msw") else "plan unit"
+
+
+def _max_depth_in(unit: str) -> float:
+    if unit == "msw":
+        return round(float(convert_pressure(MAX_PLAN_DEPTH_FSW, "fsw", "msw")), 1)
+    return MAX_PLAN_DEPTH_FSW
+
+
+def _check_depth(value: float, info: ValidationInfo) -> float:
+    unit = _ctx_unit(info)
+    if value < 0:
+        raise ValueError(f"got {value:g}; expected a depth >= 0 {unit}")
+    top = _max_depth_in(unit if unit != "plan unit" else "fsw")
+    if value > top:
+        raise ValueError(f"got {value:g}; expected a depth <= {top:g} {unit}")
+    return value
+
+
+def _check_rate(value: float, info: ValidationInfo) -> float:
+    unit = _ctx_unit(info)
+    if value <= 0:
+        raise ValueError(f"got {value:g}; expected a rate > 0 {unit}/min")
+    if value > 300:
+        raise ValueError(f"got {value:g}; expected a rate <= 300 {unit}/min")
+    return value
+
+
+def _check_gas(value: str, info: ValidationInfo) -> str:
+    parse_gas(value, field=info.field_name or "gas")
+    return value.strip()
+
+
+def _to_date(value: Any) -> Any:
+    if isinstance(value, str):
+        try:
+            return _dt.date.fromisoformat(value.strip())
+        except ValueError:
+            raise ValueError(f"got {value!r}; expected a date such as 2026-05-14") from None
+    if isinstance(value, _dt.datetime):
+        return value.date()
+    return value
+
+
+def _to_roles(value: Any) -> Any:
+    return [value] if isinstance(value, str) else value
+
+
+Depth = Annotated[float, AfterValidator(_check_depth)]
+Rate = Annotated[float, AfterValidator(_check_rate)]
+GasText = Annotated[str, AfterValidator(_check_gas)]
+
+
+def _depth_field(description: str, default: Any = ..., **kw: Any) -> Any:
+    return Field(default, description=description + " [plan unit]", **kw)
+
+
+class _Section(BaseModel):
+    model_config = ConfigDict(extra="forbid", strict=True, allow_inf_nan=False)
+
+
+# ---------------------------------------------------------------------------
+# sections
+
+
+class Job(_Section):
+    """Who, where and under which rules."""
+
+    title: str = Field(min_length=1, description="Job title")
+    site: str = Field(min_length=1, description="Dive site name")
+    date: Annotated[_dt.date, BeforeValidator(_to_date)] = Field(
+        description="Planned date, a TOML date such as 2026-05-14"
+    )
+    client: str = Field("", description="Client")
+    contractor: str = Field(min_length=1, description="Diving contractor")
+    supervisor: str = Field(
+        min_length=1, description="Name of the diving supervisor (a team member)"
+    )
+    jurisdiction: Jurisdiction = Field(
+        description="Rule set: osha-1910-t (29 CFR 1910 Subpart T), uscg-46-197-b "
+        "(46 CFR 197 Subpart B) or none"
+    )
+
+
+class EmergencyContacts(_Section):
+    """Call numbers kept at the site; an empty or missing entry counts as absent."""
+
+    chamber: str | None = Field(None, description="Operational chamber (needed when none on site)")
+    hospital: str | None = Field(None, description="Hospital")
+    physician: str | None = Field(None, description="Diving physician")
+    transport: str | None = Field(None, description="Emergency transport")
+    uscg_rcc: str | None = Field(None, description="Nearest USCG Rescue Coordination Center")
+
+
+class Site(_Section):
+    """Site conditions and what is kept at the site (``None`` = not stated)."""
+
+    water: Literal["salt", "fresh"] = Field(description="Water: salt or fresh")
+    altitude_m: float = Field(
+        0.0, ge=-500, le=6000, description="Altitude of the water surface [m]"
+    )
+    current_kt: float = Field(ge=0, le=15, description="Water current [kt]")
+    visibility_m: float | None = Field(None, ge=0, le=100, description="Underwater visibility [m]")
+    water_temperature_c: float | None = Field(
+        None, ge=-3, le=40, description="Water temperature [degC]"
+    )
+    confined_space: bool = Field(description="Enclosed or confining space")
+    marine_traffic: bool = Field(description="Waters that can carry marine traffic")
+    from_vessel: bool = Field(description="Diving from a vessel")
+    night: bool = Field(description="Diving at night")
+    emergency_contacts: EmergencyContacts = Field(
+        default_factory=EmergencyContacts, description="Emergency call list"
+    )
+    first_aid_kit: bool | None = Field(None, description="Physician-approved first-aid kit on site")
+    first_aid_handbook: bool | None = Field(None, description="First-aid handbook on site")
+    resuscitator: bool | None = Field(None, description="Bag-type manual resuscitator on site")
+    tables_on_site: bool | None = Field(
+        None, description="Decompression, repetitive and no-decompression tables on site"
+    )
+    safe_practices_manual: bool | None = Field(None, description="Safe practices manual on site")
+    emergency_comms: bool | None = Field(None, description="Two-way link for emergency help")
+    diver_voice_comms: bool | None = Field(
+        None, description="Two-way voice between each surface-supplied diver and the surface"
+    )
+    code_flag_a: bool | None = Field(None, description="Rigid code flag A, at least 1 m high")
+    code_flag_a_lit: bool | None = Field(None, description="Code flag A lit at night")
+
+
+class ChamberEquipment(_Section):
+    """Chamber fittings (``None`` = not stated)."""
+
+    pressure_gauges: bool | None = Field(None, description="Gauge per occupied compartment")
+    bibs_masks: int | None = Field(None, ge=0, le=50, description="BIBS masks [count]")
+    voice_comms: bool | None = Field(None, description="Two-way voice chamber to site")
+    viewport: bool | None = Field(None, description="Viewport")
+    interior_lighting: bool | None = Field(None, description="Interior lighting")
+    treatment_tables: bool | None = Field(None, description="Treatment tables on site")
+    treatment_gas: bool | None = Field(None, description="Treatment gas on site")
+
+
+class Chamber(_Section):
+    """The recompression chamber (state ``on_site = false`` when there is none)."""
+
+    on_site: bool = Field(description="A chamber is at the dive location")
+    ready: bool = Field(description="The chamber is ready for use during the dives")
+    depth_capability: Depth | None = _depth_field("Deepest pressure the chamber reaches", None)
+    locks: int | None = Field(None, ge=1, le=4, description="Number of locks [count]")
+    multiplace: bool | None = Field(None, description="Holds more than one person")
+    travel_time_min: float | None = Field(
+        None, ge=0, le=1440, description="Time to bring a diver to the chamber [min]"
+    )
+    operator_available: bool | None = Field(
+        None, description="A member able to run the chamber is present"
+    )
+    equipment: ChamberEquipment = Field(
+        default_factory=ChamberEquipment, description="Chamber fittings"
+    )
+
+
+class Member(_Section):
+    """A team member."""
+
+    name: str = Field(min_length=1, description="Name")
+    role: Annotated[list[Role], BeforeValidator(_to_roles)] = Field(
+        min_length=1,
+        description="Role or list of roles: supervisor, diver, standby-diver, tender, "
+        "chamber-operator",
+    )
+    first_aid_cpr: bool = Field(description="Holds current CPR and first-aid training")
+    physics_physiology: bool = Field(description="Trained in diving physics and physiology")
+
+    def has(self, role: str) -> bool:
+        """Return whether the member holds ``role``."""
+        return role in self.role
+
+
+class GasSource(_Section):
+    """A primary or secondary breathing-gas source."""
+
+    kind: SourceKind = Field(description="hp-bank, cylinders or compressor")
+    gas: GasText = Field("air", description="Gas such as air, nitrox32, 32/0 or 16/84")
+    water_volume_l: float | None = Field(
+        None, gt=0, le=100000, description="Total water volume of the bank or cylinders [L]"
+    )
+    pressure_bar: float | None = Field(
+        None, gt=0, le=450, description="Charge pressure [bar gauge]"
+    )
+    delivery_lpm: float | None = Field(
+        None, gt=0, le=100000, description="Compressor free-gas delivery [L/min]"
+    )
+
+    @model_validator(mode="after")
+    def _complete(self) -> GasSource:
+        problems: list[tuple[str, str]] = []
+        if self.kind == "compressor":
+            if self.delivery_lpm is None:
+                problems.append(
+                    ("delivery_lpm", "missing; a compressor needs its delivery [L/min]")
+                )
+        else:
+            for name, what in (("water_volume_l", "[L]"), ("pressure_bar", "[bar gauge]")):
+                if getattr(self, name) is None:
+                    problems.append((name, f"missing; a {self.kind} source needs it {what}"))
+        if problems:
+            raise Problems(problems)
+        return self
+
+
+class Cylinder(_Section):
+    """A cylinder of stored gas (bailout or oxygen)."""
+
+    gas: GasText = Field("air", description="Gas such as air, oxygen or 32/0")
+    water_volume_l: float = Field(gt=0, le=10000, description="Water volume [L]")
+    pressure_bar: float = Field(gt=0, le=450, description="Charge pressure [bar gauge]")
+
+
+class Bailout(Cylinder):
+    """A bailout cylinder carried by one diver (diver-carried reserve)."""
+
+    diver: str = Field(min_length=1, description="Name of the diver carrying it")
+
+
+class GasSupply(_Section):
+    """Breathing-gas sources, bailouts and oxygen."""
+
+    primary: GasSource = Field(description="Primary breathing-gas source")
+    secondary: GasSource | None = Field(
+        None, description="Secondary (dive-location reserve) source"
+    )
+    bailout: list[Bailout] = Field(default_factory=list, description="Bailout cylinder per diver")
+    oxygen_decompression: Cylinder | None = Field(
+        None, description="Oxygen for in-water or chamber decompression"
+    )
+    oxygen_treatment: Cylinder | None = Field(None, description="Oxygen kept for a treatment")
+
+
+class Policy(_Section):
+    """The contractor's own limits; ``None`` takes the unit's default (module docstring)."""
+
+    model: ModelName = Field("zhl16c", description="Decompression model")
+    gf_low: float = Field(30.0, gt=0, le=100, description="Gradient factor low [%]")
+    gf_high: float = Field(85.0, gt=0, le=100, description="Gradient factor high [%]")
+    po2_bottom_max: float = Field(1.4, gt=0, le=3, description="Bottom PO2 limit [bar]")
+    po2_decompression_max: float = Field(
+        1.6, gt=0, le=3, description="In-water decompression PO2 limit [bar]"
+    )
+    po2_chamber_max: float = Field(2.8, gt=0, le=3.5, description="Chamber PO2 limit [bar]")
+    density_warn_g_per_l: float = Field(5.2, gt=0, le=30, description="Gas density warning [g/L]")
+    density_fail_g_per_l: float = Field(6.2, gt=0, le=30, description="Gas density limit [g/L]")
+    end_max: Depth | None = _depth_field("Equivalent narcotic depth limit", None)
+    reference_table: str | None = Field(None, description="Name of the reference table in use")
+    descent_rate_max: Rate | None = Field(None, description="Fastest descent [plan unit/min]")
+    ascent_rate: Rate | None = Field(None, description="Planned ascent rate [plan unit/min]")
+    ascent_rate_min: Rate | None = Field(None, description="Slowest ascent [plan unit/min]")
+    ascent_rate_max: Rate | None = Field(None, description="Fastest ascent [plan unit/min]")
+    stop_step: Depth | None = _depth_field("Spacing of decompression stops", None)
+    last_stop: Depth | None = _depth_field("Shallowest water stop", None)
+
+    @model_validator(mode="after")
+    def _ordered(self) -> Policy:
+        problems: list[tuple[str, str]] = []
+        if self.gf_low > self.gf_high:
+            problems.append(
+                ("gf_low", f"got {self.gf_low:g} %; expected <= gf_high ({self.gf_high:g} %)")
+            )
+        if self.density_warn_g_per_l > self.density_fail_g_per_l:
+            problems.append(
+                (
+                    "density_warn_g_per_l",
+                    f"got {self.density_warn_g_per_l:g} g/L; expected <= density_fail_g_per_l "
+                    f"({self.density_fail_g_per_l:g} g/L)",
+                )
+            )
+        lo, hi = self.ascent_rate_min, self.ascent_rate_max
+        if lo is not None and hi is not None and lo > hi:
+            problems.append(
+                ("ascent_rate_min", f"got {lo:g}; expected <= ascent_rate_max ({hi:g})")
+            )
+        if self.stop_step is not None and self.stop_step <= 0:
+            problems.append(("stop_step", f"got {self.stop_step:g}; expected a step > 0"))
+        if problems:
+            raise Problems(problems)
+        return self
+
+    def resolved(self, unit: str) -> Policy:
+        """Return a copy with every ``None`` default filled for ``unit``."""
+        idx = 1 if unit == "msw" else 0
+        fill = {k: v[idx] for k, v in _UNIT_DEFAULTS.items() if getattr(self, k) is None}
+        if self.last_stop is None and self.stop_step is not None:
+            fill["last_stop"] = self.stop_step
+        return self.model_copy(update=fill)
+
+
+class Stop(_Section):
+    """A planned decompression stop."""
+
+    depth: Depth = _depth_field("Stop depth (chamber stops: chamber pressure)")
+    minutes: float = Field(gt=0, le=1440, description="Stop time [min]")
+    gas: GasText | None = Field(None, description="Gas at the stop; the dive's gas if absent")
+    place: StopPlace = Field("water", description="water or chamber")
+
+
+def _mode_gas_problem(mode: str, gas: Gas, text: str) -> str | None:
+    if mode == "surface-supplied-air" and gas.name != "air":
+        return f"got {text!r}; expected air for mode {mode}"
+    if mode == "surface-supplied-nitrox" and (gas.fhe > 0 or gas.fo2 <= C.FO2_AIR + 1e-9):
+        return f"got {text!r}; expected nitrox (more than 21 % O2, no helium) for mode {mode}"
+    if mode == "surface-supplied-heliox" and (gas.fhe <= 0 or gas.fn2 > 0.005):
+        return f"got {text!r}; expected heliox O2/He percentages adding up to 100 for mode {mode}"
+    return None
+
+
+class Dive(_Section):
+    """One proposed dive."""
+
+    id: str = Field(min_length=1, description="Dive identifier, unique in the plan")
+    diver: str = Field(min_length=1, description="Name of the diver (a team member)")
+    mode: Mode = Field(description="Diving mode")
+    gas: GasText = Field(description="Bottom gas such as air, nitrox32, 32/0 or 16/84")
+    max_depth: Depth = _depth_field("Maximum depth")
+    bottom_time_min: float = Field(
+        gt=0, le=1440, description="From leaving the surface to leaving the bottom [min]"
+    )
+    descent_rate: Rate | None = Field(None, description="Descent rate [plan unit/min]")
+    ascent_rate: Rate | None = Field(None, description="Ascent rate [plan unit/min]")
+    decompression: Decompression = Field(
+        description="none, in-water, in-water-oxygen or surface-oxygen"
+    )
+    stops: list[Stop] = Field(default_factory=list, description="Planned stops, deepest first")
+    surface_interval_min: float | None = Field(
+        None, ge=0, le=10080, description="Surface interval before this dive (repetitive) [min]"
+    )
+    previous_dive: str | None = Field(
+        None, description="Id of the dive the surface interval follows"
+    )
+    surface_transfer_min: float | None = Field(
+        None,
+        ge=0,
+        le=60,
+        description="Surface decompression: time on deck before compression [min]",
+    )
+    cold: bool = Field(False, description="Diver cold during the dive")
+    strenuous: bool = Field(False, description="Strenuous work")
+    line_tended: bool = Field(description="Line-tended from the surface")
+    buddy: str | None = Field(None, description="In-water buddy in visual contact (a team member)")
+    standby_diver: str | None = Field(None, description="Standby diver (a team member)")
+    tender: str | None = Field(None, description="Tender (a team member)")
+    entry_diver: str | None = Field(
+        None, description="Diver at the underwater entry point of a confined space"
+    )
+    heavy_gear: bool = Field(False, description="Heavy gear worn")
+    bell: Bell = Field("none", description="Bell used: none, open or closed")
+    stage: bool = Field(False, description="In-water stage provided")
+    standby_hose: bool = Field(False, description="Extra hose for the standby diver")
+    direct_ascent_possible: bool = Field(True, description="The diver can ascend directly")
+
+    @model_validator(mode="after")
+    def _consistent(self, info: ValidationInfo) -> Dive:
+        unit = _ctx_unit(info)
+        problems: list[tuple[str, str]] = []
+        gas = parse_gas(self.gas)
+        msg = _mode_gas_problem(self.mode, gas, self.gas)
+        if msg:
+            problems.append(("gas", msg))
+        if self.max_depth <= 0:
+            problems.append(("max_depth", f"got {self.max_depth:g}; expected a depth > 0 {unit}"))
+        last: dict[str, float] = {}
+        seen_chamber = False
+        for i, s in enumerate(self.stops):
+            if s.depth <= 0:
+                problems.append(
+                    (f"stops[{i}].depth", f"got {s.depth:g}; expected a stop deeper than 0 {unit}")
+                )
+            if s.place == "chamber":
+                seen_chamber = True
+            elif seen_chamber:
+                problems.append(
+                    (
+                        f"stops[{i}].place",
+                        "got 'water' after a chamber stop; expected the water "
+                        "stops first, then the chamber stops",
+                    )
+                )
+            if s.place == "water" and s.depth >= self.max_depth > 0:
+                problems.append(
+                    (
+                        f"stops[{i}].depth",
+                        f"got {s.depth:g}; expected a water stop shallower than max_depth "
+                        f"({self.max_depth:g} {unit})",
+                    )
+                )
+            prev = last.get(s.place)
+            if prev is not None and s.depth > prev:
+                problems.append(
+                    (
+                        f"stops[{i}].depth",
+                        f"got {s.depth:g} after a {s.place} stop at {prev:g} {unit}; expected "
+                        "stops deepest first",
+                    )
+                )
+            last[s.place] = s.depth
+        if self.previous_dive is not None and self.surface_interval_min is None:
+            problems.append(
+                (
+                    "surface_interval_min",
+                    "missing; a dive with previous_dive needs its surface interval [min]",
+                )
+            )
+        if problems:
+            raise Problems(problems)
+        return self
+
+    @property
+    def gas_mix(self) -> Gas:
+        """The bottom gas as a :class:`~supervisor.gas.Gas`."""
+        return parse_gas(self.gas)
+
+    def stop_gas(self, stop: Stop) -> Gas:
+        """Return the gas breathed at ``stop`` (the dive's gas when the stop names none)."""
+        return parse_gas(stop.gas) if stop.gas else self.gas_mix
+
+    @property
+    def water_stops(self) -> list[Stop]:
+        """Planned in-water stops, deepest first."""
+        return [s for s in self.stops if s.place == "water"]
+
+    @property
+    def chamber_stops(self) -> list[Stop]:
+        """Planned chamber stops (surface decompression), deepest first."""
+        return [s for s in self.stops if s.place == "chamber"]
+
+    @property
+    def in_water_stop_min(self) -> float:
+        """Total planned in-water stop time [min]."""
+        return float(sum(s.minutes for s in self.water_stops))
+
+    @property
+    def declared_outside_ndl(self) -> bool:
+        """Whether the plan itself declares decompression (stated mode or chamber stops).
+
+        A dive declared ``decompression = "none"`` counts as within the no-decompression
+        limit here; the table-conformance and model rules check that claim.
+        """
+        return self.decompression != "none" or bool(self.chamber_stops)
+
+    @property
+    def mixed_gas(self) -> bool:
+        """Whether the dive breathes a bottom gas other than air."""
+        return self.gas_mix.name != "air"
+
+
+class Plan(_Section):
+    """A whole plan file (``schema = "supervisor-plan/1"``)."""
+
+    model_config = ConfigDict(
+        extra="forbid",
+        strict=True,
+        allow_inf_nan=False,
+        title="supervisor-plan/1",
+        json_schema_extra={
+            "$schema": "https://json-schema.org/draft/2020-12/schema",
+            "description": "A proposed diving job checked by the supervisor command. "
+            "Depths are in the plan's unit (fsw or msw).",
+        },
+    )
+
+    schema_: Literal["supervisor-plan/1"] = Field(
+        alias="schema", description='Plan format: "supervisor-plan/1"'
+    )
+    unit: PlanUnit = Field(description="Depth unit of the whole plan: fsw or msw")
+    job: Job = Field(description="The job")
+    site: Site = Field(description="Site conditions")
+    chamber: Chamber = Field(description="Recompression chamber")
+    team: list[Member] = Field(min_length=1, description="Team members")
+    gas_supply: GasSupply = Field(description="Gas supply")
+    policy: Policy = Field(default_factory=Policy, description="The contractor's policy limits")
+    dives: list[Dive] = Field(min_length=1, description="Proposed dives in order")
+
+    @model_validator(mode="after")
+    def _references(self) -> Plan:
+        problems: list[tuple[str, str]] = []
+        names = [m.name for m in self.team]
+        known = set(names)
+        for i, name in enumerate(names):
+            if name in names[:i]:
+                problems.append((f"team[{i}].name", f"got {name!r} twice; expected unique names"))
+        ids: list[str] = []
+        for i, d in enumerate(self.dives):
+            if d.id in ids:
+                problems.append((f"dives[{i}].id", f"got {d.id!r} twice; expected unique ids"))
+            for fld in ("diver", "buddy", "standby_diver", "tender", "entry_diver"):
+                who = getattr(d, fld)
+                if who is not None and who not in known:
+                    problems.append(
+                        (f"dives[{i}].{fld}", f"got {who!r}; expected the name of a team member")
+                    )
+            if d.standby_diver is not None and d.standby_diver == d.diver:
+                problems.append(
+                    (
+                        f"dives[{i}].standby_diver",
+                        f"got {d.diver!r}, the diver of this dive; expected another team member",
+                    )
+                )
+            if d.previous_dive is not None and d.previous_dive not in ids:
+                problems.append(
+                    (
+                        f"dives[{i}].previous_dive",
+                        f"got {d.previous_dive!r}; expected the id of an earlier dive",
+                    )
+                )
+            ids.append(d.id)
+        for i, b in enumerate(self.gas_supply.bailout):
+            if b.diver not in known:
+                problems.append(
+                    (
+                        f"gas_supply.bailout[{i}].diver",
+                        f"got {b.diver!r}; expected the name of a team member",
+                    )
+                )
+        if problems:
+            raise Problems(problems)
+        return self
+
+    # -- convenience -------------------------------------------------------
+
+    @property
+    def schema_id(self) -> str:
+        """The plan format identifier."""
+        return self.schema_
+
+    @property
+    def resolved_policy(self) -> Policy:
+        """The policy with unit defaults filled in."""
+        return self.policy.resolved(self.unit)
+
+    @property
+    def p_surface_bar(self) -> float:
+        """Surface pressure at the site altitude [bar] (ICAO standard atmosphere)."""
+        return float(altitude_pressure(self.site.altitude_m))
+
+    def member(self, name: str | None) -> Member | None:
+        """Return the team member called ``name`` (``None`` if absent)."""
+        for m in self.team:
+            if m.name == name:
+                return m
+        return None
+
+    def members_with(self, role: str) -> list[Member]:
+        """Return the team members holding ``role``."""
+        return [m for m in self.team if m.has(role)]
+
+    def dive(self, dive_id: str) -> Dive:
+        """Return the dive with id ``dive_id``."""
+        for d in self.dives:
+            if d.id == dive_id:
+                return d
+        raise InputError("dive", f"got {dive_id!r}; expected one of {[d.id for d in self.dives]}")
+
+    def descent_rate(self, dive: Dive) -> float:
+        """Descent rate of ``dive`` [unit/min]: its own or the policy's fastest."""
+        return float(dive.descent_rate or self.resolved_policy.descent_rate_max)
+
+    def ascent_rate(self, dive: Dive) -> float:
+        """Ascent rate of ``dive`` [unit/min]: its own or the policy's planned rate."""
+        return float(dive.ascent_rate or self.resolved_policy.ascent_rate)
+
+    def to_fsw(self, depth: float) -> float:
+        """Convert a plan depth to fsw [fsw] (both are pressure units)."""
+        return depth if self.unit == "fsw" else float(convert_pressure(depth, "msw", "fsw"))
+
+    def from_fsw(self, depth_fsw: float) -> float:
+        """Convert a depth in fsw to the plan unit [plan unit]."""
+        return depth_fsw if self.unit == "fsw" else float(convert_pressure(depth_fsw, "fsw", "msw"))
+
+
+# ---------------------------------------------------------------------------
+# loading and errors
+
+
+def plan_from_dict(data: Any) -> Plan:
+    """Validate a plan given as a dictionary (a parsed TOML document).
+
+    Parameters
+    ----------
+    data : dict
+        The plan document.
+
+    Returns
+    -------
+    Plan
+
+    Raises
+    ------
+    PlanValidationError
+        Listing every problem found, with its field path.
+    """
+    if not isinstance(data, dict):
+        raise PlanValidationError([("plan", f"got {show(data)}; expected a TOML document")])
+    schema = data.get("schema")
+    if schema is None:
+        raise PlanValidationError(
+            [("schema", f'missing; expected "{SCHEMA_ID}" on the first line')]
+        )
+    if schema != SCHEMA_ID:
+        raise PlanValidationError([("schema", f'got {show(schema)}; expected "{SCHEMA_ID}"')])
+    raw_unit = data.get("unit")
+    unit = raw_unit if raw_unit in ("fsw", "msw") else "plan unit"
+    try:
+        return Plan.model_validate(data, context={"unit": unit})
+    except ValidationError as exc:
+        raise PlanValidationError(problems_from(exc, Plan, unit)) from None
+
+
+def read_plan_bytes(path: str | Path) -> bytes:
+    """Read a plan file's bytes, turning OS errors into a :class:`PlanValidationError`."""
+    p = Path(path)
+    try:
+        return p.read_bytes()
+    except IsADirectoryError:
+        raise PlanValidationError([("plan", f"{p}: is a folder; expected a TOML file")]) from None
+    except FileNotFoundError:
+        raise PlanValidationError([("plan", f"{p}: no such file")]) from None
+    except OSError as exc:
+        why = exc.strerror or str(exc)
+        raise PlanValidationError([("plan", f"{p}: cannot be read ({why})")]) from None
+
+
+def parse_plan_bytes(raw: bytes, name: str = "plan") -> Plan:
+    """Parse and validate plan file bytes (UTF-8 TOML)."""
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise PlanValidationError(
+            [("plan", f"{name}: not UTF-8 text (byte {exc.start}); expected a TOML file")]
+        ) from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise PlanValidationError([("plan", f"{name}: not valid TOML ({exc})")]) from None
+    return plan_from_dict(data)
+
+
+def load_plan(path: str | Path) -> Plan:
+    """Read and validate a plan file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The TOML plan file.
+
+    Returns
+    -------
+    Plan
+
+    Raises
+    ------
+    PlanValidationError
+        If the file cannot be read, is not TOML or does not validate; every
+        problem is listed with its field path.
+    """
+    return parse_plan_bytes(read_plan_bytes(path), str(path))
+
+
+def plan_sha256(raw: bytes) -> str:
+    """Return the SHA-256 hex digest of plan file bytes."""
+    return hashlib.sha256(raw).hexdigest()
+
+
+def plan_json_schema() -> dict[str, Any]:
+    """Return the JSON Schema of the plan file (draft 2020-12)."""
+    schema = Plan.model_json_schema(by_alias=True, mode="validation")
+    schema["$id"] = "urn:supervisor:schema:supervisor-plan/1"
+    return schema
+
+
+def plan_to_json(plan: Plan) -> str:
+    """Return the plan as canonical JSON text (sorted keys), e.g. for hashing."""
+    return json.dumps(plan.model_dump(mode="json", by_alias=True), sort_keys=True)
+
+
+# ---------------------------------------------------------------------------
+# profile of a proposed dive
+
+
+def proposed_profile(plan: Plan, dive: Dive) -> Profile:
+    """Build the time-ordered profile of a dive as proposed.
+
+    Descent at the dive's descent rate, bottom time counted from leaving the
+    surface, ascent at the dive's ascent rate to each water stop and to the
+    surface; for surface decompression the deck time (``surface_transfer_min``,
+    0 if not stated), compression to the first chamber stop and the chamber
+    stops, then ascent to the surface at the ascent rate.  Travel between stops
+    is added to the schedule, not taken out of the stop times.
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan (unit, altitude, water, policy).
+    dive : Dive
+        One of its dives.
+
+    Returns
+    -------
+    Profile
+        Depths in the plan unit.
+    """
+    descent = plan.descent_rate(dive)
+    ascent = plan.ascent_rate(dive)
+    prof = Profile(unit=plan.unit, p_surface_bar=plan.p_surface_bar, water=plan.site.water)
+    gas = dive.gas_mix
+    t_desc = dive.max_depth / descent
+    prof.add(dive.max_depth, min(t_desc, dive.bottom_time_min), gas, "water", "descent")
+    prof.add(dive.max_depth, max(dive.bottom_time_min - t_desc, 0.0), gas, "water", "bottom")
+    depth = dive.max_depth
+    for s in dive.water_stops:
+        prof.add(s.depth, (depth - s.depth) / ascent, None, "water", "travel")
+        prof.add(s.depth, s.minutes, dive.stop_gas(s), "water", "stop")
+        depth = s.depth
+    prof.add(0.0, depth / ascent, None, "water", "travel")
+    chamber = dive.chamber_stops
+    if chamber:
+        prof.add(0.0, dive.surface_transfer_min or 0.0, None, "surface", "surface interval")
+        compress = plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
+        prof.add(chamber[0].depth, chamber[0].depth / compress, None, "chamber", "compression")
+        depth = chamber[0].depth
+        for s in chamber:
+            if s.depth != depth:
+                prof.add(s.depth, abs(depth - s.depth) / ascent, None, "chamber", "travel")
+            prof.add(s.depth, s.minutes, dive.stop_gas(s), "chamber", "stop")
+            depth = s.depth
+        prof.add(0.0, depth / ascent, parse_gas("air"), "chamber", "travel")
+    return prof
