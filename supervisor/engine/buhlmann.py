@@ -169,7 +169,7 @@ def load_coefficients(model: str = "zhl16c") -> Coefficients:
 def mixed_coefficients(
     p_n2: ArrayLike, p_he: ArrayLike, c: Coefficients
 ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """a and b of each compartment weighted by its N2 and He tensions.
+    """Return a and b of each compartment weighted by its N2 and He tensions.
 
     Parameters
     ----------
