@@ -25,6 +25,7 @@ from typing import Any
 import typer
 
 from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, guarded
+from supervisor.errors import InputError
 from supervisor.references import (
     ImportOptions,
     InvalidTableError,
@@ -36,8 +37,10 @@ from supervisor.references import (
     validate_file,
     verify_rows,
 )
+from supervisor.references.build import FSW_SPEC, MSW_SPEC, build_tables
 from supervisor.references.issues import errors
 from supervisor.references.schema import MODE_TITLES
+from supervisor.references.screen import DEFAULT_TOLERANCE, screen_table
 
 tables_app = typer.Typer(
     name="tables",
@@ -65,6 +68,22 @@ class StatusChoice(StrEnum):
     older_edition = "OLDER-EDITION"
     derived = "DERIVED"
     from_memory = "FROM MEMORY"
+
+
+class ModelChoice(StrEnum):
+    """Coefficient sets of the engine."""
+
+    zhl16a = "zhl16a"
+    zhl16b = "zhl16b"
+    zhl16c = "zhl16c"
+
+
+class BuildUnit(StrEnum):
+    """Which computed tables ``tables build`` writes."""
+
+    both = "both"
+    fsw = "fsw"
+    msw = "msw"
 
 
 class UnitChoice(StrEnum):
@@ -321,6 +340,83 @@ def import_table(
         typer.echo(w.line(str(target)), err=True)
     t = load_table(target)
     typer.echo(f"{target}: {t.kind} table {t.name} with {len(t.rows)} rows, all unverified")
+
+
+@tables_app.command("build")
+@guarded
+def build(
+    out_dir: Path = typer.Option(Path("."), "--out-dir", help="Folder to write the tables to "
+                                 "(tables/decompression refreshes the bundled ones)."),
+    unit: BuildUnit = typer.Option(BuildUnit.both, "--unit", help="fsw (30-190 fsw, stops "
+                                   "every 10 fsw), msw (9-57 msw, stops every 3 msw) or both."),
+    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set."),
+    gf: str = typer.Option("30/85", "--gf", help="Gradient factors LOW/HIGH in percent."),
+    max_stop_time: float = typer.Option(180.0, "--max-stop-time", help="End each depth with "
+                                        "the first bottom time whose total stop time exceeds "
+                                        "this [min]."),
+    force: bool = typer.Option(False, "--force", help="Replace existing files that differ."),
+) -> None:
+    """Compute air decompression tables from ZH-L16 with gradient factors (model output).
+
+    The result is labelled as computed by this project from a published model, not a
+    published table, and is reproducible byte for byte.
+    """
+    from dataclasses import replace
+
+    from supervisor.cli.schedule import parse_gf
+
+    if not (max_stop_time > 0 and math.isfinite(max_stop_time)):
+        raise InputError("--max-stop-time", f"got {max_stop_time!r}; expected minutes > 0")
+    lo, hi = parse_gf(gf)
+    specs = {"fsw": (FSW_SPEC,), "msw": (MSW_SPEC,), "both": (FSW_SPEC, MSW_SPEC)}[unit.value]
+    specs = tuple(replace(s, gf_low=lo, gf_high=hi, model=model.value,
+                          max_stop_time=max_stop_time) for s in specs)
+    for path, state in build_tables(out_dir, specs, force=force):
+        typer.echo(f"{path}: {state}")
+
+
+@tables_app.command("screen")
+@guarded
+def screen(
+    file: Path = typer.Argument(..., help="No-stop or decompression table file (TOML)."),
+    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set."),
+    tolerance: float = typer.Option(100 * DEFAULT_TOLERANCE, "--tolerance",
+                                    help="Flag a row whose surfacing supersaturation differs "
+                                    "from every neighbour's by more than this [% of the "
+                                    "M-value gradient]."),
+    descent_rate: float = typer.Option(None, "--descent-rate", help="Descent rate [depth "
+                                       "unit/min] (default 75 fsw/min or 23 msw/min)."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON (supervisor.tables-screen/1)."),
+) -> None:
+    """Run every row through the model; report its surfacing supersaturation, flag outliers.
+
+    Exit 0 when no row is flagged, 1 when rows are flagged, 2 for an unreadable file.
+    """
+    t = load_table(file, strict=False)
+    rep = screen_table(t, model.value, descent_rate, tolerance / 100.0)
+    if as_json:
+        typer.echo(json.dumps(rep.to_dict(), indent=2, ensure_ascii=False))
+    else:
+        typer.echo(f"{t.name}: screened with {rep.model} (coefficients {rep.coefficient_status}); "
+                   f"flag when a row differs from every neighbour by more than "
+                   f"{100 * rep.tolerance:g} % of the M-value gradient")
+        typer.echo(f"{'row':>4}  {'key':<22} {'mode':<7} {'surfacing':>9} {'max':>5} "
+                   f"{'nearest':>7}  note")
+        for r in rep.rows:
+            def pct(x: float | None) -> str:
+                return "-" if x is None else f"{100 * x:.0f}%"
+
+            typer.echo(f"{r.row:>4}  {r.label:<22} {r.mode or '-':<7} {pct(r.surfacing_gf):>9} "
+                       f"{pct(r.max_gf):>5} {pct(r.nearest_gf):>7}  "
+                       f"{'FLAG ' if r.flagged else ''}{r.note}".rstrip())
+        flagged = sorted({r.row for r in rep.flagged})
+        typer.echo(f"{len(flagged)} row(s) flagged" + (": " + ", ".join(map(str, flagged))
+                                                        if flagged else ""))
+    if rep.validation_errors:
+        typer.echo(f"note: {file} also fails validation ({len(rep.validation_errors)} "
+                   "error(s)); run `supervisor tables validate`", err=True)
+    if rep.flagged:
+        raise typer.Exit(EXIT_FAIL)
 
 
 def register(app: typer.Typer) -> None:

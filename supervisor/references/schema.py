@@ -193,11 +193,26 @@ class RowBase(BaseModel):
 # --------------------------------------------------------------------------- conventions
 
 
+class ModelSettings(BaseModel):
+    """How a table computed by this project was made (``supervisor tables build``)."""
+
+    model_config = _STRICT
+
+    name: Literal["zhl16a", "zhl16b", "zhl16c"]
+    gf_low: Annotated[float, Field(gt=0, le=1)]
+    gf_high: Annotated[float, Field(gt=0, le=1)]
+    descent_rate: Positive
+    coefficient_status: SourceStatus
+    max_stop_time: Positive
+    bottom_times: list[Positive] = Field(default_factory=list)
+
+
 class TableConventions(BaseModel):
     """Conventions shared by the no-stop and decompression kinds.
 
     ``repetitive_groups`` lists the group letters in order of increasing
-    nitrogen load; empty when the groups are not known.
+    nitrogen load; empty when the groups are not known.  ``model`` is set only
+    in tables computed by this project and says how they were computed.
     """
 
     model_config = _STRICT
@@ -211,6 +226,7 @@ class TableConventions(BaseModel):
     gas: GasName
     place: Literal["water", "chamber"]
     repetitive_groups: list[str] = Field(default_factory=list)
+    model: ModelSettings | None = None
     notes: str = ""
 
     @field_validator("repetitive_groups")
