@@ -1,0 +1,545 @@
+"""Procedure rules: rates, stops, surface decompression, oxygen periods, special cases.
+
+Two kinds of limit meet here.  The contractor's policy (descent and ascent
+rates, stop spacing, last stop) fails a dive that breaks it.  The conventions
+of the U.S. Navy air decompression procedure (rates the tables assume, the
+5-minute surface interval of surface decompression on oxygen, oxygen periods
+and air breaks, exceptional exposure, cold or strenuous work) are known to the
+project only from secondary copies, older editions or memory, so a dive that
+departs from them is a warning for the supervisor, not a failure.  The plan's
+own consistency (a declared decompression that its stops do not carry out)
+fails.
+
+References
+----------
+.. [1] U.S. Navy Diving Manual, Revision 7 Change A (2018), ch. 9 "Air
+       Decompression": rules as quoted by secondary sources.
+.. [2] U.S. Navy Diving Manual, Revision 4 Change A (2001), chs. 9 and 14:
+       older-edition text of the same procedures.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterator
+
+from supervisor.findings import Finding
+from supervisor.plan import CHAMBER_COMPRESSION_FSW_PER_MIN, Dive, Stop
+from supervisor.rules.base import CheckContext, Family, Rule
+
+FAMILY = Family("procedure", "Decompression procedure")
+
+NAVY_REV7 = "U.S. Navy Diving Manual, Rev 7, ch. 9"
+NAVY_REV4 = "U.S. Navy Diving Manual, Rev 4 Change A"
+
+#: Navy convention values [fsw, fsw/min, min] with their status; see the rule docstrings.
+NAVY_DESCENT_MAX_FSW_MIN = 75.0  # ch. 9 descent rate, from memory
+NAVY_ASCENT_MIN_FSW_MIN = 20.0  # ch. 14 tolerance, OLDER-EDITION (Rev 4 Change A)
+NAVY_ASCENT_MAX_FSW_MIN = 40.0  # idem
+SURD_INTERVAL_MAX_MIN = 5.0  # ch. 9 SurDO2, SECONDARY; Rev 4 Change A ch. 14 OLDER-EDITION
+SURD_LATE_MAX_MIN = 7.0  # SurDO2 late-arrival band, from memory
+O2_PERIOD_MIN = 30.0  # SurDO2 chamber period and in-water O2 run, SECONDARY
+O2_FINAL_RUN_MAX_MIN = 35.0  # no final air break if the last run is <= 35 min, OLDER-EDITION
+AIR_BREAK_MIN = 5.0  # SECONDARY
+EE_DEPTH_FSW = 190.0  # exceptional exposure criteria, SECONDARY
+EE_IN_WATER_MIN = 90.0
+EE_SURD_PERIODS = 4.0
+SHORT_SI_MIN = 10.0  # OLDER-EDITION (NOAA course slides on the pre-2008 tables)
+
+_TOL = 1e-6
+
+
+def _is_oxygen(dive: Dive, stop: Stop) -> bool:
+    return dive.stop_gas(stop).fo2 >= 0.99
+
+
+# ---------------------------------------------------------------------------
+# rates
+
+
+@FAMILY.rule(
+    "proc-descent-rate",
+    title="Descent rate within policy and the table convention",
+    citation="contractor policy (policy.descent_rate_max)",
+    kind="policy",
+)
+def descent_rate(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The dive's descent rate against the policy limit (fails) and 75 fsw/min (warns).
+
+    The Navy air procedure wants descent no faster than 75 fsw/min (ch. 9;
+    from memory only).
+    """
+    top = float(ctx.policy.descent_rate_max)
+    for d in ctx.dives():
+        rate = ctx.plan.descent_rate(d)
+        kw = dict(measured=rate, limit=top, unit=f"{ctx.unit}/min", dive=d.id)
+        if rate > top + _TOL:
+            yield r.breach(
+                f"descent at {rate:g} {ctx.unit}/min is faster than the policy limit", **kw
+            )
+        else:
+            yield r.ok(f"descent at {rate:g} {ctx.unit}/min within policy", **kw)
+        navy = ctx.limit(NAVY_DESCENT_MAX_FSW_MIN)
+        if ctx.fsw(rate) > NAVY_DESCENT_MAX_FSW_MIN + _TOL:
+            yield r.breach(
+                f"descent at {rate:g} {ctx.unit}/min is faster than the 75 fsw/min the Navy air "
+                "procedure assumes",
+                rule="proc-descent-rate-table",
+                citation=f"{NAVY_REV7} (descent rate)",
+                status="FROM MEMORY",
+                kind="reference",
+                measured=rate,
+                limit=navy,
+                unit=f"{ctx.unit}/min",
+                dive=d.id,
+            )
+
+
+@FAMILY.rule(
+    "proc-ascent-rate",
+    title="Ascent rate within policy and the table convention",
+    citation="contractor policy (policy.ascent_rate_min, policy.ascent_rate_max)",
+    kind="policy",
+)
+def ascent_rate(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The ascent rate against the policy band (fails) and the 20-40 fsw/min tolerance (warns).
+
+    The Navy procedure ascends at 30 fsw/min and accepts minor variation
+    between 20 and 40 fsw/min (Rev 4 Change A ch. 14; OLDER-EDITION).
+    """
+    lo, hi = float(ctx.policy.ascent_rate_min), float(ctx.policy.ascent_rate_max)
+    for d in ctx.dives():
+        rate = ctx.plan.ascent_rate(d)
+        u = f"{ctx.unit}/min"
+        if rate > hi + _TOL:
+            yield r.breach(
+                f"ascent at {rate:g} {u} is faster than the policy's {hi:g} {u}",
+                measured=rate,
+                limit=hi,
+                unit=u,
+                dive=d.id,
+            )
+        elif rate < lo - _TOL:
+            yield r.breach(
+                f"ascent at {rate:g} {u} is slower than the policy's {lo:g} {u}",
+                measured=rate,
+                limit=lo,
+                unit=u,
+                dive=d.id,
+            )
+        else:
+            yield r.ok(
+                f"ascent at {rate:g} {u} within policy ({lo:g}-{hi:g} {u})",
+                measured=rate,
+                limit=f"{lo:g}-{hi:g}",
+                unit=u,
+                dive=d.id,
+            )
+        f = ctx.fsw(rate)
+        if f > NAVY_ASCENT_MAX_FSW_MIN + _TOL or f < NAVY_ASCENT_MIN_FSW_MIN - _TOL:
+            band = f"{ctx.limit(NAVY_ASCENT_MIN_FSW_MIN):g}-{ctx.limit(NAVY_ASCENT_MAX_FSW_MIN):g}"
+            yield r.breach(
+                f"ascent at {rate:g} {u} is outside the 20-40 fsw/min the table procedure "
+                "accepts; the table schedule may not apply",
+                rule="proc-ascent-rate-table",
+                citation=f"{NAVY_REV4}, ch. 14 (ascent rate)",
+                status="OLDER-EDITION",
+                kind="reference",
+                measured=rate,
+                limit=band,
+                unit=u,
+                dive=d.id,
+            )
+
+
+# ---------------------------------------------------------------------------
+# stops
+
+
+@FAMILY.rule(
+    "proc-stop-step",
+    title="Stops at multiples of the policy's stop step",
+    citation="contractor policy (policy.stop_step)",
+    kind="policy",
+)
+def stop_step(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Every stop depth is a whole multiple of the stop step (10 fsw or 3 msw by default)."""
+    step = float(ctx.policy.stop_step)
+    for d in ctx.dives():
+        if not d.stops:
+            continue
+        off = [s.depth for s in d.stops if abs(s.depth / step - round(s.depth / step)) > 1e-6]
+        if off:
+            yield r.breach(
+                f"stop at {off[0]:g} {ctx.unit} is not a multiple of {step:g} {ctx.unit}",
+                measured=off[0],
+                limit=step,
+                unit=ctx.unit,
+                dive=d.id,
+            )
+        else:
+            yield r.ok(
+                f"stops at multiples of {step:g} {ctx.unit}", limit=step, unit=ctx.unit, dive=d.id
+            )
+
+
+@FAMILY.rule(
+    "proc-last-stop",
+    title="Last water stop no shallower than the policy's last stop",
+    citation="contractor policy (policy.last_stop)",
+    kind="policy",
+)
+def last_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The shallowest water stop is at or deeper than the policy's last stop."""
+    last = float(ctx.policy.last_stop)
+    for d in ctx.dives():
+        ws = d.water_stops
+        if not ws:
+            continue
+        shallow = min(s.depth for s in ws)
+        kw = dict(measured=shallow, limit=last, unit=ctx.unit, dive=d.id)
+        if shallow < last - _TOL:
+            yield r.breach(
+                f"water stop at {shallow:g} {ctx.unit} is shallower than the last stop "
+                f"of {last:g} {ctx.unit}",
+                **kw,
+            )
+        else:
+            yield r.ok(f"last water stop at {shallow:g} {ctx.unit}", **kw)
+
+
+@FAMILY.rule(
+    "proc-time-to-first-stop",
+    title="Travel time to the first stop",
+    citation=f"{NAVY_REV7} (delay in reaching the first stop)",
+    source_status="SECONDARY",
+    kind="reference",
+)
+def time_to_first_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Report the planned travel time from the bottom to the first water stop.
+
+    A delay of more than 1 min reaching the first stop changes the schedule
+    (deeper than 50 fsw: added to bottom time; shallower: added to the first
+    stop), SECONDARY.
+    """
+    for d in ctx.dives():
+        ws = d.water_stops
+        if not ws:
+            continue
+        rate = ctx.plan.ascent_rate(d)
+        t = (d.max_depth - ws[0].depth) / rate
+        yield r.note(
+            f"travel to the first stop at {ws[0].depth:g} {ctx.unit}: {t:.1f} min at {rate:g} "
+            f"{ctx.unit}/min; a delay over 1 min changes the schedule",
+            measured=round(t, 2),
+            unit="min",
+            dive=d.id,
+        )
+
+
+@FAMILY.rule(
+    "proc-decompression-declared",
+    title="Declared decompression matches the planned stops",
+    citation="plan consistency (dives[].decompression and dives[].stops)",
+    kind="plan",
+)
+def decompression_declared(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The stops carry out the decompression the dive declares."""
+    for d in ctx.dives():
+        ws, cs = d.water_stops, d.chamber_stops
+        o2_water = any(_is_oxygen(d, s) for s in ws)
+        o2_chamber = any(_is_oxygen(d, s) for s in cs)
+        k = d.decompression
+        bad = None
+        if k == "none" and cs:
+            bad = "declared no decompression but plans chamber stops"
+        elif k in ("in-water", "in-water-oxygen") and not ws:
+            bad = f"declared {k} decompression but plans no water stops"
+        elif k in ("in-water", "in-water-oxygen") and cs:
+            bad = f"declared {k} decompression but plans chamber stops"
+        elif k == "in-water-oxygen" and not o2_water:
+            bad = "declared in-water oxygen decompression but no water stop is on oxygen"
+        elif k == "surface-oxygen" and not cs:
+            bad = "declared surface decompression on oxygen but plans no chamber stops"
+        elif k == "surface-oxygen" and not o2_chamber:
+            bad = "declared surface decompression on oxygen but no chamber stop is on oxygen"
+        if bad:
+            yield r.breach(bad, measured=k, dive=d.id)
+        elif k == "none" and ws:
+            yield r.note(
+                "stops planned on a no-decompression dive are taken as precautionary",
+                measured=k,
+                dive=d.id,
+            )
+        else:
+            yield r.ok(
+                f"declared {k} decompression matches the planned stops", measured=k, dive=d.id
+            )
+
+
+# ---------------------------------------------------------------------------
+# surface decompression and oxygen
+
+
+@FAMILY.rule(
+    "proc-surd-chamber",
+    title="Surface decompression needs a ready chamber at the site",
+    citation="plan consistency (surface decompression is completed in a chamber)",
+    kind="plan",
+)
+def surd_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """A surface-decompression dive cannot be carried out without a ready chamber at the site."""
+    ch = ctx.plan.chamber
+    for d in ctx.dives():
+        if d.decompression != "surface-oxygen":
+            continue
+        if ch.on_site and ch.ready:
+            yield r.ok("chamber ready at the site for surface decompression", dive=d.id)
+        else:
+            yield r.breach(
+                "surface decompression planned without a ready chamber at the site", dive=d.id
+            )
+
+
+def surd_interval_min(ctx: CheckContext, dive: Dive) -> float | None:
+    """Planned surface interval of surface decompression [min], or ``None`` if not stated.
+
+    From leaving the last water stop (the bottom if there is none) to arriving
+    at the first chamber stop: ascent at the dive's ascent rate, the stated
+    deck time, and compression at 100 fsw/min.
+    """
+    if dive.surface_transfer_min is None or not dive.chamber_stops:
+        return None
+    ws = dive.water_stops
+    start = ws[-1].depth if ws else dive.max_depth
+    ascent = start / ctx.plan.ascent_rate(dive)
+    compress = dive.chamber_stops[0].depth / ctx.plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
+    return ascent + dive.surface_transfer_min + compress
+
+
+@FAMILY.rule(
+    "proc-surd-interval",
+    title="Surface decompression: surface interval within 5 min",
+    citation=f"{NAVY_REV7} (surface decompression on oxygen, surface interval)",
+    source_status="SECONDARY",
+    kind="reference",
+)
+def surd_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Leaving the water stop to arriving at the chamber stop within 5 min (SECONDARY).
+
+    From memory: more than 5 but no more than 7 min adds a half-period at
+    50 fsw; more than 7 min means treatment instead of surface decompression.
+    """
+    for d in ctx.dives():
+        if d.decompression != "surface-oxygen":
+            continue
+        si = surd_interval_min(ctx, d)
+        if si is None:
+            yield r.review(
+                "needs review: surface decompression without surface_transfer_min; "
+                "the surface interval cannot be checked",
+                limit=SURD_INTERVAL_MAX_MIN,
+                unit="min",
+                dive=d.id,
+            )
+            continue
+        kw = dict(measured=round(si, 2), limit=SURD_INTERVAL_MAX_MIN, unit="min", dive=d.id)
+        if si > SURD_INTERVAL_MAX_MIN + _TOL:
+            late = (
+                " (over 7 min: a treatment, not surface decompression, from memory)"
+                if si > SURD_LATE_MAX_MIN
+                else " (5-7 min: extra oxygen time, from memory)"
+            )
+            yield r.breach(f"surface interval of {si:.1f} min is over 5 min{late}", **kw)
+        else:
+            yield r.ok(f"surface interval of {si:.1f} min within 5 min", **kw)
+
+
+def _o2_runs(dive: Dive, place: str) -> tuple[list[float], list[float]]:
+    """Continuous oxygen runs and the air breaks between them at ``place`` [min]."""
+    runs: list[float] = []
+    breaks: list[float] = []
+    run = 0.0
+    gap = 0.0
+    for s in (x for x in dive.stops if x.place == place):
+        if _is_oxygen(dive, s):
+            if run == 0.0 and runs:
+                breaks.append(gap)
+            run += s.minutes
+            gap = 0.0
+        else:
+            if run > 0.0:
+                runs.append(run)
+                run = 0.0
+            gap += s.minutes
+    if run > 0.0:
+        runs.append(run)
+    return runs, breaks
+
+
+def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iterator[Finding]:
+    runs, breaks = _o2_runs(d, place)
+    if not runs:
+        return
+    where = "in the water" if place == "water" else "in the chamber"
+    over = [
+        (i, t)
+        for i, t in enumerate(runs)
+        if t > (O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN) + _TOL
+    ]
+    short = [b for b in breaks if b < AIR_BREAK_MIN - _TOL]
+    for i, t in over:
+        lim = O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN
+        yield r.breach(
+            f"{t:g} min of continuous oxygen {where} without a 5-min air break",
+            measured=t,
+            limit=lim,
+            unit="min",
+            dive=d.id,
+        )
+    for b in short:
+        yield r.breach(
+            f"air break of {b:g} min {where} is shorter than 5 min",
+            measured=b,
+            limit=AIR_BREAK_MIN,
+            unit="min",
+            dive=d.id,
+        )
+    if not over and not short:
+        yield r.ok(
+            f"oxygen {where} in runs of at most 30 min with 5-min air breaks",
+            measured=max(runs),
+            limit=O2_PERIOD_MIN,
+            unit="min",
+            dive=d.id,
+        )
+
+
+@FAMILY.rule(
+    "proc-o2-air-breaks",
+    title="In-water oxygen: a 5-min air break after every 30 min on oxygen",
+    citation=f"{NAVY_REV7} (in-water air/oxygen decompression, air breaks)",
+    source_status="SECONDARY",
+    kind="reference",
+)
+def o2_air_breaks(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """No more than 30 min on oxygen in the water without a 5-min air break (the last run
+    up to 35 min, OLDER-EDITION); air break time is not stop time."""
+    for d in ctx.dives():
+        yield from _o2_period_findings(ctx, r, d, "water")
+
+
+@FAMILY.rule(
+    "proc-o2-chamber-periods",
+    title="Surface decompression: 30-min oxygen periods with 5-min air breaks",
+    citation=f"{NAVY_REV7} (surface decompression on oxygen, chamber periods)",
+    source_status="SECONDARY",
+    kind="reference",
+)
+def o2_chamber_periods(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Chamber oxygen in 30-min periods separated by 5-min air breaks (SECONDARY)."""
+    for d in ctx.dives():
+        if d.chamber_stops:
+            yield from _o2_period_findings(ctx, r, d, "chamber")
+
+
+def surd_periods(dive: Dive) -> float:
+    """Chamber oxygen periods of a surface-decompression dive, in half-period steps [periods]."""
+    o2 = sum(s.minutes for s in dive.chamber_stops if _is_oxygen(dive, s))
+    return math.ceil(o2 / (O2_PERIOD_MIN / 2) - 1e-9) / 2
+
+
+@FAMILY.rule(
+    "proc-exceptional-exposure",
+    title="Exceptional exposure",
+    citation=f"{NAVY_REV7} (exceptional exposure)",
+    source_status="SECONDARY",
+    kind="reference",
+)
+def exceptional_exposure(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Deeper than 190 fsw, over 90 min in-water decompression, or more than 4 chamber
+    periods is an exceptional exposure: planned only with special approval."""
+    for d in ctx.dives():
+        hits = []
+        if ctx.fsw(d.max_depth) > EE_DEPTH_FSW:
+            hits.append(
+                (
+                    f"deeper than 190 fsw ({ctx.show(d.max_depth)})",
+                    d.max_depth,
+                    ctx.limit(EE_DEPTH_FSW),
+                    ctx.unit,
+                )
+            )
+        if d.in_water_stop_min > EE_IN_WATER_MIN:
+            hits.append(
+                (
+                    f"{d.in_water_stop_min:g} min in-water decompression, over 90 min",
+                    d.in_water_stop_min,
+                    EE_IN_WATER_MIN,
+                    "min",
+                )
+            )
+        if d.decompression == "surface-oxygen" and surd_periods(d) > EE_SURD_PERIODS:
+            n = surd_periods(d)
+            hits.append((f"{n:g} chamber oxygen periods, over 4", n, EE_SURD_PERIODS, "periods"))
+        for text, measured, limit, unit in hits:
+            yield r.breach(
+                f"exceptional exposure: {text}; needs the approval the contractor's "
+                "manual requires",
+                measured=measured,
+                limit=limit,
+                unit=unit,
+                dive=d.id,
+            )
+
+
+@FAMILY.rule(
+    "proc-cold-strenuous",
+    title="Cold or strenuous work: consider the next longer schedule",
+    citation=f"{NAVY_REV4}, ch. 9 (next longer bottom-time schedule)",
+    source_status="OLDER-EDITION",
+    kind="reference",
+)
+def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Flag cold or strenuous dives: older Navy practice used the next longer schedule.
+
+    The Rev 6 tables are reported to allow for such conditions already
+    (partly VERIFIED comparison report); the supervisor decides.
+    """
+    for d in ctx.dives():
+        why = [w for w, on in (("cold", d.cold), ("strenuous work", d.strenuous)) if on]
+        if why:
+            yield r.breach(
+                f"{' and '.join(why)}: older Navy practice decompresses on the next longer "
+                "bottom-time schedule; current tables may already allow for it; decide per the "
+                "contractor's manual",
+                measured=d.bottom_time_min,
+                unit="min",
+                dive=d.id,
+            )
+
+
+@FAMILY.rule(
+    "proc-short-surface-interval",
+    title="Surface interval under 10 min",
+    citation="NOAA Diving Center course notes on the U.S. Navy tables (pre-2008), "
+    "short surface interval",
+    source_status="OLDER-EDITION",
+    kind="reference",
+)
+def short_surface_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """A surface interval under 10 min: older practice adds the bottom times and uses the
+    deeper depth, as one dive."""
+    for d in ctx.dives():
+        si = d.surface_interval_min
+        if si is None:
+            continue
+        kw = dict(measured=si, limit=SHORT_SI_MIN, unit="min", dive=d.id)
+        if si < SHORT_SI_MIN - _TOL:
+            yield r.breach(
+                f"surface interval of {si:g} min is under 10 min: treat the dives as "
+                "one (bottom times added, deeper depth)",
+                **kw,
+            )
+        else:
+            yield r.ok(f"surface interval of {si:g} min", **kw)

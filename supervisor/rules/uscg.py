@@ -1,0 +1,317 @@
+"""Regulatory rules: USCG 46 CFR 197 Subpart B, where it differs from OSHA.
+
+Applies to commercial diving at deepwater ports, from OCS installations or for
+OCS activities, and from vessels required to hold a USCG certificate of
+inspection.  Each rule carries the id of its row in the project's regulation
+notes (e.g. ``uscg-432``) and the status of the source seen for it: VERIFIED
+rows can fail a plan, others warn.  Several sections are confirmed only in the
+2003/2004 annual CFR prints; compare with the current eCFR text.
+
+The rule text here is a paraphrase, not the regulation and not legal advice.
+
+References
+----------
+.. [1] 46 CFR 197 Subpart B, Commercial Diving Operations, §§197.200-197.488.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from supervisor.findings import Finding
+from supervisor.plan import Dive
+from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.regulatory import MIXED, SCUBA, SS_AIR, SURFACE_SUPPLIED, mixed_status
+
+FAMILY = Family("regulatory-uscg", "USCG commercial-diving rules (46 CFR 197 Subpart B)")
+
+USCG = ("uscg-46-197-b",)
+
+
+@FAMILY.rule(
+    "uscg-210",
+    title="A diving supervisor designated for the operation",
+    citation="46 CFR 197.210",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_supervisor(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The diving supervisor named in the job holds the supervisor role."""
+    name = ctx.plan.job.supervisor
+    m = ctx.member(name)
+    if m is not None and m.has("supervisor"):
+        yield r.ok(f"diving supervisor: {name} (designate in writing to the person-in-charge)")
+    else:
+        yield r.breach(
+            f"job.supervisor {name!r} is not a team member with the supervisor role", measured=name
+        )
+
+
+@FAMILY.rule(
+    "uscg-430",
+    title="SCUBA: within NDL and 130 fsw; line, standby, buddy, entry diver",
+    citation="46 CFR 197.430",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_scuba(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """SCUBA barred outside NDL and deeper than 130 fsw; tending and standby rules."""
+    site = ctx.plan.site
+    for d in ctx.dives(SCUBA):
+        kw = dict(measured=d.max_depth, limit=ctx.limit(130), unit=ctx.unit, dive=d.id)
+        if ctx.fsw(d.max_depth) > 130:
+            yield r.breach(f"SCUBA to {ctx.show(d.max_depth)} is deeper than 130 fsw", **kw)
+        else:
+            yield r.ok("SCUBA within 130 fsw", **kw)
+        if d.declared_outside_ndl:
+            yield r.breach(
+                "SCUBA outside the no-decompression limits is not allowed",
+                dive=d.id,
+                measured=d.decompression,
+                limit="none",
+            )
+        if (site.current_kt > 1 or not d.direct_ascent_possible) and not d.line_tended:
+            yield r.breach(
+                "SCUBA diver not line-tended in current over 1 kt or without direct ascent",
+                dive=d.id,
+                measured=site.current_kt,
+                limit=1.0,
+                unit="kt",
+            )
+        if ctx.standby_for(d) is None:
+            yield r.breach("no standby diver available", dive=d.id)
+        if not (d.line_tended or d.buddy):
+            yield r.breach(
+                "SCUBA diver neither line-tended nor buddied (a pickup boat is also "
+                "needed when not line-tended)",
+                dive=d.id,
+            )
+        if site.confined_space and not (d.entry_diver and d.entry_diver != d.diver):
+            yield r.breach("confined space: no diver at the entry point", dive=d.id)
+
+
+@FAMILY.rule(
+    "uscg-432",
+    title="Surface-supplied air: depth limits and extra equipment deeper than 130 fsw",
+    citation="46 CFR 197.432",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Shallower than 190 fsw, or 220 fsw with BT <= 30 min; deeper than 130 fsw or outside NDL:
+    secondary supply, chamber ready at the site, stage or bell, bell over 120 min in-water
+    decompression, tender per diver, standby, diver-carried reserve."""
+    ch, gs = ctx.plan.chamber, ctx.plan.gas_supply
+    confined = ctx.plan.site.confined_space
+    for d in ctx.dives(SS_AIR):
+        fsw = ctx.fsw(d.max_depth)
+        short = d.bottom_time_min <= 30
+        ok_depth = fsw < 190 or (short and fsw <= 220)
+        lim = 220 if short else 190
+        kw = dict(measured=d.max_depth, limit=ctx.limit(lim), unit=ctx.unit, dive=d.id)
+        if ok_depth:
+            yield r.ok(f"surface-supplied air to {ctx.show(d.max_depth)} within the limit", **kw)
+        else:
+            cond = "deeper than 220 fsw" if short else "190 fsw or deeper with more than 30 min"
+            yield r.breach(f"surface-supplied air to {ctx.show(d.max_depth)}: {cond}", **kw)
+        if not (fsw > 130 or d.declared_outside_ndl):
+            continue
+        bad = []
+        if gs.secondary is None:
+            bad.append(r.breach("no secondary air supply (gas_supply.secondary)", dive=d.id))
+        if not (ch.on_site and ch.ready):
+            bad.append(r.breach("no chamber ready at the site", dive=d.id))
+        if not d.stage and d.bell == "none":
+            bad.append(r.breach("neither a stage nor a bell", dive=d.id))
+        if d.in_water_stop_min > 120 and d.bell == "none":
+            bad.append(
+                r.breach(
+                    f"{d.in_water_stop_min:g} min in-water decompression and no bell",
+                    dive=d.id,
+                    measured=d.in_water_stop_min,
+                    limit=120.0,
+                    unit="min",
+                )
+            )
+        if not (d.tender and d.tender != d.diver):
+            bad.append(r.breach("no separate tender named for this diver", dive=d.id))
+        if ctx.standby_for(d) is None:
+            bad.append(r.breach("no standby diver available", dive=d.id))
+        if not (d.heavy_gear or confined or ctx.has_bailout(d)):
+            bad.append(r.breach(f"no diver-carried reserve listed for {d.diver}", dive=d.id))
+        yield from bad or [
+            r.ok(
+                "secondary supply, chamber, stage or bell, tender, standby and "
+                "reserve in place for a dive deeper than 130 fsw or outside NDL",
+                dive=d.id,
+            )
+        ]
+
+
+@FAMILY.rule(
+    "uscg-434",
+    title="Mixed gas: chamber or closed bell, stage, bells by depth, standby, two supplies",
+    citation="46 CFR 197.434",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Chamber or closed bell ready; stage unless a bell; bell > 220 fsw or > 120 min in-water
+    decompression; closed bell > 300 fsw; standby; primary and secondary gas."""
+    ch, gs = ctx.plan.chamber, ctx.plan.gas_supply
+    for d in ctx.dives(*MIXED):
+        st = mixed_status(d, "VERIFIED")
+        fsw = ctx.fsw(d.max_depth)
+        bad = []
+        if not ((ch.on_site and ch.ready) or d.bell == "closed"):
+            bad.append(
+                r.breach("no chamber ready at the site and no closed bell", dive=d.id, status=st)
+            )
+        if not d.stage and d.bell == "none":
+            bad.append(r.breach("neither a stage nor a bell", dive=d.id, status=st))
+        if (fsw > 220 or d.in_water_stop_min > 120) and d.bell == "none":
+            bad.append(
+                r.breach(
+                    "deeper than 220 fsw or over 120 min in-water decompression without a bell",
+                    dive=d.id,
+                    measured=d.max_depth,
+                    limit=ctx.limit(220),
+                    unit=ctx.unit,
+                    status=st,
+                )
+            )
+        if fsw > 300 and d.bell != "closed":
+            bad.append(
+                r.breach(
+                    "deeper than 300 fsw without a closed bell",
+                    dive=d.id,
+                    measured=d.max_depth,
+                    limit=ctx.limit(300),
+                    unit=ctx.unit,
+                    status=st,
+                )
+            )
+        if ctx.standby_for(d) is None:
+            bad.append(r.breach("no standby diver available", dive=d.id, status=st))
+        if gs.secondary is None:
+            bad.append(r.breach("no secondary gas supply", dive=d.id, status=st))
+        yield from bad or [
+            r.ok(
+                "chamber or closed bell, stage or bell, standby and secondary gas in place",
+                dive=d.id,
+                status=st,
+            )
+        ]
+
+
+@FAMILY.rule(
+    "uscg-346e",
+    title="Surface-supplied outside NDL, deeper than 130 fsw or mixed gas: more supply, reserve",
+    citation="46 CFR 197.346(e)-(g)",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """More than the primary supply and a diver-carried reserve; standby hose with heavy gear."""
+    gs = ctx.plan.gas_supply
+    for d in ctx.dives(*SURFACE_SUPPLIED):
+        if not (ctx.fsw(d.max_depth) > 130 or d.declared_outside_ndl or d.mode in MIXED):
+            continue
+        if gs.secondary is None:
+            yield r.breach("only the primary supply on site", dive=d.id)
+        else:
+            yield r.ok("secondary supply on site", dive=d.id)
+        yield r.need(ctx.has_bailout(d), f"a diver-carried reserve for {d.diver}", dive=d.id)
+        if d.heavy_gear:
+            yield r.need(
+                d.standby_hose,
+                "a spare hose for the standby diver (heavy gear)",
+                dive=d.id,
+                status="FROM MEMORY",
+            )
+
+
+def _uscg_chamber_needed(ctx: CheckContext, d: Dive) -> bool:
+    return (
+        ctx.fsw(d.max_depth) > 130
+        or d.declared_outside_ndl
+        or d.mode in MIXED
+        or d.decompression == "surface-oxygen"
+    ) and d.mode != SCUBA
+
+
+@FAMILY.rule(
+    "uscg-332",
+    title="Chamber capability: 6 ATA for dives to 300 fsw, else the dive's depth",
+    citation="46 CFR 197.332",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_chamber_depth(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The chamber reaches 6 ATA (165 fsw) for dives to 300 fsw, otherwise the maximum depth."""
+    ch = ctx.plan.chamber
+    for d in ctx.dives():
+        if not _uscg_chamber_needed(ctx, d) or not ch.on_site:
+            continue
+        need_fsw = 165.0 if ctx.fsw(d.max_depth) <= 300 else ctx.fsw(d.max_depth)
+        kw = dict(limit=ctx.limit(need_fsw), unit=ctx.unit, dive=d.id)
+        if ch.depth_capability is None:
+            yield r.review("needs review: chamber depth capability not stated", **kw)
+        elif ctx.fsw(ch.depth_capability) < need_fsw:
+            yield r.breach(
+                f"chamber reaches {ctx.show(ch.depth_capability)}, less than {need_fsw:g} fsw",
+                measured=ch.depth_capability,
+                **kw,
+            )
+        else:
+            yield r.ok(
+                f"chamber reaches {ctx.show(ch.depth_capability)}",
+                measured=ch.depth_capability,
+                **kw,
+            )
+
+
+@FAMILY.rule(
+    "uscg-314",
+    title="First aid; chamber, tables and treatment gas for deeper or decompression dives",
+    citation="46 CFR 197.314",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_first_aid(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """First-aid kit, handbook, resuscitator; for mixed gas, > 130 fsw or outside NDL also a
+    chamber, decompression and treatment tables and treatment gas."""
+    s, ch = ctx.plan.site, ctx.plan.chamber
+    yield r.need(s.first_aid_kit, "a physician-approved first-aid kit")
+    yield r.need(s.first_aid_handbook, "a first-aid handbook")
+    yield r.need(s.resuscitator, "a bag-type manual resuscitator")
+    if any(_uscg_chamber_needed(ctx, d) for d in ctx.dives()):
+        yield r.need(ch.on_site and ch.ready, "a chamber ready at the site")
+        yield r.need(s.tables_on_site, "decompression tables at the site")
+        yield r.need(ch.equipment.treatment_tables, "treatment tables at the site")
+        yield r.need(ch.equipment.treatment_gas, "treatment gas at the site")
+
+
+@FAMILY.rule(
+    "uscg-410",
+    title="Supervisor duties: comms; a non-diving member to run the chamber",
+    citation="46 CFR 197.410",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_supervisor_duties(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Voice and emergency comms; outside NDL, > 130 fsw or mixed gas: a non-diving member
+    trained to operate the chamber."""
+    s = ctx.plan.site
+    if ctx.dives(*SURFACE_SUPPLIED):
+        yield r.need(s.diver_voice_comms, "voice communication with each surface-supplied diver")
+    yield r.need(s.emergency_comms, "a two-way link for emergency help")
+    for d in ctx.dives():
+        if not (ctx.fsw(d.max_depth) > 130 or d.declared_outside_ndl or d.mode in MIXED):
+            continue
+        busy = {d.diver, d.standby_diver}
+        ops = [m for m in ctx.members_with("chamber-operator") if m.name not in busy]
+        if ops:
+            yield r.ok(f"chamber operator not diving: {ops[0].name}", dive=d.id)
+        else:
+            yield r.breach("no non-diving team member trained to operate the chamber", dive=d.id)

@@ -1,0 +1,162 @@
+"""USCG 46 CFR 197 Subpart B rules: a passing and a failing plan for every rule.
+
+Source of every limit: 46 CFR 197, section named in each test and in the
+finding's citation (rows VERIFIED in the project's regulation notes).
+"""
+
+from __future__ import annotations
+
+import pytest
+
+from supervisor.findings import Finding
+from supervisor.rules import regulatory
+from supervisor.rules.uscg import FAMILY
+
+
+def _bad(findings: list[Finding]) -> list[Finding]:
+    return [f for f in findings if f.severity in ("fail", "warn")]
+
+
+def _all_pass(findings: list[Finding]) -> None:
+    assert findings, "the rule gave no finding"
+    assert not _bad(findings), [f.message for f in _bad(findings)]
+
+
+@pytest.fixture
+def uscg(base):
+    def make(unit: str = "fsw", **dive):
+        d = base(unit)
+        d["job"]["jurisdiction"] = "uscg-46-197-b"
+        d["dives"][0].update(dive)
+        return d
+
+    return make
+
+
+def test_uscg_210_supervisor_designated(uscg, run):
+    """46 CFR 197.210: a diving supervisor designated for the operation."""
+    d = uscg()
+    d["job"]["supervisor"] = "Tess Tender"
+    [f] = _bad(run(d, FAMILY, "uscg-210"))
+    assert (f.rule, f.severity, f.measured, f.citation) == (
+        "uscg-210", "fail", "Tess Tender", "46 CFR 197.210")
+    _all_pass(run(uscg(), FAMILY, "uscg-210"))
+
+
+def test_uscg_430_scuba_outside_ndl_barred(uscg, run):
+    """46 CFR 197.430: SCUBA outside the no-decompression limits is not allowed at all."""
+    d = uscg(mode="scuba", decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
+    [f] = _bad(run(d, FAMILY, "uscg-430"))
+    assert (f.rule, f.severity, f.measured, f.citation) == (
+        "uscg-430", "fail", "in-water", "46 CFR 197.430")
+
+
+@pytest.mark.parametrize(("unit", "depth", "limit"), [("fsw", 135, 130.0), ("msw", 41, 39.9)])
+def test_uscg_430_scuba_depth(uscg, run, unit, depth, limit):
+    """46 CFR 197.430: SCUBA no deeper than 130 fsw."""
+    d = uscg(unit, mode="scuba", max_depth=depth, descent_rate=depth / 2)
+    [f] = _bad(run(d, FAMILY, "uscg-430"))
+    assert (f.measured, f.limit, f.unit, f.severity) == (depth, limit, unit, "fail")
+    _all_pass(run(uscg(mode="scuba"), FAMILY, "uscg-430"))
+
+
+def test_uscg_430_line_in_current(uscg, run):
+    """46 CFR 197.430: line-tended in currents over 1 knot."""
+    d = uscg(mode="scuba", line_tended=False, buddy="Stan Standby", standby_diver=None)
+    d["site"]["current_kt"] = 1.2
+    [f] = _bad(run(d, FAMILY, "uscg-430"))
+    assert (f.measured, f.limit, f.unit) == (1.2, 1.0, "kt")
+
+
+@pytest.mark.parametrize(("depth", "bt"), [(190, 40), (225, 20)])
+def test_uscg_432_air_depth_limit_is_strict(uscg, run, depth, bt):
+    """46 CFR 197.432: air shallower than 190 fsw ("less than"), 220 fsw with BT <= 30 min."""
+    d = uscg(max_depth=depth, bottom_time_min=bt, stage=True)
+    got = [f for f in _bad(run(d, FAMILY, "uscg-432")) if f.measured == depth]
+    assert len(got) == 1
+    assert (got[0].rule, got[0].severity, got[0].citation) == ("uscg-432", "fail",
+                                                               "46 CFR 197.432")
+
+
+def test_osha_and_uscg_differ_at_190_fsw(uscg, run):
+    """190 fsw with 40 min: within 29 CFR 1910.425(b)(1) (inclusive), not 46 CFR 197.432."""
+    d = uscg(max_depth=190, bottom_time_min=40, stage=True)
+    osha = dict(d, job=dict(d["job"], jurisdiction="osha-1910-t"))
+    assert not _bad(run(osha, regulatory.FAMILY, "osha-425-b1"))
+    assert any(f.measured == 190 for f in _bad(run(d, FAMILY, "uscg-432")))
+
+
+def test_uscg_432_deeper_than_130_needs_extras(uscg, run):
+    """46 CFR 197.432: deeper than 130 fsw: secondary supply, chamber, stage or bell, tender,
+    standby, reserve."""
+    d = uscg(max_depth=140, bottom_time_min=20, tender=None)
+    del d["gas_supply"]["secondary"]
+    got = _bad(run(d, FAMILY, "uscg-432"))
+    msgs = " | ".join(f.message for f in got)
+    assert "secondary" in msgs and "stage" in msgs and "tender" in msgs
+    assert all(f.severity == "fail" for f in got)
+    _all_pass(run(uscg(max_depth=140, bottom_time_min=20, stage=True), FAMILY, "uscg-432"))
+
+
+def test_uscg_432_not_triggered_at_130(uscg, run):
+    """46 CFR 197.432: the extra-equipment trigger is deeper than 130 fsw (OSHA: 100)."""
+    _all_pass(run(uscg(max_depth=120, bottom_time_min=20), FAMILY, "uscg-432"))
+
+
+def test_uscg_434_mixed_gas(uscg, run):
+    """46 CFR 197.434: chamber or closed bell ready; stage unless a bell; secondary gas."""
+    d = uscg(mode="surface-supplied-heliox", gas="16/84", max_depth=150, bottom_time_min=20)
+    d["chamber"]["on_site"] = False
+    got = _bad(run(d, FAMILY, "uscg-434"))
+    assert {f.rule for f in got} == {"uscg-434"}
+    assert len(got) == 2  # no chamber / closed bell; no stage or bell
+    d = uscg(mode="surface-supplied-heliox", gas="16/84", max_depth=150, bottom_time_min=20,
+             stage=True)
+    _all_pass(run(d, FAMILY, "uscg-434"))
+
+
+def test_uscg_346e_reserve(uscg, run):
+    """46 CFR 197.346(e)-(g): a diver-carried reserve outside the NDL."""
+    d = uscg(decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
+    d["gas_supply"]["bailout"] = []
+    [f] = _bad(run(d, FAMILY, "uscg-346e"))
+    assert (f.rule, f.severity, f.citation) == ("uscg-346e", "fail", "46 CFR 197.346(e)-(g)")
+    _all_pass(run(uscg(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]),
+                  FAMILY, "uscg-346e"))
+
+
+def test_uscg_332_chamber_6_ata(uscg, run):
+    """46 CFR 197.332: the chamber reaches 6 ATA (165 fsw) for dives to 300 fsw."""
+    d = uscg(max_depth=140, bottom_time_min=20, stage=True)
+    d["chamber"]["depth_capability"] = 150
+    [f] = _bad(run(d, FAMILY, "uscg-332"))
+    assert (f.rule, f.severity, f.measured, f.limit, f.citation) == (
+        "uscg-332", "fail", 150, 165.0, "46 CFR 197.332")
+    _all_pass(run(uscg(max_depth=140, bottom_time_min=20), FAMILY, "uscg-332"))
+
+
+def test_uscg_314_first_aid_and_treatment(uscg, run):
+    """46 CFR 197.314: first aid; deeper than 130 fsw also treatment tables and gas."""
+    d = uscg(max_depth=140, bottom_time_min=20)
+    d["chamber"]["equipment"]["treatment_gas"] = False
+    [f] = _bad(run(d, FAMILY, "uscg-314"))
+    assert (f.rule, f.severity, f.citation) == ("uscg-314", "fail", "46 CFR 197.314")
+    _all_pass(run(uscg(max_depth=140, bottom_time_min=20), FAMILY, "uscg-314"))
+
+
+def test_uscg_410_non_diving_chamber_operator(uscg, run):
+    """46 CFR 197.410: a non-diving member trained to operate the chamber deeper than 130."""
+    d = uscg(max_depth=140, bottom_time_min=20)
+    d["team"][4]["role"] = "tender"
+    [f] = _bad(run(d, FAMILY, "uscg-410"))
+    assert (f.rule, f.severity, f.citation) == ("uscg-410", "fail", "46 CFR 197.410")
+    _all_pass(run(uscg(max_depth=140, bottom_time_min=20), FAMILY, "uscg-410"))
+
+
+def test_uscg_rules_do_not_run_under_osha(base):
+    """The USCG rules apply only to the uscg-46-197-b jurisdiction."""
+    from supervisor.plan import plan_from_dict
+    from supervisor.rules.base import CheckContext
+
+    ctx = CheckContext(plan_from_dict(base()))
+    assert not any(r.applies(ctx) for r in FAMILY.rules)
