@@ -1,0 +1,175 @@
+"""`supervisor tables ...`: exit codes, stdout and stderr, and nothing changed on failure.
+
+Exit status (documented in supervisor/cli/tables.py and tables/README.md): validate 0 valid,
+1 fails validation, 2 unreadable; verify and import 0 done, 1 invalid table, 2 bad input.
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+import sys
+import tomllib
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from supervisor.cli import app
+from supervisor.references.canonical import dumps_table
+
+DATA = Path(__file__).resolve().parent.parent / "data"
+runner = CliRunner()
+
+
+def _copy(tmp_path: Path, kind: str) -> Path:
+    src = DATA / f"tables_fictional_{kind}.toml"
+    dst = tmp_path / src.name
+    dst.write_bytes(src.read_bytes())
+    return dst
+
+
+def _run(*args: str):
+    return runner.invoke(app, ["tables", *args])
+
+
+def test_list_shows_bundled_tables():
+    res = _run("list")
+    assert res.exit_code == 0, res.output
+    line = next(x for x in res.stdout.splitlines() if x.startswith("usn-rev7-air-ndl"))
+    assert "no-stop" in line and "FROM MEMORY" in line and line.endswith("0/24")
+    js = json.loads(_run("list", "--json").stdout)
+    assert js["schema"] == "supervisor.tables-list/1"
+    names = {t["name"] for t in js["tables"]}
+    assert {"usn-rev7-air-ndl", "zhl16c-gf30-85-air-fsw", "zhl16c-gf30-85-air-msw"} <= names
+
+
+def test_show_bundled_and_unknown():
+    res = _run("show", "usn-rev7-air-ndl")
+    assert res.exit_code == 0
+    assert "FROM MEMORY; 0 of 24 rows verified" in res.stdout
+    assert "unlimited" in res.stdout and "1102 min" in res.stdout
+    res = _run("show", "no-such-table")
+    assert res.exit_code == 2 and "no bundled table named" in res.stderr
+
+
+def test_show_decompression_file(tmp_path):
+    res = _run("show", str(_copy(tmp_path, "decompression")))
+    assert res.exit_code == 0
+    assert "20:3 10:8 oxygen" in res.stdout and "+1.5 ch-O2" in res.stdout and "EE" in res.stdout
+
+
+def test_validate_exit_codes(tmp_path):
+    good = _copy(tmp_path, "no_stop")
+    res = _run("validate", str(good))
+    assert res.exit_code == 0 and "valid (0 warning(s))" in res.stdout
+    doc = tomllib.loads(good.read_text("utf-8"))
+    doc["rows"][4]["no_stop_limit"] = 80
+    good.write_text(dumps_table(doc), "utf-8")
+    res = _run("validate", str(good))
+    assert res.exit_code == 1
+    assert "error: row 5 (60 fsw), column no_stop_limit:" in res.stdout
+    js = json.loads(_run("validate", str(good), "--json").stdout)
+    assert js["valid"] is False and js["issues"][0]["row"] == 5
+    bad = tmp_path / "broken.toml"
+    bad.write_text("schema = ", "utf-8")
+    res = _run("validate", str(bad))
+    assert res.exit_code == 2 and "not valid TOML" in res.stderr and res.stdout == ""
+    res = _run("validate", str(tmp_path / "missing.toml"))
+    assert res.exit_code == 2 and "cannot read" in res.stderr
+
+
+def test_validate_without_provenance_fails(tmp_path):
+    p = _copy(tmp_path, "no_stop")
+    doc = tomllib.loads(p.read_text("utf-8"))
+    del doc["provenance"]
+    p.write_text(dumps_table(doc), "utf-8")
+    res = _run("validate", str(p))
+    assert res.exit_code == 1 and "no [provenance] table" in res.stdout
+
+
+def test_verify_success_and_refusals(tmp_path):
+    p = _copy(tmp_path, "decompression")
+    before = p.read_bytes()
+    res = _run("verify", str(p), "--rows", "9", "--by", "Second Checker", "--method", "read")
+    assert res.exit_code == 2 and "--rows: row 9 does not exist" in res.stderr
+    res = _run("verify", str(p), "--rows", "all", "--by", "Test Author", "--method", "read")
+    assert res.exit_code == 2 and "second person" in res.stderr
+    assert p.read_bytes() == before
+    res = _run("verify", str(p), "--rows", "@60/40,4", "--by", "Second Checker",
+               "--method", "read aloud", "--on", "2026-12-02")
+    assert res.exit_code == 0, res.output
+    assert "recorded check by Second Checker of 2 row(s)" in res.stdout
+    listing = _run("show", str(p)).stdout
+    assert listing.count("VERIFIED, verified") == 2
+
+
+def test_verify_invalid_table_exit_1_unchanged(tmp_path):
+    p = _copy(tmp_path, "decompression")
+    p.write_text(p.read_text("utf-8").replace("total_ascent = 7\n", "total_ascent = 12\n"),
+                 "utf-8")
+    before = p.read_bytes()
+    res = _run("verify", str(p), "--rows", "all", "--by", "Second Checker", "--method", "read")
+    assert res.exit_code == 1 and "fails validation; nothing recorded" in res.stderr
+    assert "row 1" in res.stderr and p.read_bytes() == before
+
+
+def test_import_cli(tmp_path):
+    csv = tmp_path / "acme-ndl.csv"
+    csv.write_text("depth,no_stop_limit\n20,unlimited\n30,200\n", "utf-8")
+    res = _run("import", str(csv), "--kind", "no-stop", "--source", "ACME manual (fictional)",
+               "--edition", "rev 2", "--transcribed-by", "J. Smith")
+    assert res.exit_code == 0, res.output
+    assert "no-stop table acme-ndl with 2 rows, all unverified" in res.stdout
+    out = tmp_path / "acme-ndl.toml"
+    before = out.read_bytes()
+    res = _run("import", str(csv), "--kind", "no-stop", "--source", "other")
+    assert res.exit_code == 2 and "--force" in res.stderr and out.read_bytes() == before
+    bad = tmp_path / "bad.csv"
+    bad.write_text("depth,no_stop_limit\n20,100\n30,lots\n", "utf-8")
+    res = _run("import", str(bad), "--kind", "no-stop", "--source", "x")
+    assert res.exit_code == 2
+    assert res.stderr.strip().endswith("expected minutes (a number >= 0) or unlimited")
+    assert "bad.csv: row 2, column no_stop_limit" in res.stderr
+    inv = tmp_path / "inv.csv"
+    inv.write_text("depth,no_stop_limit\n20,100\n30,200\n", "utf-8")
+    res = _run("import", str(inv), "--kind", "no-stop", "--source", "x")
+    assert res.exit_code == 1 and "nothing written" in res.stderr
+    assert not (tmp_path / "inv.toml").exists()
+    res = _run("import", str(csv), "--kind", "saturation", "--source", "x")
+    assert res.exit_code == 2
+
+
+def test_build_and_screen_cli(tmp_path):
+    res = _run("build", "--out-dir", str(tmp_path), "--unit", "msw")
+    assert res.exit_code == 0, res.output
+    out = tmp_path / "zhl16c-gf30-85-air-msw.toml"
+    assert f"{out}: written" in res.stdout and not (tmp_path / "zhl16c-gf30-85-air-fsw.toml"
+                                                     ).exists()
+    res = _run("build", "--out-dir", str(tmp_path), "--unit", "msw")
+    assert f"{out}: unchanged" in res.stdout
+    res = _run("build", "--out-dir", str(tmp_path), "--gf", "90/30")
+    assert res.exit_code == 2 and "--gf" in res.stderr
+    res = _run("screen", str(out))
+    assert res.exit_code == 0 and "0 row(s) flagged" in res.stdout
+    doc = tomllib.loads(out.read_text("utf-8"))
+    last = doc["rows"][-1]["air"]["stops"][-1]
+    last["minutes"] = max(1, last["minutes"] // 10)  # a dropped digit
+    out.write_text(dumps_table(doc), "utf-8")
+    res = _run("screen", str(out), "--json")
+    assert res.exit_code == 1
+    js = json.loads(res.stdout)
+    assert js["flagged_rows"] == [len(doc["rows"])]
+    assert "also fails validation" in res.stderr
+    res = _run("screen", str(DATA / "tables_fictional_limits.toml"))
+    assert res.exit_code == 2 and "no-stop and decompression" in res.stderr
+
+
+@pytest.mark.skipif(shutil.which("supervisor", path=str(Path(sys.executable).parent)) is None,
+                    reason="console script not installed beside the interpreter")
+def test_console_script_tables_list():
+    exe = shutil.which("supervisor", path=str(Path(sys.executable).parent))
+    proc = subprocess.run([exe, "tables", "list"], capture_output=True, text=True, timeout=60)
+    assert proc.returncode == 0, proc.stderr
+    assert "usn-rev7-air-ndl" in proc.stdout
