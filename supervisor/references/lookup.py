@@ -51,7 +51,8 @@ class LookupResult:
     within_no_stop_limit : bool or None
         For a no-stop look-up: True when the bottom time is within the limit.
     repetitive_group : str or None
-        Group letter, when the table gives one.
+        Group letter, when the table gives one.  None means the table gives no
+        group for this dive: a repetitive-dive rule must treat it as missing data.
     exceptional_exposure : bool
         True when the source marks the schedule as exceptional exposure.
     mode : str or None
