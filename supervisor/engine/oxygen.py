@@ -275,6 +275,23 @@ def _read_table(path: Path) -> dict[str, Any]:
     return raw
 
 
+def _row_verified(row: dict[str, Any]) -> bool:
+    """A row counts as verified only with a checker's name and a matching content hash.
+
+    The hash is recomputed from the row's data columns, so a row edited after its
+    check is unverified again (the rule of the reference-table layer).
+    """
+    from supervisor.references.canonical import row_hash  # local: avoids an import cycle
+
+    stored = str(row.get("row_hash", "")).strip()
+    return (
+        row.get("verification") == "verified"
+        and bool(str(row.get("verified_by", "")).strip())
+        and bool(stored)
+        and stored == row_hash(row)
+    )
+
+
 def _info(raw: dict[str, Any]) -> TableInfo:
     prov = raw["provenance"]
     statuses = [r.get("source_status", prov["source_status"]) for r in raw["rows"]]
@@ -284,12 +301,7 @@ def _info(raw: dict[str, Any]) -> TableInfo:
         edition=prov["edition"],
         table=prov["table"],
         source_status=max(statuses, key=_STATUS_RANK.__getitem__),
-        verified=all(
-            r["verification"] == "verified"
-            and str(r.get("verified_by", "")).strip()
-            and str(r.get("row_hash", "")).strip()
-            for r in raw["rows"]
-        ),
+        verified=all(_row_verified(r) for r in raw["rows"]),
     )
 
 

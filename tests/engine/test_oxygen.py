@@ -558,22 +558,38 @@ def test_daily_bad_input_raises_input_error(pairs, kwargs, field):
     assert exc.value.field == field
 
 
-def test_verified_needs_checker_and_hash(tmp_path):
-    """A row marked verified without a checker's name and row hash does not count."""
+def test_verified_needs_checker_and_matching_hash(tmp_path):
+    """A row counts as verified only with a checker's name and a row hash that matches its
+    content; editing a verified row voids the check (project rule of the table layer)."""
+    import tomllib
+
+    import tomli_w
+
+    from supervisor.references.canonical import row_hash
+
     src = tables_dir() / "limits" / f"{ox.PULMONARY_TABLE}.toml"
-    text = src.read_text(encoding="utf-8").replace(
-        'verification = "unverified"', 'verification = "verified"'
-    )
+    doc = tomllib.loads(src.read_text(encoding="utf-8"))
+    for r in doc["rows"]:
+        r["verification"] = "verified"
     dst = tmp_path / src.name
-    dst.write_text(text, encoding="utf-8")
-    assert not ox.load_pulmonary_limits(dst).info.verified
-    dst.write_text(
-        text.replace('verified_by = ""', 'verified_by = "checker"').replace(
-            'row_hash = ""', 'row_hash = "0123abcd"'
-        ),
-        encoding="utf-8",
-    )
+    dst.write_text(tomli_w.dumps(doc), encoding="utf-8")
+    assert not ox.load_pulmonary_limits(dst).info.verified  # no checker, no hash
+    for r in doc["rows"]:
+        r["verified_by"] = "checker"
+        r["row_hash"] = "0123abcd"
+    dst.write_text(tomli_w.dumps(doc), encoding="utf-8")
+    ox._pulmonary_limits_cached.cache_clear()
+    assert not ox.load_pulmonary_limits(dst).info.verified  # hash does not match
+    for r in doc["rows"]:
+        r["row_hash"] = row_hash(r)
+    dst.write_text(tomli_w.dumps(doc), encoding="utf-8")
     ox._pulmonary_limits_cached.cache_clear()
     info = ox.load_pulmonary_limits(dst).info
     assert info.verified
     assert not info.usable_without_review  # still FROM MEMORY / SECONDARY
+    doc["rows"][0]["daily_allowance_otu"] = 900  # a transcription slip after the check
+    doc["rows"][0]["total_allowance_otu"] = 900
+    dst.write_text(tomli_w.dumps(doc), encoding="utf-8")
+    ox._pulmonary_limits_cached.cache_clear()
+    assert not ox.load_pulmonary_limits(dst).info.verified  # edited after the check
+
