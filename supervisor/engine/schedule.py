@@ -76,7 +76,8 @@ CONVENTIONS: dict[str, str] = {
     "during travel",
     "gradient_factors": "GF low at the first stop, GF high at the surface, linear in depth between",
     "no_stop_limit": "longest whole-minute bottom time whose GF-high ceiling at leaving the "
-    "bottom is at the surface",
+    "bottom is at the surface; compartments still loading during the ascent can surface "
+    "slightly above GF high, see surfacing_gf_percent",
     "air": "21 % O2, 79 % N2",
     "initial_tissues": "saturated with air at the surface pressure",
     "water_vapour": "0.0627 bar subtracted from the inspired pressure (Buhlmann, RQ 1)",
