@@ -10,6 +10,7 @@ from __future__ import annotations
 import typer
 
 from supervisor import __version__
+from supervisor.cli import check as _check
 from supervisor.cli import checklist as _checklist
 from supervisor.cli import plan as _plan
 from supervisor.cli import schedule as _schedule
@@ -39,7 +40,7 @@ def _root(
     """Check proposed dive and chamber schedules before anyone gets wet."""
 
 
-for _mod in (_schedule, _tables, _plan, _checklist):
+for _mod in (_schedule, _tables, _plan, _check, _checklist):
     _mod.register(app)
 
 

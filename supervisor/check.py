@@ -1,0 +1,493 @@
+"""The check orchestrator: plan -> engine results -> rules -> findings -> verdict.
+
+:func:`run_check` reads and validates a plan, lets the *providers* compute the
+engine-backed sections of each dive (model schedule, ...), runs every rule
+family, and returns the ``supervisor.check/1`` JSON object described in
+DEVELOPERS.md.
+
+Extension points
+----------------
+``PROVIDERS``
+    Functions ``provider(ctx) -> iterable of Finding`` run before the rules.
+    A provider stores its results in ``ctx.dive_data[dive_id][key]`` (merged
+    into that dive's JSON entry, e.g. ``"model_schedule"``, ``"oxygen"``) or in
+    ``ctx.shared`` (``"references"``, ``"coefficient_status"``).  A provider that
+    raises becomes a "could not be computed" warning.
+``supervisor.rules.FAMILIES``
+    The rule families.  A topic of ``EXPECTED_FAMILIES`` with no registered
+    family gives a "needs review: ... not checked" warning, so a plan cannot
+    conform while a whole area is unchecked.
+
+The result supports a qualified supervisor's decision; it never makes it.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import hashlib
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from supervisor import __version__
+from supervisor.findings import Finding, could_not_run, counts, sort_findings, verdict
+from supervisor.plan import (
+    Dive,
+    Plan,
+    parse_plan_bytes,
+    plan_sha256,
+    plan_to_json,
+    read_plan_bytes,
+)
+from supervisor.rules import FAMILIES
+from supervisor.rules.base import CheckContext, Family
+
+SCHEMA = "supervisor.check/1"
+
+CAUTIONS: tuple[str, ...] = (
+    "This check supports the diving supervisor's decision; it does not make it.",
+    "Rules are paraphrases of the regulations, not legal text and not legal advice; state "
+    "plans, local codes and the contractor's manual may be stricter and take precedence.",
+    "Decompression, oxygen and treatment decisions rest with the diving supervisor, the "
+    "contractor's manual, a diving medical officer and licensed practice.",
+    "Figures marked SECONDARY, FROM MEMORY, OLDER-EDITION or DERIVED must be confirmed "
+    "against the current primary document before they are relied on.",
+    "Every decompression schedule carries a residual risk of decompression sickness.",
+)
+
+#: Per-dive sections filled by engine-backed providers; ``None`` until one does.
+ENGINE_SECTIONS: tuple[str, ...] = (
+    "reference_schedule",
+    "model_schedule",
+    "model_margin",
+    "oxygen",
+    "gas_supply",
+    "contingency",
+    "chart",
+    "compartments",
+)
+
+
+@dataclass(frozen=True)
+class Expected:
+    """A rule family the check expects, and when it applies.
+
+    Parameters
+    ----------
+    rule : str
+        Rule id of the "not checked" warning.
+    message : str
+        What is not checked.
+    applies : callable
+        ``applies(plan) -> bool``: whether the plan needs this family at all.
+    """
+
+    rule: str
+    message: str
+    applies: Callable[[Plan], bool]
+
+
+def _always(plan: Plan) -> bool:
+    return True
+
+
+def _repetitive_or_altitude(plan: Plan) -> bool:
+    return plan.site.altitude_m > 0 or any(
+        d.surface_interval_min is not None or d.previous_dive is not None for d in plan.dives
+    )
+
+
+EXPECTED_FAMILIES: dict[str, Expected] = {
+    "tables": Expected("table-not-checked", "reference table not checked", _always),
+    "model-margin": Expected(
+        "model-margin-not-checked", "decompression model margin not checked", _always
+    ),
+    "oxygen": Expected("oxygen-not-checked", "oxygen exposure not checked", _always),
+    "gas": Expected("gas-not-checked", "breathing gas limits not checked", _always),
+    "gas-supply": Expected("gas-supply-not-checked", "gas supply quantities not checked", _always),
+    "repetitive-altitude": Expected(
+        "repetitive-altitude-not-checked",
+        "repetitive dive or altitude correction not checked",
+        _repetitive_or_altitude,
+    ),
+    "contingency": Expected(
+        "contingency-not-checked", "contingency schedules not checked", _always
+    ),
+}
+
+Provider = Callable[[CheckContext], Iterable[Finding]]
+
+
+# ---------------------------------------------------------------------------
+# providers
+
+
+def _deco_gases(dive: Dive) -> tuple[tuple[str, float], ...]:
+    """Decompression gases of the planned water stops and the deepest depth each is used."""
+    out: dict[str, float] = {}
+    bottom = dive.gas_mix.name
+    for s in dive.water_stops:
+        g = dive.stop_gas(s).name
+        if g != bottom and g not in out:
+            out[g] = s.depth
+    return tuple(out.items())
+
+
+def schedule_request(ctx: CheckContext, dive: Dive) -> Any:
+    """Build the engine's ``ScheduleRequest`` for a dive as the policy sets the model.
+
+    Parameters
+    ----------
+    ctx : CheckContext
+    dive : Dive
+
+    Returns
+    -------
+    supervisor.engine.schedule.ScheduleRequest
+    """
+    from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression
+
+    plan, pol = ctx.plan, ctx.policy
+    surd = None
+    if dive.decompression == "surface-oxygen" and dive.chamber_stops:
+        from supervisor.rules.procedure import surd_interval_min
+
+        ws = dive.water_stops
+        leave = max(ws[-1].depth if ws else float(pol.last_stop), float(pol.last_stop))
+        si = surd_interval_min(ctx, dive)
+        surd = SurfaceDecompression(
+            leave_water_depth=leave,
+            surface_interval_min=si if si is not None else 5.0,
+            chamber_depth=dive.chamber_stops[0].depth,
+            chamber_gas=dive.stop_gas(dive.chamber_stops[0]).name,
+        )
+    return ScheduleRequest(
+        depth=dive.max_depth,
+        bottom_time_min=dive.bottom_time_min,
+        unit=plan.unit,
+        gas=dive.gas_mix.name,
+        model=pol.model,
+        gf_low=pol.gf_low / 100.0,
+        gf_high=pol.gf_high / 100.0,
+        descent_rate=plan.descent_rate(dive),
+        ascent_rate=plan.ascent_rate(dive),
+        stop_step=float(pol.stop_step),
+        last_stop=float(pol.last_stop),
+        deco_gases=_deco_gases(dive),
+        p_surface_bar=plan.p_surface_bar,
+        water=plan.site.water,
+        o2_air_break=(30.0, 5.0) if dive.decompression == "in-water-oxygen" else None,
+        surface_decompression=surd,
+    )
+
+
+def model_schedule_provider(ctx: CheckContext) -> Iterator[Finding]:
+    """Fill ``model_schedule`` per dive from the engine (first dives only).
+
+    A repetitive dive (one with a surface interval) starts with residual gas
+    the repetitive family must carry over; its model schedule is left ``None``
+    here rather than computed from clean tissues, which would understate it.
+    """
+    try:
+        from supervisor.engine.schedule import plan_schedule
+    except ModuleNotFoundError:  # pragma: no cover - the engine ships with the package
+        return
+    from supervisor.engine.buhlmann import load_coefficients
+
+    coeffs = load_coefficients(ctx.policy.model)
+    helium = any(
+        d.gas_mix.fhe > 0 or any(d.stop_gas(s).fhe > 0 for s in d.stops) for d in ctx.plan.dives
+    )
+    status = coeffs.status_for(helium)
+    ctx.shared["coefficient_status"] = status
+    ctx.shared.setdefault("references", []).append(
+        {
+            "name": coeffs.model,
+            "title": coeffs.title,
+            "edition": coeffs.edition,
+            "source_status": status,
+            "verification": None,
+        }
+    )
+    for d in ctx.plan.dives:
+        if d.surface_interval_min is not None or d.previous_dive is not None:
+            continue
+        try:
+            res = plan_schedule(schedule_request(ctx, d))
+        except Exception as exc:  # any engine failure becomes a warning
+            yield Finding(
+                rule="model-schedule",
+                severity="warn",
+                message=f"model schedule could not be computed ({type(exc).__name__}: {exc})",
+                citation="decompression model (policy.model)",
+                dive=d.id,
+                verified=False,
+                family="engine",
+            )
+            continue
+        j = res.to_json()
+        ctx.dive_data[d.id]["model_schedule"] = {
+            "stops": j["stops"],
+            "total_stop_min": j["total_stop_min"],
+            "total_ascent_min": j["total_ascent_min"],
+            "no_stop_limit_min": j["no_stop_limit_min"],
+            "first_stop_depth": j["first_stop_depth"],
+            "surfacing_gf_percent": j["surfacing_gf_percent"],
+            "controlling_compartment": j["controlling_compartment"],
+            "coefficient_status": j["coefficient_status"],
+        }
+
+
+PROVIDERS: list[Provider] = [model_schedule_provider]
+
+
+# ---------------------------------------------------------------------------
+# running
+
+
+@dataclass
+class RuleRun:
+    """Record of one rule's run, for the audit list in the result."""
+
+    rule: str
+    name: str
+    family: str
+    title: str
+    citation: str
+    source_status: str | None
+    kind: str
+    findings: int
+    error: str | None = None
+
+    def to_json(self) -> dict[str, Any]:
+        """JSON-ready dictionary."""
+        return dict(self.__dict__)
+
+
+def run_providers(ctx: CheckContext, providers: Sequence[Provider]) -> list[Finding]:
+    """Run the providers; a provider that raises becomes a warning."""
+    out: list[Finding] = []
+    for prov in providers:
+        name = getattr(prov, "__name__", "provider")
+        try:
+            out.extend(prov(ctx))
+        except Exception as exc:  # never let one provider stop the check
+            out.append(could_not_run(name, exc, family="engine"))
+    return out
+
+
+def run_families(
+    ctx: CheckContext, families: Sequence[Family]
+) -> tuple[list[Finding], list[RuleRun]]:
+    """Run every applicable rule of ``families``.
+
+    A rule that raises, or returns something other than findings, yields a
+    ``warn`` finding "rule could not run" in place of its answer.
+    """
+    findings: list[Finding] = []
+    runs: list[RuleRun] = []
+    for fam in families:
+        for rule in fam.rules:
+            if not rule.applies(ctx):
+                continue
+            error = None
+            try:
+                got = rule.run(ctx)
+                if not all(isinstance(f, Finding) for f in got):
+                    raise TypeError("the rule returned something other than findings")
+            except Exception as exc:  # a failing rule must not pass silently
+                got = [could_not_run(rule.id, exc, rule.citation, fam.name)]
+                error = f"{type(exc).__name__}: {exc}"
+            findings.extend(got)
+            runs.append(
+                RuleRun(
+                    rule.id,
+                    rule.name,
+                    fam.name,
+                    rule.title,
+                    rule.citation,
+                    rule.source_status,
+                    rule.kind,
+                    len(got),
+                    error,
+                )
+            )
+    return findings, runs
+
+
+def pending_findings(plan: Plan, families: Sequence[Family]) -> list[Finding]:
+    """Warnings for expected families that are not registered."""
+    present = {f.name for f in families}
+    out = []
+    for name, exp in EXPECTED_FAMILIES.items():
+        if name in present or not exp.applies(plan):
+            continue
+        out.append(
+            Finding(
+                rule=exp.rule,
+                severity="warn",
+                message=f"needs review: {exp.message}",
+                citation="not yet checked by this tool; check by hand",
+                verified=False,
+                family=name,
+            )
+        )
+    return out
+
+
+def _dive_entry(ctx: CheckContext, d: Dive, findings: list[Finding]) -> dict[str, Any]:
+    entry: dict[str, Any] = {
+        "id": d.id,
+        "diver": d.diver,
+        "mode": d.mode,
+        "gas": d.gas_mix.name,
+        "max_depth": d.max_depth,
+        "bottom_time_min": d.bottom_time_min,
+        "decompression": d.decompression,
+        "proposed_stops": [
+            {"depth": s.depth, "minutes": s.minutes, "gas": d.stop_gas(s).name, "place": s.place}
+            for s in d.stops
+        ],
+        "descent_rate": ctx.plan.descent_rate(d),
+        "ascent_rate": ctx.plan.ascent_rate(d),
+        "in_water_stop_min": d.in_water_stop_min,
+        "chamber_stop_min": float(sum(s.minutes for s in d.chamber_stops)),
+        "surface_interval_min": d.surface_interval_min,
+        "previous_dive": d.previous_dive,
+        "standby_diver": d.standby_diver,
+        "tender": d.tender,
+        "verdict": verdict([f for f in findings if f.dive in (d.id, None)]),
+    }
+    for key in ENGINE_SECTIONS:
+        entry[key] = None
+    entry.update(ctx.dive_data.get(d.id, {}))
+    return entry
+
+
+def check_plan(
+    plan: Plan,
+    *,
+    plan_path: str | None = None,
+    plan_sha: str | None = None,
+    now: _dt.datetime | None = None,
+    families: Sequence[Family] | None = None,
+    providers: Sequence[Provider] | None = None,
+) -> dict[str, Any]:
+    """Check a validated plan and return the ``supervisor.check/1`` object.
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan.
+    plan_path : str or None
+        Path as given, recorded in the result.
+    plan_sha : str or None
+        SHA-256 of the plan file bytes; of the canonical JSON of the plan if ``None``.
+    now : datetime or None
+        Time stamp of the result (UTC now by default).
+    families : sequence of Family or None
+        Rule families (``supervisor.rules.FAMILIES`` by default).
+    providers : sequence of callables or None
+        Engine-backed providers (``PROVIDERS`` by default).
+
+    Returns
+    -------
+    dict
+        The result; see DEVELOPERS.md for the keys.
+    """
+    fams = tuple(FAMILIES if families is None else families)
+    provs = tuple(PROVIDERS if providers is None else providers)
+    ctx = CheckContext(plan)
+    found = run_providers(ctx, provs)
+    rule_findings, runs = run_families(ctx, fams)
+    found += rule_findings
+    found += pending_findings(plan, fams)
+    found = sort_findings(found)
+    stamp = (now or _dt.datetime.now(_dt.UTC)).astimezone(_dt.UTC)
+    pol = ctx.policy
+    sha = plan_sha or hashlib.sha256(plan_to_json(plan).encode()).hexdigest()
+    job = plan.job
+    return {
+        "schema": SCHEMA,
+        "tool_version": __version__,
+        "generated_at": stamp.strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "plan_sha256": sha,
+        "plan_path": plan_path,
+        "job": {
+            "title": job.title,
+            "site": job.site,
+            "date": job.date.isoformat(),
+            "client": job.client,
+            "supervisor": job.supervisor,
+            "jurisdiction": job.jurisdiction,
+            "contractor": job.contractor,
+        },
+        "unit": plan.unit,
+        "verdict": verdict(found),
+        "counts": counts(found),
+        "findings": [f.to_json() for f in found],
+        "references": list(ctx.shared.get("references", [])),
+        "model": {
+            "name": pol.model,
+            "gf_low": round(pol.gf_low / 100.0, 6),
+            "gf_high": round(pol.gf_high / 100.0, 6),
+            "coefficient_status": ctx.shared.get("coefficient_status"),
+        },
+        "policy": pol.model_dump(mode="json"),
+        "dives": [_dive_entry(ctx, d, found) for d in plan.dives],
+        "team": [
+            {
+                "name": m.name,
+                "role": m.role[0],
+                "roles": list(m.role),
+                "first_aid_cpr": m.first_aid_cpr,
+                "physics_physiology": m.physics_physiology,
+            }
+            for m in plan.team
+        ],
+        "chamber": plan.chamber.model_dump(mode="json"),
+        "site": plan.site.model_dump(mode="json"),
+        "rules": [r.to_json() for r in runs],
+        "cautions": list(CAUTIONS),
+    }
+
+
+def run_check(
+    plan: str | Path | Plan,
+    *,
+    now: _dt.datetime | None = None,
+    families: Sequence[Family] | None = None,
+    providers: Sequence[Provider] | None = None,
+) -> dict[str, Any]:
+    """Read, validate and check a plan file (or a :class:`Plan`).
+
+    Parameters
+    ----------
+    plan : str, Path or Plan
+        Plan file path, or an already validated plan.
+    now, families, providers
+        See :func:`check_plan`.
+
+    Returns
+    -------
+    dict
+        The ``supervisor.check/1`` object.
+
+    Raises
+    ------
+    supervisor.plan.PlanValidationError
+        If the file cannot be read, is not TOML, or does not validate.
+    """
+    if isinstance(plan, Plan):
+        return check_plan(plan, now=now, families=families, providers=providers)
+    raw = read_plan_bytes(plan)
+    parsed = parse_plan_bytes(raw, str(plan))
+    return check_plan(
+        parsed,
+        plan_path=str(plan),
+        plan_sha=plan_sha256(raw),
+        now=now,
+        families=families,
+        providers=providers,
+    )

@@ -1,0 +1,193 @@
+"""The check orchestrator: the supervisor.check/1 contract and its wiring (project logic)."""
+
+from __future__ import annotations
+
+import datetime as dt
+import hashlib
+import json
+import tomllib
+from pathlib import Path
+
+import pytest
+
+from supervisor.check import EXPECTED_FAMILIES, SCHEMA, run_check
+from supervisor.findings import Finding
+from supervisor.plan import PlanValidationError, plan_from_dict
+from supervisor.rules import FAMILIES
+from supervisor.rules.base import Family
+
+PLANS = Path(__file__).resolve().parent / "data" / "plans"
+BASE = PLANS / "base-fsw.toml"
+NOW = dt.datetime(2026, 5, 14, 6, 30, tzinfo=dt.UTC)
+
+
+def _data(unit: str = "fsw") -> dict:
+    return tomllib.loads((PLANS / f"base-{unit}.toml").read_text(encoding="utf-8"))
+
+
+def _stand_ins(*, fail: bool = False) -> list[Family]:
+    """One family per expected topic, each with one passing (or failing) rule."""
+    out = []
+    for name in EXPECTED_FAMILIES:
+        fam = Family(name, name)
+
+        @fam.rule(f"{name}-stand-in", title="stand-in", citation="test", kind="policy")
+        def _rule(ctx, r, _fail=fail):
+            yield r.breach("stand-in breach") if _fail else r.ok("stand-in pass")
+
+        out.append(fam)
+    return out
+
+
+def test_contract_keys():
+    r = run_check(BASE, now=NOW)
+    for key in ("schema", "tool_version", "generated_at", "plan_sha256", "plan_path", "job",
+                "unit", "verdict", "counts", "findings", "references", "model", "dives",
+                "team", "chamber", "cautions"):
+        assert key in r, key
+    assert r["schema"] == SCHEMA == "supervisor.check/1"
+    assert r["generated_at"] == "2026-05-14T06:30:00Z"
+    assert r["plan_path"] == str(BASE)
+    assert r["plan_sha256"] == hashlib.sha256(BASE.read_bytes()).hexdigest()
+    assert set(r["job"]) == {"title", "site", "date", "client", "supervisor", "jurisdiction",
+                             "contractor"}
+    assert r["job"]["date"] == "2026-05-14"
+    assert r["model"] == {"name": "zhl16c", "gf_low": 0.3, "gf_high": 0.85,
+                          "coefficient_status": r["model"]["coefficient_status"]}
+    assert set(r["counts"]) == {"fail", "warn", "info", "pass"}
+    assert sum(r["counts"].values()) == len(r["findings"])
+    [dive] = r["dives"]
+    for key in ("id", "diver", "mode", "gas", "max_depth", "bottom_time_min", "decompression",
+                "proposed_stops", "reference_schedule", "model_schedule", "model_margin",
+                "oxygen", "gas_supply", "contingency", "chart", "compartments"):
+        assert key in dive, key
+    assert r["team"][0] == {"name": "Sam Supervisor", "role": "supervisor",
+                            "roles": ["supervisor"], "first_aid_cpr": True,
+                            "physics_physiology": True}
+    json.dumps(r)
+
+
+def test_findings_sorted_worst_first_and_complete():
+    d = _data()
+    d["dives"][0].update(mode="scuba", max_depth=140, bottom_time_min=10, descent_rate=70)
+    r = run_check(plan_from_dict(d), now=NOW)
+    order = {"fail": 0, "warn": 1, "info": 2, "pass": 3}
+    ranks = [order[f["severity"]] for f in r["findings"]]
+    assert ranks == sorted(ranks)
+    assert r["verdict"] == "does-not-conform"
+    f = next(f for f in r["findings"] if f["rule"] == "osha-424-b1")
+    assert (f["severity"], f["measured"], f["limit"], f["citation"]) == (
+        "fail", 140, 130.0, "29 CFR 1910.424(b)(1)")
+    assert r["dives"][0]["verdict"] == "does-not-conform"
+    assert r["plan_path"] is None
+
+
+def test_unchecked_areas_keep_the_verdict_at_needs_review():
+    """The base plan passes every rule here, but whole areas are not yet checked."""
+    r = run_check(BASE, now=NOW, families=FAMILIES)
+    assert r["counts"]["fail"] == 0
+    warn_rules = {f["rule"] for f in r["findings"] if f["severity"] == "warn"}
+    assert "table-not-checked" in warn_rules
+    msg = next(f["message"] for f in r["findings"] if f["rule"] == "table-not-checked")
+    assert msg == "needs review: reference table not checked"
+    assert r["verdict"] == "needs-review"
+
+
+def test_conforms_when_every_area_is_checked_and_passes():
+    r = run_check(BASE, now=NOW, families=(*FAMILIES, *_stand_ins()), providers=[])
+    assert r["verdict"] == "conforms", [f for f in r["findings"] if f["severity"] != "pass"]
+    assert not any(f["rule"].endswith("-not-checked") for f in r["findings"])
+
+
+def test_policy_family_breach_fails():
+    r = run_check(BASE, now=NOW, families=(*FAMILIES, *_stand_ins(fail=True)), providers=[])
+    assert r["verdict"] == "does-not-conform"
+
+
+def test_a_rule_that_raises_becomes_a_warning():
+    fam = Family("broken", "broken")
+
+    @fam.rule("broken-rule", title="raises", citation="test citation")
+    def _boom(ctx, r):
+        raise ZeroDivisionError("boom")
+        yield  # pragma: no cover
+
+    r = run_check(BASE, now=NOW, families=(*FAMILIES, *_stand_ins(), fam), providers=[])
+    f = next(f for f in r["findings"] if f["rule"] == "broken-rule")
+    assert f["severity"] == "warn"
+    assert "rule could not run" in f["message"] and "ZeroDivisionError" in f["message"]
+    assert f["citation"] == "test citation"
+    assert r["verdict"] == "needs-review"
+    run = next(x for x in r["rules"] if x["rule"] == "broken-rule")
+    assert run["error"] == "ZeroDivisionError: boom"
+
+
+def test_a_rule_returning_garbage_becomes_a_warning():
+    fam = Family("garbage", "garbage")
+
+    @fam.rule("garbage-rule", title="returns text", citation="test")
+    def _text(ctx, r):
+        return ["fine"]
+
+    r = run_check(BASE, now=NOW, families=(*FAMILIES, *_stand_ins(), fam), providers=[])
+    f = next(f for f in r["findings"] if f["rule"] == "garbage-rule")
+    assert f["severity"] == "warn"
+    assert r["verdict"] == "needs-review"
+
+
+def test_a_provider_that_raises_becomes_a_warning():
+    def broken(ctx):
+        raise RuntimeError("no engine")
+
+    r = run_check(BASE, now=NOW, families=(*FAMILIES, *_stand_ins()), providers=[broken])
+    f = next(f for f in r["findings"] if f["rule"] == "broken")
+    assert f["severity"] == "warn" and "RuntimeError" in f["message"]
+    assert r["verdict"] == "needs-review"
+
+
+def test_provider_results_reach_the_dive_entry():
+    def fill(ctx):
+        for d in ctx.plan.dives:
+            ctx.dive_data[d.id]["oxygen"] = {"max_po2": 0.59}
+        ctx.shared["references"] = [{"name": "t", "title": "T", "edition": "1",
+                                     "source_status": "VERIFIED", "verification": "verified"}]
+        return [Finding(rule="x", severity="pass", message="ok")]
+
+    r = run_check(BASE, now=NOW, providers=[fill])
+    assert r["dives"][0]["oxygen"] == {"max_po2": 0.59}
+    assert r["references"][0]["name"] == "t"
+
+
+def test_model_schedule_filled_for_a_first_dive():
+    pytest.importorskip("supervisor.engine.schedule")
+    r = run_check(BASE, now=NOW)
+    ms = r["dives"][0]["model_schedule"]
+    assert set(ms) >= {"stops", "total_stop_min", "total_ascent_min", "no_stop_limit_min"}
+    assert r["model"]["coefficient_status"] is not None
+
+
+def test_model_schedule_left_to_the_repetitive_family():
+    d = _data()
+    d["dives"].append(dict(d["dives"][0], id="D2", previous_dive="D1", surface_interval_min=120))
+    r = run_check(plan_from_dict(d), now=NOW)
+    assert r["dives"][1]["model_schedule"] is None
+    assert any(f["rule"] == "repetitive-altitude-not-checked" for f in r["findings"])
+
+
+def test_msw_plan_checks():
+    r = run_check(PLANS / "base-msw.toml", now=NOW)
+    assert r["unit"] == "msw"
+    assert r["counts"]["fail"] == 0
+
+
+def test_bad_file_raises_plan_validation_error(tmp_path):
+    p = tmp_path / "p.toml"
+    p.write_text("schema = 1\n", encoding="utf-8")
+    with pytest.raises(PlanValidationError):
+        run_check(p)
+
+
+def test_same_plan_same_findings():
+    a = run_check(BASE, now=NOW)
+    b = run_check(BASE, now=NOW)
+    assert a == b
