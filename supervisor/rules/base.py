@@ -123,6 +123,23 @@ class CheckContext:
                 return m
         return None
 
+    def outside_ndl(self, dive: Dive) -> bool:
+        """Whether ``dive`` is outside the no-decompression limits, as far as anything says.
+
+        True when the plan declares decompression, or when an engine-backed section
+        (``model_schedule`` or ``reference_schedule`` in ``dive_data``) requires stops
+        or marks the dive outside its table.  A dive is never taken as within the
+        limits just because the plan says so; the table and model rules check it.
+        """
+        if dive.declared_outside_ndl:
+            return True
+        data = self.dive_data.get(dive.id, {})
+        for key in ("model_schedule", "reference_schedule"):
+            sec = data.get(key)
+            if isinstance(sec, dict) and (sec.get("stops") or sec.get("outside_table")):
+                return True
+        return False
+
     def has_bailout(self, dive: Dive) -> bool:
         """Whether the dive's diver carries a bailout cylinder (diver-carried reserve)."""
         return any(b.diver == dive.diver for b in self.plan.gas_supply.bailout)

@@ -10,10 +10,11 @@ The rule text here is a paraphrase, not the regulation and not legal advice;
 state plans and local codes may add requirements.  29 CFR 1926 Subpart Y
 declares itself identical to Subpart T, so the OSHA rules serve both.
 
-"Outside the no-decompression limits" is taken from the plan's declared
-decompression (stops or a decompression mode); whether a dive declared
-``decompression = "none"`` really is within the limits is the table and model
-rules' question.
+"Outside the no-decompression limits" means the plan declares decompression, or
+an engine-backed section (model or reference schedule) requires stops
+(:meth:`~supervisor.rules.base.CheckContext.outside_ndl`); whether a dive
+declared ``decompression = "none"`` really is within the limits is also the table
+and model rules' question.
 
 References
 ----------
@@ -48,8 +49,8 @@ def mixed_status(dive: Dive, status: str) -> str:
     return NITROX_AS_MIXED_STATUS if dive.mode == "surface-supplied-nitrox" else status
 
 
-def _deco_text(dive: Dive) -> str:
-    return "outside the no-decompression limits" if dive.declared_outside_ndl else ""
+def _deco_text(ctx: CheckContext, dive: Dive) -> str:
+    return "outside the no-decompression limits" if ctx.outside_ndl(dive) else ""
 
 
 # ---------------------------------------------------------------------------
@@ -104,9 +105,10 @@ def osha_scuba_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     ch = ctx.plan.chamber
     for d in ctx.dives(SCUBA):
         deep = ctx.fsw(d.max_depth) > 100
-        if not (deep or d.declared_outside_ndl):
+        if not (deep or ctx.outside_ndl(d)):
             continue
-        why = f"SCUBA to {ctx.show(d.max_depth)}" + (f", {_deco_text(d)}" if _deco_text(d) else "")
+        deco = _deco_text(ctx, d)
+        why = f"SCUBA to {ctx.show(d.max_depth)}" + (f", {deco}" if deco else "")
         kw = dict(measured=d.max_depth, limit=ctx.limit(100), unit=ctx.unit, dive=d.id)
         if not ch.ready:
             yield r.breach(f"no chamber ready for use: {why}", **kw)
@@ -255,7 +257,7 @@ def osha_ssa_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """A ready chamber at the site for deep or decompression surface-supplied air dives."""
     ch = ctx.plan.chamber
     for d in ctx.dives(SS_AIR):
-        if not (ctx.fsw(d.max_depth) > 100 or d.declared_outside_ndl):
+        if not (ctx.fsw(d.max_depth) > 100 or ctx.outside_ndl(d)):
             continue
         kw = dict(measured=d.max_depth, limit=ctx.limit(100), unit=ctx.unit, dive=d.id)
         if ch.on_site and ch.ready:
@@ -306,7 +308,7 @@ def osha_ssa_tended(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 
 
 def _deep_or_deco(ctx: CheckContext, d: Dive) -> bool:
-    return ctx.fsw(d.max_depth) > 100 or d.declared_outside_ndl
+    return ctx.fsw(d.max_depth) > 100 or ctx.outside_ndl(d)
 
 
 @FAMILY.rule(
@@ -539,7 +541,7 @@ def _osha_chamber_triggers(ctx: CheckContext, d: Dive) -> list[str]:
         why.append("surface-supplied air deeper than 100 and shallower than 220 fsw")
     if d.mode in MIXED and fsw < 300:
         why.append("mixed gas shallower than 300 fsw")
-    if d.declared_outside_ndl and fsw < 300:
+    if ctx.outside_ndl(d) and fsw < 300:
         why.append("outside the no-decompression limits, shallower than 300 fsw")
     return why
 

@@ -159,7 +159,7 @@ def _chamber_reasons(ctx: CheckContext) -> list[str]:
     for d in ctx.dives():
         if d.decompression == "surface-oxygen":
             out.append(f"{d.id}: surface decompression")
-        elif d.declared_outside_ndl:
+        elif ctx.outside_ndl(d):
             out.append(f"{d.id}: decompression dive")
         elif ctx.fsw(d.max_depth) > 100:
             out.append(f"{d.id}: deeper than 100 fsw")

@@ -63,7 +63,7 @@ def uscg_scuba(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.breach(f"SCUBA to {ctx.show(d.max_depth)} is deeper than 130 fsw", **kw)
         else:
             yield r.ok("SCUBA within 130 fsw", **kw)
-        if d.declared_outside_ndl:
+        if ctx.outside_ndl(d):
             yield r.breach(
                 "SCUBA outside the no-decompression limits is not allowed",
                 dive=d.id,
@@ -114,7 +114,7 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             cond = "deeper than 220 fsw" if short else "190 fsw or deeper with more than 30 min"
             yield r.breach(f"surface-supplied air to {ctx.show(d.max_depth)}: {cond}", **kw)
-        if not (fsw > 130 or d.declared_outside_ndl):
+        if not (fsw > 130 or ctx.outside_ndl(d)):
             continue
         bad = []
         if gs.secondary is None:
@@ -215,7 +215,7 @@ def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """More than the primary supply and a diver-carried reserve; standby hose with heavy gear."""
     gs = ctx.plan.gas_supply
     for d in ctx.dives(*SURFACE_SUPPLIED):
-        if not (ctx.fsw(d.max_depth) > 130 or d.declared_outside_ndl or d.mode in MIXED):
+        if not (ctx.fsw(d.max_depth) > 130 or ctx.outside_ndl(d) or d.mode in MIXED):
             continue
         if gs.secondary is None:
             yield r.breach("only the primary supply on site", dive=d.id)
@@ -234,7 +234,7 @@ def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 def _uscg_chamber_needed(ctx: CheckContext, d: Dive) -> bool:
     return (
         ctx.fsw(d.max_depth) > 130
-        or d.declared_outside_ndl
+        or ctx.outside_ndl(d)
         or d.mode in MIXED
         or d.decompression == "surface-oxygen"
     ) and d.mode != SCUBA
@@ -307,7 +307,7 @@ def uscg_supervisor_duties(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         yield r.need(s.diver_voice_comms, "voice communication with each surface-supplied diver")
     yield r.need(s.emergency_comms, "a two-way link for emergency help")
     for d in ctx.dives():
-        if not (ctx.fsw(d.max_depth) > 130 or d.declared_outside_ndl or d.mode in MIXED):
+        if not (ctx.fsw(d.max_depth) > 130 or ctx.outside_ndl(d) or d.mode in MIXED):
             continue
         busy = {d.diver, d.standby_diver}
         ops = [m for m in ctx.members_with("chamber-operator") if m.name not in busy]

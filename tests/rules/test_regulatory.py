@@ -526,3 +526,21 @@ def test_rule_ids_match_the_notes_format():
         if rule.id.startswith("osha-"):
             assert rule.citation.startswith("29 CFR 1910.")
             assert rule.source_status in {"VERIFIED", "SECONDARY", "FROM MEMORY"}
+
+
+def test_engine_stops_override_a_declared_no_stop_dive(base):
+    """29 CFR 1910.423(c)(1): a dive the model says needs stops is outside the NDL even if the
+    plan declares none, so a chamber at the site is required."""
+    from supervisor.plan import plan_from_dict
+    from supervisor.rules.base import CheckContext
+
+    d = base()
+    d["chamber"]["on_site"] = False
+    plan = plan_from_dict(d)
+    clean = CheckContext(plan)
+    assert FAMILY.get("osha-423-c1").run(clean) == []
+    ctx = CheckContext(plan, dive_data={"D1": {"model_schedule": {
+        "stops": [{"depth": 10, "minutes": 2, "gas": "air", "place": "water"}]}}})
+    [f] = FAMILY.get("osha-423-c1").run(ctx)
+    assert (f.rule, f.severity) == ("osha-423-c1", "fail")
+    assert "outside the no-decompression limits" in f.message
