@@ -30,6 +30,8 @@ from supervisor.units import bar_per_depth_unit
 #: the last water stop to arriving at chamber depth; the ceiling is expected to be
 #: exceeded there and :func:`evaluate_profile` reports it apart.
 SURFACE_INTERVAL = "surface interval"
+#: Longest piece of a level segment [min] (its ends bound its ceiling; see _samples).
+_LEVEL_SAMPLE_MIN = 5.0
 
 
 @dataclass
@@ -105,6 +107,36 @@ def infer_first_stop(profile: Profile) -> float | None:
     return best
 
 
+def _samples(profile: Profile, max_sample_min: float) -> dict[str, NDArray]:
+    """Sub-sampled segment arrays of one profile (depths in its unit)."""
+    if not profile.segments:
+        raise InputError("profile", "the profile has no segments")
+    segs = profile.segments
+    # Travel is cut into pieces of at most max_sample_min.  At constant depth every
+    # compartment's ceiling moves monotonically, so the worst point of a level segment is
+    # one of its ends: level segments are cut only coarsely (for the chart).
+    n = np.array([
+        max(1, int(math.ceil(s.minutes / (max_sample_min if s.start_depth != s.end_depth
+                                           else _LEVEL_SAMPLE_MIN) - 1e-9)))
+        for s in segs
+    ])
+    idx = np.repeat(np.arange(len(segs)), n)
+    frac_end = np.concatenate([np.arange(1, k + 1) / k for k in n])
+    frac_start = np.concatenate([np.arange(0, k) / k for k in n])
+    d0 = np.array([s.start_depth for s in segs])[idx]
+    d1 = np.array([s.end_depth for s in segs])[idx]
+    place = np.array([s.place for s in segs])[idx]
+    labels = np.array([s.label for s in segs], dtype=str)[idx]
+    return {
+        "minutes": np.array([s.minutes for s in segs])[idx] / n[idx],
+        "da": d0 + (d1 - d0) * frac_start,
+        "db": d0 + (d1 - d0) * frac_end,
+        "fn2": np.array([s.gas.fn2 for s in segs])[idx],
+        "fhe": np.array([s.gas.fhe for s in segs])[idx],
+        "inside": (place != "surface") & ~np.char.startswith(labels, SURFACE_INTERVAL),
+    }
+
+
 def evaluate_profile(
     profile: Profile,
     model: str = "zhl16c",
@@ -141,62 +173,109 @@ def evaluate_profile(
     -------
     ProfileEvaluation
     """
+    return evaluate_profiles(
+        [profile], model, gf_low, gf_high,
+        None if p_n2_0 is None else [p_n2_0],
+        None if p_he_0 is None else [p_he_0],
+        [first_stop_depth], ph2o_bar, max_sample_min,
+    )[0]
+
+
+def evaluate_profiles(
+    profiles: list[Profile],
+    model: str = "zhl16c",
+    gf_low: float = 0.30,
+    gf_high: float = 0.85,
+    p_n2_0: list[NDArray[np.float64] | None] | None = None,
+    p_he_0: list[NDArray[np.float64] | None] | None = None,
+    first_stop_depths: list[float | None] | None = None,
+    ph2o_bar: float = C.PH2O_BAR,
+    max_sample_min: float = 0.5,
+) -> list[ProfileEvaluation]:
+    """Run many profiles through the model in one vectorised pass.
+
+    Profiles are padded with zero-length segments to a common length and
+    integrated as one batch (:func:`supervisor.engine.kinetics.tissue_tensions`);
+    the parameters are those of :func:`evaluate_profile`, given per profile
+    where they are lists.
+
+    Returns
+    -------
+    list of ProfileEvaluation, in the order of the profiles.
+    """
     if model not in bm.MODELS:
         raise InputError(
             "model", f"unknown model {model!r}; expected one of {', '.join(bm.MODELS)}"
         )
     c = bm.load_coefficients(model)
-    if not profile.segments:
-        raise InputError("profile", "the profile has no segments")
-    bpu = bar_per_depth_unit(profile.unit, profile.water)  # type: ignore[arg-type]
-    ps = profile.p_surface_bar
-    n = np.array(
-        [max(1, int(math.ceil(s.minutes / max_sample_min - 1e-9))) for s in profile.segments]
-    )
-    seg_idx = np.repeat(np.arange(len(profile.segments)), n)
-    frac_end = np.concatenate([np.arange(1, k + 1) / k for k in n])
-    frac_start = np.concatenate([np.arange(0, k) / k for k in n])
-    d0 = np.array([s.start_depth for s in profile.segments])[seg_idx]
-    d1 = np.array([s.end_depth for s in profile.segments])[seg_idx]
-    mins = np.array([s.minutes for s in profile.segments])[seg_idx] / n[seg_idx]
-    da = d0 + (d1 - d0) * frac_start
-    db = d0 + (d1 - d0) * frac_end
-    fn2 = np.array([s.gas.fn2 for s in profile.segments])[seg_idx]
-    fhe = np.array([s.gas.fhe for s in profile.segments])[seg_idx]
-    place = np.array([s.place for s in profile.segments])[seg_idx]
-    pn0 = saturated_tensions(ps, AIR.fn2, c.n, ph2o_bar) if p_n2_0 is None else np.asarray(p_n2_0)
-    ph0 = np.zeros(c.n) if p_he_0 is None else np.asarray(p_he_0)
-    pa, pb = ps + da * bpu, ps + db * bpu
-    tn = tissue_tensions(mins, pa, pb, fn2, c.n2_half, pn0, ph2o_bar)
-    th = tissue_tensions(mins, pa, pb, fhe, c.he_half, ph0, ph2o_bar)
-    fs = infer_first_stop(profile) if first_stop_depth is None else first_stop_depth
-    gf = bm.gf_at_depth(db, fs if fs else 0.0, gf_low, gf_high)[:, None]
-    ceil = bm.ceiling(tn, th, c, gf).max(axis=1)  # bar
-    excess = ceil - pb
-    labels = np.array([s.label for s in profile.segments])[seg_idx]
-    inside = (place != "surface") & ~np.char.startswith(labels.astype(str), SURFACE_INTERVAL)
-    broken = inside & (excess > 1e-6)
-    gfs = bm.gradient_factor(tn, th, pb[:, None], c).max(axis=1)
-    t_end = np.cumsum(mins)
-    surf_gf = bm.gradient_factor(tn[-1], th[-1], ps, c)
-    ctrl = int(np.argmax(surf_gf))
-    allowed = bm.allowed_tension(ps, tn[-1], th[-1], c, gf_high)
-    uses_he = bool(np.any(fhe > 0) or np.any(ph0 > 0))
-    return ProfileEvaluation(
-        t_min=np.concatenate([[0.0], t_end]),
-        depth=np.concatenate([[profile.segments[0].start_depth], db]),
-        ceiling_depth=np.concatenate([[0.0], np.maximum((ceil - ps) / bpu, 0.0)]),
-        ceiling_broken=bool(broken.any()),
-        worst_excess_bar=float(excess[inside].max()) if inside.any() else float("-inf"),
-        first_break_min=float(t_end[np.argmax(broken)]) if broken.any() else None,
-        max_gf=float(gfs[inside].max()) if inside.any() else float("nan"),
-        surfacing_gf=float(surf_gf[ctrl]),
-        controlling_compartment=c.labels[ctrl],
-        loading_percent_of_limit=100.0 * (tn[-1] + th[-1]) / allowed,
-        surface_interval_max_gf=float(gfs[~inside].max()) if (~inside).any() else None,
-        final_p_n2=tn[-1].copy(),
-        final_p_he=th[-1].copy(),
-        first_stop_depth=fs,
-        coefficient_status=c.status_for(uses_he),
-        labels=c.labels,
-    )
+    nprof = len(profiles)
+    if nprof == 0:
+        return []
+    samples = [_samples(p, max_sample_min) for p in profiles]
+    width = max(sm["minutes"].size for sm in samples)
+    mins = np.zeros((nprof, width))
+    pa = np.empty((nprof, width))
+    pb = np.empty((nprof, width))
+    fn2 = np.zeros((nprof, width))
+    fhe = np.zeros((nprof, width))
+    pn0 = np.empty((nprof, c.n))
+    ph0 = np.zeros((nprof, c.n))
+    for j, (prof, sm) in enumerate(zip(profiles, samples, strict=True)):
+        m = sm["minutes"].size
+        bpu = bar_per_depth_unit(prof.unit, prof.water)  # type: ignore[arg-type]
+        ps = prof.p_surface_bar
+        mins[j, :m] = sm["minutes"]
+        pa[j, :m] = ps + sm["da"] * bpu
+        pb[j, :m] = ps + sm["db"] * bpu
+        pa[j, m:] = pb[j, m:] = pb[j, m - 1]
+        fn2[j, :m], fhe[j, :m] = sm["fn2"], sm["fhe"]
+        fn2[j, m:], fhe[j, m:] = sm["fn2"][-1], sm["fhe"][-1]
+        n0 = None if p_n2_0 is None else p_n2_0[j]
+        h0 = None if p_he_0 is None else p_he_0[j]
+        pn0[j] = saturated_tensions(ps, AIR.fn2, c.n, ph2o_bar) if n0 is None else n0
+        if h0 is not None:
+            ph0[j] = h0
+    tn_all = tissue_tensions(mins, pa, pb, fn2, c.n2_half, pn0, ph2o_bar)
+    th_all = tissue_tensions(mins, pa, pb, fhe, c.he_half, ph0, ph2o_bar)
+    out = []
+    for j, (prof, sm) in enumerate(zip(profiles, samples, strict=True)):
+        m = sm["minutes"].size
+        tn, th = tn_all[j, :m], th_all[j, :m]
+        ps = prof.p_surface_bar
+        bpu = bar_per_depth_unit(prof.unit, prof.water)  # type: ignore[arg-type]
+        fs_in = None if first_stop_depths is None else first_stop_depths[j]
+        fs = infer_first_stop(prof) if fs_in is None else fs_in
+        db = sm["db"]
+        gf = bm.gf_at_depth(db, fs if fs else 0.0, gf_low, gf_high)[:, None]
+        p_b = pb[j, :m]
+        ceil = bm.ceiling(tn, th, c, gf).max(axis=1)  # bar
+        excess = ceil - p_b
+        inside = sm["inside"]
+        broken = inside & (excess > 1e-6)
+        gfs = bm.gradient_factor(tn, th, p_b[:, None], c).max(axis=1)
+        t_end = np.cumsum(sm["minutes"])
+        surf_gf = bm.gradient_factor(tn[-1], th[-1], ps, c)
+        ctrl = int(np.argmax(surf_gf))
+        allowed = bm.allowed_tension(ps, tn[-1], th[-1], c, gf_high)
+        uses_he = bool(np.any(sm["fhe"] > 0) or np.any(ph0[j] > 0))
+        out.append(
+            ProfileEvaluation(
+                t_min=np.concatenate([[0.0], t_end]),
+                depth=np.concatenate([[prof.segments[0].start_depth], db]),
+                ceiling_depth=np.concatenate([[0.0], np.maximum((ceil - ps) / bpu, 0.0)]),
+                ceiling_broken=bool(broken.any()),
+                worst_excess_bar=float(excess[inside].max()) if inside.any() else float("-inf"),
+                first_break_min=float(t_end[np.argmax(broken)]) if broken.any() else None,
+                max_gf=float(gfs[inside].max()) if inside.any() else float("nan"),
+                surfacing_gf=float(surf_gf[ctrl]),
+                controlling_compartment=c.labels[ctrl],
+                loading_percent_of_limit=100.0 * (tn[-1] + th[-1]) / allowed,
+                surface_interval_max_gf=float(gfs[~inside].max()) if (~inside).any() else None,
+                final_p_n2=tn[-1].copy(),
+                final_p_he=th[-1].copy(),
+                first_stop_depth=fs,
+                coefficient_status=c.status_for(uses_he),
+                labels=c.labels,
+            )
+        )
+    return out

@@ -47,6 +47,7 @@ from supervisor.engine.evaluate import (  # re-exported: part of the engine API
     SURFACE_INTERVAL,
     ProfileEvaluation,
     evaluate_profile,
+    evaluate_profiles,
     infer_first_stop,
 )
 from supervisor.engine.kinetics import (
@@ -839,6 +840,7 @@ __all__ = [
     "Stop",
     "SurfaceDecompression",
     "evaluate_profile",
+    "evaluate_profiles",
     "infer_first_stop",
     "plan_schedule",
     "plan_schedules",

@@ -29,7 +29,7 @@ from typing import Any
 import numpy as np
 
 from supervisor.engine.buhlmann import load_coefficients
-from supervisor.engine.schedule import evaluate_profile
+from supervisor.engine.schedule import evaluate_profiles
 from supervisor.errors import InputError
 from supervisor.gas import parse_gas
 from supervisor.profile import Profile
@@ -312,11 +312,13 @@ def screen_table(table: Table, model: str = "zhl16c", descent_rate: float | None
             else:
                 e["profile"] = schedule_profile(table, r, mode, descent_rate)
             entries.append(e)
+    # every row through the model in one vectorised batch, not schedule by schedule
+    todo = [e for e in entries if e.get("profile") is not None]
+    evs = evaluate_profiles([e.pop("profile") for e in todo], model=model)
+    for e, ev in zip(todo, evs, strict=True):
+        e.update(gf=ev.surfacing_gf, max_gf=ev.max_gf, comp=ev.controlling_compartment)
     for e in entries:
-        prof = e.pop("profile", None)
-        if prof is not None:
-            ev = evaluate_profile(prof, model=model)
-            e.update(gf=ev.surfacing_gf, max_gf=ev.max_gf, comp=ev.controlling_compartment)
+        e.pop("profile", None)
     if table.kind == "no-stop":
         _flag(entries, tolerance, (("line", "depth"),))
     else:
