@@ -94,7 +94,8 @@ def _run(plan: Path, as_json: bool, strict: bool, show_all: bool) -> None:
             typer.echo(line)
         c = result["counts"]
         typer.echo("")
-        typer.echo(f"caution: {result['cautions'][0]}")
+        for caution in result["cautions"][:3]:
+            typer.echo(f"caution: {caution}")
         typer.echo(
             f"verdict: {v} ({c['fail']} fail, {c['warn']} warn, {c['info']} info, {c['pass']} pass)"
         )

@@ -44,7 +44,7 @@ AIR_BREAK_MIN = 5.0  # SECONDARY
 EE_DEPTH_FSW = 190.0  # exceptional exposure criteria, SECONDARY
 EE_IN_WATER_MIN = 90.0
 EE_SURD_PERIODS = 4.0
-SHORT_SI_MIN = 10.0  # OLDER-EDITION (NOAA course slides on the pre-2008 tables)
+SHORT_SI_MIN = 10.0  # OLDER-EDITION (pre-2008 Navy air tables)
 
 _TOL = 1e-6
 
@@ -496,7 +496,7 @@ def exceptional_exposure(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 @FAMILY.rule(
     "proc-cold-strenuous",
     title="Cold or strenuous work: consider the next longer schedule",
-    citation=f"{NAVY_REV4}, ch. 9 (next longer bottom-time schedule)",
+    citation="U.S. Navy Diving Manual, pre-2008 air tables (cold or arduous dives)",
     source_status="OLDER-EDITION",
     kind="reference",
 )
@@ -522,8 +522,7 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 @FAMILY.rule(
     "proc-short-surface-interval",
     title="Surface interval under 10 min",
-    citation="NOAA Diving Center course notes on the U.S. Navy tables (pre-2008), "
-    "short surface interval",
+    citation="U.S. Navy Diving Manual, pre-2008 air tables (surface interval under 10 min)",
     source_status="OLDER-EDITION",
     kind="reference",
 )

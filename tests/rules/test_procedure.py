@@ -5,8 +5,8 @@ status: descent 75 fsw/min (U.S. Navy Diving Manual ch. 9, from memory); ascent
 20-40 fsw/min (Rev 4 Change A ch. 14, OLDER-EDITION); surface-decompression
 interval 5 min, 30-min oxygen periods, 5-min air breaks, exceptional exposure
 (Rev 7 ch. 9 as quoted, SECONDARY); next longer schedule for cold or strenuous
-work (Rev 4 Change A, OLDER-EDITION); short surface interval 10 min (NOAA
-course notes on the pre-2008 tables, OLDER-EDITION).
+work and the 10-min short surface interval (U.S. Navy Diving Manual, pre-2008 air
+tables, OLDER-EDITION).
 """
 
 from __future__ import annotations
@@ -270,7 +270,7 @@ def test_exceptional_exposure_surd_periods(base, run):
 
 
 def test_cold_or_strenuous_flags_next_longer_schedule(base, run):
-    """Rev 4 Change A ch. 9 (OLDER-EDITION): next longer bottom-time schedule."""
+    """U.S. Navy Diving Manual, pre-2008 air tables (OLDER-EDITION): next longer schedule."""
     d = base()
     d["dives"][0]["cold"] = True
     f = _one_bad(run(d, FAMILY, "proc-cold-strenuous"))
@@ -281,7 +281,7 @@ def test_cold_or_strenuous_flags_next_longer_schedule(base, run):
 
 
 def test_short_surface_interval(base, run):
-    """NOAA course notes on the pre-2008 Navy tables (OLDER-EDITION): SI under 10 min."""
+    """U.S. Navy Diving Manual, pre-2008 air tables (OLDER-EDITION): SI under 10 min."""
     d = base()
     d["dives"].append(dict(d["dives"][0], id="D2", previous_dive="D1", surface_interval_min=8))
     f = _one_bad(run(d, FAMILY, "proc-short-surface-interval"))
