@@ -429,6 +429,12 @@ class _Batch:
             self.uses_he = True
 
     # -- helpers --------------------------------------------------------------------------
+    def ceiling(self, pn, ph, gf):
+        """GF ceiling [bar]; the nitrogen-only form when no helium is present."""
+        if not self.uses_he and not np.any(ph):
+            return bm.ceiling_n2(pn, self.c, gf)
+        return bm.ceiling(pn, ph, self.c, gf)
+
     def p(self, depth: NDArray | float) -> NDArray:
         return self.ps + np.asarray(depth, float) * self.bpu
 
@@ -483,10 +489,36 @@ class _Batch:
         def ok(pn, ph):
             return np.all(bm.ceiling(pn, ph, self.c, gfh) <= self.ps + _EPS, axis=-1)
 
-        unlimited = ok(np.broadcast_to(pa_n, pn_desc.shape), np.broadcast_to(pa_h, ph_desc.shape))
+        if not np.any(fhe > 0) and not np.any(ph_desc > 0):
+            ok_sat = np.all(bm.ceiling_n2(np.broadcast_to(pa_n, pn_desc.shape), self.c, gfh)
+                            <= self.ps + _EPS, axis=-1)
+        else:
+            ok_sat = None
+
+        unlimited = ok_sat if ok_sat is not None else ok(
+            np.broadcast_to(pa_n, pn_desc.shape), np.broadcast_to(pa_h, ph_desc.shape)
+        )
         out: list[int | None] = [None] * self.B
         todo = np.flatnonzero(~unlimited)
         if todo.size == 0:
+            return out
+        if not np.any(fhe > 0) and not np.any(ph_desc > 0):
+            # nitrogen only: closed form.  Tensions rise towards P_alv at the bottom and the
+            # GF-high ceiling is at the surface while P <= P_max = GF a + P_s (GF/b + 1 - GF).
+            g = gfh
+            p_max = g * self.c.n2_a + (self.ps + _EPS) * (g / self.c.n2_b + 1.0 - g)
+            pa = pa_n[todo]
+            p0 = pn_desc[todo]
+            with np.errstate(divide="ignore", invalid="ignore"):
+                ratio = (pa - p0) / (pa - p_max)
+                t_reach = np.where(
+                    p0 > p_max, -np.inf,
+                    np.where(pa > p_max, np.log(np.maximum(ratio, 1.0)) / self.kn, np.inf),
+                )
+            limit = t_desc[todo] + t_reach.min(axis=1)
+            for n_i, row in enumerate(todo):
+                # finite or -inf (already over at the end of the descent: 0 min)
+                out[row] = int(max(np.floor(limit[n_i] + 1e-9), 0.0))
             return out
         start = np.ceil(t_desc[todo] - 1e-9)
         found = np.full(todo.size, -1.0)
@@ -674,9 +706,7 @@ class _Batch:
             # first stop?
             seek = here & (phase == 0)
             if seek.any():
-                broke = np.any(
-                    bm.ceiling(pn, ph, self.c, r0.gf_low) > self.p(nxt) + _EPS, axis=-1
-                )
+                broke = np.any(self.ceiling(pn, ph, r0.gf_low) > self.p(nxt) + _EPS, axis=-1)
                 newly = seek & broke
                 if i == i_last:
                     # beyond the no-stop limit there is always a stop: the last one at least
