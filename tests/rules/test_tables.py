@@ -1,0 +1,136 @@
+"""Table-conformance rules: a passing and a failing plan for every rule.
+
+The decompression table is fictional test data (tests/data/plans_engine); the
+bundled no-stop table is the U.S. Navy Rev 7 Table 9-7 held FROM MEMORY, whose
+60 fsw limit the file records as 63 min (air-decompression notes §3.2, FROM
+MEMORY): rules resting on it can only warn.
+"""
+
+from __future__ import annotations
+
+from _engine_plans import TABLE, data, only, run, second_dive, trusted_table
+
+from supervisor.rules.tables import FAMILY, NAVY_TABLE_USE
+
+NDL = "usn-rev7-air-ndl"
+
+
+def _with(table, **dive):
+    d = data(**dive)
+    d["policy"]["reference_table"] = str(table)
+    return d
+
+
+ROW_60_50 = dict(bottom_time_min=50, decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
+
+
+def test_no_table_needs_review():
+    f = only(run(data(), FAMILY, "table-conformance"), "warn")
+    assert "names no reference table" in f.message and not f.verified
+
+
+def test_conforms_to_an_unverified_row_needs_review():
+    f = only(run(_with(TABLE, **ROW_60_50), FAMILY, "table-conformance"), "warn")
+    assert "row is unverified" in f.message
+
+
+def test_conforms_to_a_trusted_row_passes(tmp_path):
+    f = only(run(_with(trusted_table(tmp_path), **ROW_60_50), FAMILY, "table-conformance"),
+             "pass")
+    assert "row 1: verified, VERIFIED" in f.message
+
+
+def test_short_stop_on_an_unverified_row_warns():
+    d = _with(TABLE, bottom_time_min=50, decompression="in-water",
+              stops=[{"depth": 10, "minutes": 3}])
+    f = only(run(d, FAMILY, "table-conformance"), "warn")
+    assert f.rule == "table-conformance"
+    assert (f.measured, f.limit, f.unit) == (3, 5, "min")  # the fictional row: 10 fsw 5 min
+    assert f.citation == NAVY_TABLE_USE and not f.verified
+
+
+def test_short_stop_on_a_trusted_row_fails(tmp_path):
+    d = _with(trusted_table(tmp_path), bottom_time_min=55, decompression="in-water",
+              stops=[{"depth": 10, "minutes": 12}])
+    f = only(run(d, FAMILY, "table-conformance"), "fail")
+    # 55 min enters the 60 min row: 20 fsw 2 min is missing
+    assert f.rule == "table-conformance"
+    assert (f.measured, f.limit) == (0.0, 2)
+    assert "missing" in f.message and f.citation == NAVY_TABLE_USE
+
+
+def test_wrong_gas_at_a_stop_does_not_conform(tmp_path):
+    d = _with(trusted_table(tmp_path), bottom_time_min=50, decompression="in-water-oxygen",
+              stops=[{"depth": 10, "minutes": 3}])
+    f = only(run(d, FAMILY, "table-conformance"), "fail")
+    assert "on oxygen: missing" in f.message
+
+
+def test_no_stop_table_within_limit_needs_review():
+    f = only(run(_with(NDL), FAMILY, "table-conformance"), "warn")
+    assert "FROM MEMORY" in f.message
+
+
+def test_no_stop_table_beyond_limit_without_stops_warns():
+    f = only(run(_with(NDL, bottom_time_min=70), FAMILY, "table-conformance"), "warn")
+    assert f.rule == "table-conformance"
+    assert (f.measured, f.limit) == (70, 63)  # FROM MEMORY row: 60 fsw, 63 min
+    assert f.source_status == "FROM MEMORY" and f.citation == NAVY_TABLE_USE
+
+
+def test_decompression_dive_against_no_stop_table_needs_review():
+    d = _with(NDL, bottom_time_min=70, decompression="in-water",
+              stops=[{"depth": 10, "minutes": 20}])
+    f = only(run(d, FAMILY, "table-conformance"), "warn")
+    assert "reference schedule not available" in f.message
+
+
+def test_mode_missing_in_row_needs_review():
+    d = _with(TABLE, max_depth=70, bottom_time_min=40, decompression="in-water-oxygen",
+              stops=[{"depth": 10, "minutes": 7, "gas": "oxygen"}])
+    f = only(run(d, FAMILY, "table-conformance"), "warn")
+    assert "reference schedule not available" in f.message
+    assert run(d, FAMILY, "table-outside") == []
+
+
+def test_other_gas_not_applicable():
+    d = _with(TABLE, mode="surface-supplied-nitrox", gas="32/0")
+    f = only(run(d, FAMILY, "table-conformance"), "warn")
+    assert "is for air" in f.message
+
+
+def test_repetitive_dive_needs_review():
+    d = second_dive(_with(TABLE, **ROW_60_50), max_depth=60, bottom_time_min=50,
+                    descent_rate=60, decompression="in-water",
+                    stops=[{"depth": 10, "minutes": 5}], surface_interval_min=120,
+                    previous_dive="D1")
+    got = [f for f in run(d, FAMILY, "table-conformance") if f.dive == "D2"]
+    assert any("residual nitrogen time" in f.message for f in got)
+
+
+def test_inside_passes():
+    f = only(run(_with(TABLE, **ROW_60_50), FAMILY, "table-outside"), "pass")
+    assert f.limit == 60
+
+
+def test_outside_by_depth_fails():
+    d = _with(TABLE, max_depth=100, bottom_time_min=20, decompression="in-water",
+              stops=[{"depth": 10, "minutes": 10}])
+    f = only(run(d, FAMILY, "table-outside"), "fail")
+    assert f.rule == "table-outside"
+    assert (f.measured, f.limit, f.unit) == (100.0, 70.0, "fsw")
+    assert f.citation == "contractor policy (policy.reference_table)"
+
+
+def test_outside_by_time_fails():
+    d = _with(TABLE, bottom_time_min=90, decompression="in-water",
+              stops=[{"depth": 10, "minutes": 40}])
+    f = only(run(d, FAMILY, "table-outside"), "fail")
+    assert (f.measured, f.limit, f.unit) == (90, 60.0, "min")
+
+
+def test_unloadable_table_needs_review(tmp_path):
+    bad = tmp_path / "broken.toml"
+    bad.write_text('schema = "supervisor-table/1"\n', encoding="utf-8")
+    f = only(run(_with(bad), FAMILY, "table-conformance"), "warn")
+    assert "needs review" in f.message
