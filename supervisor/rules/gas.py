@@ -1,0 +1,189 @@
+"""Breathing gas: hypoxia, maximum operating depth, narcotic depth and gas density.
+
+* Hypoxia: the lowest inspired PO2 of every phase (the bottom gas is breathed from
+  the surface on descent, at the site's surface pressure) against 0.16 ata, below
+  which the U.S. Navy manual says hypoxia results (Rev 4 Change A, OLDER-EDITION:
+  warns).
+* Maximum operating depth: the bottom gas at the policy's bottom PO2 limit against
+  the maximum depth, each water-stop gas at the decompression limit and each
+  chamber gas at the chamber limit against its stop depth (policy: fails).
+* Equivalent narcotic depth, with oxygen counted narcotic (the NOAA convention),
+  against ``policy.end_max``.  The limit fails when the contractor sets it; the
+  default 100 fsw / 30 msw is a common planning ceiling known from secondary
+  sources only, so breaking the default warns.
+* Gas density at the maximum depth (Peng-Robinson, at the stated water
+  temperature, else 15 degC) against 5.2 g/L (warn) and 6.2 g/L (limit), after
+  Anthony and Mitchell (2016).  Those thresholds are held FROM MEMORY (SECONDARY
+  copies), so they warn; a density limit the contractor sets in the policy fails.
+
+References
+----------
+.. [1] U.S. Navy Diving Manual, Revision 4 Change A (2001), ch. 15: inspired PO2
+       below 0.16 ata produces hypoxia.
+.. [2] NOAA Diving Manual, 4th ed., §16.3: equivalent narcotic depth.
+.. [3] Anthony, T. G., Mitchell, S. J., "Respiratory physiology of rebreather
+       diving", in Pollock, Sellers, Godfrey (eds), Rebreathers and Scientific
+       Diving, workshop proceedings, 2016.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+from supervisor import analysis as an
+from supervisor import constants as C
+from supervisor.findings import Finding
+from supervisor.gas import density_at_depth, equivalent_narcotic_depth, maximum_operating_depth
+from supervisor.rules.base import CheckContext, Family, Rule
+
+FAMILY = Family("gas", "Breathing gas")
+
+HYPOXIA_ATA = 0.16
+HYPOXIA_BAR = HYPOXIA_ATA * C.P_ATM_BAR
+NAVY_HYPOXIA = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 15 (hypoxia below 0.16 ata)"
+ANTHONY_MITCHELL = (
+    "Anthony & Mitchell (2016), Respiratory physiology of rebreather diving, "
+    "in Rebreathers and Scientific Diving"
+)
+END_DEFAULT = "common planning ceiling 100 fsw / 30 msw (SECONDARY)"
+DENSITY_TEMPERATURE_C = 15.0
+
+
+@FAMILY.rule(
+    "gas-hypoxic",
+    title="No hypoxic gas at the surface, on descent or at a stop",
+    citation=NAVY_HYPOXIA,
+    kind="reference",
+    source_status="OLDER-EDITION",
+)
+def hypoxic(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Lowest PO2 in each phase against 0.16 ata."""
+    pa = an.for_context(ctx)
+    for d in ctx.dives():
+        a = pa.dives[d.id]
+        lows = {k: v for k, v in a.po2_min.items() if v is not None}
+        if not lows:
+            yield r.review("needs review: the phase PO2 could not be computed", dive=d.id)
+            continue
+        phase, low = min(lows.items(), key=lambda kv: kv[1])
+        kw = dict(measured=round(low, 3), limit=round(HYPOXIA_BAR, 3), unit="bar", dive=d.id)
+        if low + 1e-9 < HYPOXIA_BAR:
+            where = "at the surface and on descent" if phase == "bottom" else f"in the {phase}"
+            yield r.breach(
+                f"hypoxic gas {where}: PO2 {low:.3f} bar, below 0.16 ata ({HYPOXIA_BAR:.3f} bar)",
+                **kw,
+            )
+        else:
+            yield r.ok(
+                f"lowest PO2 {low:.3f} bar ({phase} phase); the 0.16 ata threshold is from an "
+                "older edition",
+                verified=False, **kw,
+            )
+
+
+@FAMILY.rule(
+    "gas-mod",
+    title="Every gas within its maximum operating depth",
+    citation="contractor policy (policy.po2_bottom_max, po2_decompression_max, po2_chamber_max)",
+    kind="policy",
+)
+def mod(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Each gas's maximum operating depth at the policy PO2 limit against where it is breathed."""
+    pol, plan = ctx.policy, ctx.plan
+    for d in ctx.dives():
+        uses = [(d.gas_mix, d.max_depth, float(pol.po2_bottom_max), "bottom")]
+        for s in d.stops:
+            limit = pol.po2_chamber_max if s.place == "chamber" else pol.po2_decompression_max
+            uses.append((d.stop_gas(s), s.depth, float(limit), f"{s.place} stop {s.depth:g}"))
+        worst = None
+        for gas, depth, po2, where in uses:
+            m = float(maximum_operating_depth(gas, po2, plan.unit, plan.p_surface_bar))
+            excess = depth - m
+            if worst is None or excess > worst[0]:
+                worst = (excess, gas, depth, po2, where, m)
+        excess, gas, depth, po2, where, m = worst  # type: ignore[misc]
+        kw = dict(measured=depth, limit=round(m, 1), unit=ctx.unit, dive=d.id)
+        if excess > 1e-6:
+            yield r.breach(
+                f"{gas.name} at the {where} ({ctx.show(depth)}) is deeper than its maximum "
+                f"operating depth {m:.1f} {ctx.unit} at PO2 {po2:g} bar",
+                **kw,
+            )
+        else:
+            yield r.ok(
+                f"every gas within its maximum operating depth (closest: {gas.name} at the "
+                f"{where}, MOD {m:.1f} {ctx.unit})",
+                **kw,
+            )
+
+
+@FAMILY.rule(
+    "gas-end",
+    title="Equivalent narcotic depth within the limit",
+    citation="contractor policy (policy.end_max); NOAA Diving Manual 4th ed. §16.3 (END)",
+    kind="policy",
+)
+def end(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """END at the maximum depth against the policy (fail) or the default ceiling (warn)."""
+    plan = ctx.plan
+    limit = float(ctx.policy.end_max)
+    own = plan.policy.end_max is not None
+    for d in ctx.dives():
+        e = float(equivalent_narcotic_depth(d.max_depth, d.gas_mix, plan.unit,
+                                            p_surface_bar=plan.p_surface_bar))
+        kw = dict(measured=round(e, 1), limit=limit, unit=ctx.unit, dive=d.id)
+        text = f"equivalent narcotic depth {e:.1f} {ctx.unit} on {d.gas_mix.name}"
+        if e <= limit + 1e-6:
+            if own:
+                yield r.ok(text, **kw)
+            else:
+                yield r.ok(text + f" within the default ceiling ({END_DEFAULT})",
+                           citation=END_DEFAULT, status="SECONDARY", verified=False, **kw)
+        elif own:
+            yield r.breach(text + " is beyond the policy's END limit", **kw)
+        else:
+            yield r.finding(
+                "warn", text + f" is beyond the default END ceiling ({END_DEFAULT}); set "
+                "policy.end_max to the contractor's own limit",
+                citation=END_DEFAULT, status="SECONDARY", verified=False, **kw,
+            )
+
+
+@FAMILY.rule(
+    "gas-density",
+    title="Gas density at depth",
+    citation=ANTHONY_MITCHELL,
+    kind="reference",
+    source_status="FROM MEMORY",
+)
+def density(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Density at the maximum depth: warn above 5.2 g/L, limit 6.2 g/L (see module docstring)."""
+    plan = ctx.plan
+    pol = ctx.policy
+    own = bool({"density_warn_g_per_l", "density_fail_g_per_l"} & plan.policy.model_fields_set)
+    temp = plan.site.water_temperature_c
+    t = DENSITY_TEMPERATURE_C if temp is None else float(temp)
+    for d in ctx.dives():
+        rho = float(density_at_depth(d.max_depth, d.gas_mix, plan.unit, plan.p_surface_bar,
+                                     temperature_c=t, eos="peng-robinson"))
+        text = (f"gas density {rho:.2f} g/L of {d.gas_mix.name} at {ctx.show(d.max_depth)} "
+                f"({t:g} degC)")
+        src = ("contractor policy (policy.density_warn_g_per_l, density_fail_g_per_l)" if own
+               else f"{ANTHONY_MITCHELL}; thresholds FROM MEMORY (SECONDARY copies)")
+        kw = dict(measured=round(rho, 2), unit="g/L", dive=d.id, citation=src)
+        hi, lo = float(pol.density_fail_g_per_l), float(pol.density_warn_g_per_l)
+        if rho > hi + 1e-9:
+            if own:
+                yield r.finding("fail", text + f" is above the policy limit {hi:g} g/L", limit=hi,
+                                status=None, **kw)
+            else:
+                yield r.review(text + f" is above {hi:g} g/L, the recommended maximum", limit=hi,
+                               **kw)
+        elif rho > lo + 1e-9:
+            yield r.review(text + f" is above {lo:g} g/L, the preferred maximum", limit=lo,
+                           status=None if own else r.source_status, **kw)
+        elif own:
+            yield r.ok(text, limit=lo, status=None, **kw)
+        else:
+            yield r.ok(text + "; the thresholds are held from memory", limit=lo, verified=False,
+                       **kw)

@@ -1,0 +1,120 @@
+"""Oxygen rules: a passing and a failing plan for every rule.
+
+PO2 values are checked against Dalton's law on the dry gas, PO2 = FO2 x P_amb with
+33 fsw = 1 atm (U.S. Navy fsw convention).  The CNS limits are the NOAA
+normal-exposure table (treatment-and-oxygen notes §3.1, FROM MEMORY / SECONDARY)
+and the OTU rate is the Clark and Lambertsen formula (VERIFIED as printed in a
+textbook appendix; 3.59 OTU/min for oxygen at 60 fsw is the DERIVED figure of the
+same notes §3.2).  Limits held FROM MEMORY make a breach a warning.
+"""
+
+from __future__ import annotations
+
+import pytest
+from _engine_plans import data, no_bad, only, run, second_dive
+
+from supervisor import constants as C
+from supervisor.rules.oxygen import FAMILY, NOAA_CNS, REPEX
+
+ATM = C.P_ATM_BAR
+
+
+def _surd(chamber_depth=50, minutes=30):
+    return data(max_depth=100, bottom_time_min=30, decompression="surface-oxygen",
+                surface_transfer_min=2,
+                stops=[{"depth": 40, "minutes": 2},
+                       {"depth": chamber_depth, "minutes": minutes, "gas": "oxygen",
+                        "place": "chamber"}])
+
+
+def _nitrox(**kw):
+    d = data(mode="surface-supplied-nitrox", gas="40/0", max_depth=95, bottom_time_min=60,
+             decompression="in-water", stops=[{"depth": 10, "minutes": 10}])
+    d["dives"][0].update(kw)
+    return d
+
+
+@pytest.mark.parametrize("key", ["oxygen-po2-bottom", "oxygen-po2-decompression"])
+def test_po2_pass(key):
+    no_bad(run(data(), FAMILY, key))
+
+
+def test_po2_chamber_absent_without_chamber_phase():
+    assert run(data(), FAMILY, "oxygen-po2-chamber") == []
+
+
+def test_po2_bottom_fail():
+    d = data()
+    d["policy"]["po2_bottom_max"] = 0.5
+    f = only(run(d, FAMILY, "oxygen-po2-bottom"), "fail")
+    assert f.rule == "oxygen-po2-bottom"
+    assert f.measured == pytest.approx(0.21 * ATM * (1 + 60 / 33), abs=1e-3)  # Dalton
+    assert f.limit == 0.5 and f.citation == "contractor policy (policy.po2_bottom_max)"
+
+
+def test_po2_decompression_fail():
+    d = data(bottom_time_min=50, decompression="in-water-oxygen",
+             stops=[{"depth": 30, "minutes": 10, "gas": "oxygen"}])
+    f = only(run(d, FAMILY, "oxygen-po2-decompression"), "fail")
+    assert f.measured == pytest.approx(ATM * (1 + 30 / 33), abs=1e-3)  # oxygen at 30 fsw
+    assert f.citation == "contractor policy (policy.po2_decompression_max)"
+
+
+def test_po2_chamber_pass_and_fail():
+    no_bad(run(_surd(), FAMILY, "oxygen-po2-chamber"))
+    d = _surd()
+    d["policy"]["po2_chamber_max"] = 2.4
+    f = only(run(d, FAMILY, "oxygen-po2-chamber"), "fail")
+    assert f.measured == pytest.approx(ATM * (1 + 50 / 33), abs=1e-3)
+    assert f.citation == "contractor policy (policy.po2_chamber_max)"
+
+
+def test_po2_range_pass():
+    no_bad(run(data(), FAMILY, "oxygen-po2-range"))
+
+
+def test_po2_range_above_table_needs_review():
+    f = only(run(_surd(), FAMILY, "oxygen-po2-range"), "warn")
+    assert f.rule == "oxygen-po2-range"
+    assert f.measured == pytest.approx(1 + 50 / 33, abs=1e-3)  # atm, oxygen at 50 fsw
+    assert f.limit == 1.6 and f.citation == NOAA_CNS and "lower bound" in f.message
+
+
+def test_cns_dive_pass_needs_review():
+    f = only(run(data(), FAMILY, "oxygen-cns-dive"), "pass")
+    assert not f.verified and f.measured < 100
+
+
+def test_cns_dive_over_limit_warns():
+    f = only(run(_nitrox(), FAMILY, "oxygen-cns-dive"), "warn")
+    assert f.rule == "oxygen-cns-dive"
+    # 40 % O2 at 95 fsw: 1.55 atm, charged at the 1.6 atm row (45 min single exposure)
+    bottom = 60 - 95 / 60
+    assert f.measured >= 100 * bottom / 45
+    assert f.citation.startswith(NOAA_CNS) and f.source_status == "FROM MEMORY"
+
+
+def test_cns_day_pass_and_over_limit():
+    f = only(run(data(), FAMILY, "oxygen-cns-day"), "pass")
+    assert not f.verified
+    d = second_dive(_nitrox(bottom_time_min=80), mode="surface-supplied-nitrox", gas="40/0",
+                    max_depth=95, bottom_time_min=80, descent_rate=60, surface_interval_min=60,
+                    previous_dive="D1", decompression="in-water",
+                    stops=[{"depth": 10, "minutes": 10}])
+    f = only(run(d, FAMILY, "oxygen-cns-day"), "warn")
+    # two exposures of about 78 min at the 1.6 atm row against 150 min in 24 h
+    assert f.rule == "oxygen-cns-day" and f.measured >= 100 * 2 * (80 - 95 / 60) / 150
+    assert f.limit == 100 and "24-hour" in f.citation
+
+
+def test_otu_pass():
+    only(run(data(), FAMILY, "oxygen-otu-dive"), "pass")
+    only(run(data(), FAMILY, "oxygen-otu-day"), "pass")
+
+
+@pytest.mark.parametrize("key", ["oxygen-otu-dive", "oxygen-otu-day"])
+def test_otu_over_allowance_warns(key):
+    f = only(run(_surd(chamber_depth=60, minutes=250), FAMILY, key), "warn")
+    assert f.rule == key
+    assert f.measured >= 250 * 3.59  # the chamber stop alone: 3.59 OTU/min at 60 fsw
+    assert f.limit == 850 and f.citation.startswith(REPEX)  # REPEX single day (FROM MEMORY)
