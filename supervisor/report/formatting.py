@@ -1,0 +1,182 @@
+"""Plain-text formatting of check values for the checklist (no reportlab here).
+
+A missing value never reads as a pass: ``None``, NaN and infinities print as
+:data:`NOT_COMPUTED` (whole sections) or :data:`MISSING` (single cells).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+from typing import Any
+
+NOT_COMPUTED = "not computed — needs review"
+MISSING = "not computed"
+
+SEVERITY_ORDER = {"fail": 0, "warn": 1, "info": 2, "pass": 3}
+SEVERITY_LABEL = {"fail": "FAIL", "warn": "WARN", "info": "INFO", "pass": "PASS"}
+
+VERDICT_LABEL = {
+    "conforms": "CONFORMS",
+    "needs-review": "NEEDS REVIEW",
+    "does-not-conform": "DOES NOT CONFORM",
+}
+_VERDICT_RANK = {"conforms": 0, "needs-review": 1, "does-not-conform": 2}
+
+_UNIT_SUFFIXES = (
+    ("_percent", "%"),
+    ("_lpm", "L/min"),
+    ("_min", "min"),
+    ("_bar", "bar"),
+    ("_fsw", "fsw"),
+    ("_msw", "msw"),
+    ("_ata", "ATA"),
+    ("_l", "L"),
+    ("_m", "m"),
+    ("_kt", "kt"),
+)
+
+
+def is_number(value: object) -> bool:
+    """True for a finite int or float (``bool`` excluded)."""
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        return False
+    return math.isfinite(value)
+
+
+def fmt_number(value: object, decimals: int = 1) -> str:
+    """Format a number with at most ``decimals`` decimals, trailing zeros dropped.
+
+    Parameters
+    ----------
+    value : object
+        A number, or anything else (returned as text; ``None`` and
+        non-finite numbers give :data:`MISSING`; booleans give yes/no).
+    decimals : int
+        Largest number of decimals printed.
+
+    Returns
+    -------
+    str
+    """
+    if value is None:
+        return MISSING
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, int):
+        return str(value)
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            return MISSING
+        text = f"{value:.{decimals}f}"
+        if "." in text:
+            text = text.rstrip("0").rstrip(".")
+        return "0" if text in ("-0", "") else text
+    return str(value)
+
+
+def fmt_quantity(value: object, unit: str | None, decimals: int = 1) -> str:
+    """Format a value with its unit (``"130 fsw"``); a missing value has no unit."""
+    text = fmt_number(value, decimals)
+    if text == MISSING or not unit or not is_number(value):
+        return text
+    if unit == "%":
+        return f"{text} %"
+    return f"{text} {unit}"
+
+
+def fmt_gf(gf_low: object, gf_high: object) -> str:
+    """Gradient factors as percent, ``"30/85"`` (fractions or percent accepted)."""
+
+    def pct(v: object) -> str:
+        if not is_number(v):
+            return "?"
+        x = float(v)  # type: ignore[arg-type]
+        return fmt_number(x * 100 if x <= 1.0 else x, 0)
+
+    return f"{pct(gf_low)}/{pct(gf_high)}"
+
+
+def humanize_key(key: str) -> tuple[str, str | None]:
+    """Split a JSON key into a printable label and its unit.
+
+    ``"need_l"`` gives ``("need", "L")``; ``"surfacing_gf_percent"`` gives
+    ``("surfacing gf", "%")``.
+    """
+    for suffix, unit in _UNIT_SUFFIXES:
+        if key.endswith(suffix) and len(key) > len(suffix):
+            return key[: -len(suffix)].replace("_", " "), unit
+    return key.replace("_", " "), None
+
+
+def flatten(mapping: Mapping[str, Any], prefix: str = "") -> list[tuple[str, Any]]:
+    """Flatten nested mappings into ``("a.b", value)`` pairs, in key order."""
+    pairs: list[tuple[str, Any]] = []
+    for key, value in mapping.items():
+        name = f"{prefix}{key}"
+        if isinstance(value, Mapping):
+            inner = flatten(value, f"{name}.")
+            pairs.extend(inner if inner else [(name, None)])
+        else:
+            pairs.append((name, value))
+    return pairs
+
+
+def fmt_scalar(value: object) -> str:
+    """Format any JSON scalar or list for a key/value table."""
+    if isinstance(value, list):
+        return ", ".join(fmt_scalar(v) for v in value) if value else "none"
+    if isinstance(value, float | int) and not isinstance(value, bool):
+        return fmt_number(value, 2)
+    return fmt_number(value)
+
+
+def severity_rank(severity: object) -> int:
+    """Sort key: fail, warn, info, pass; anything unknown sorts with warn."""
+    return SEVERITY_ORDER.get(str(severity), 1)
+
+
+def severity_label(severity: object) -> str:
+    """Printed label of a severity (an unknown one is printed as given, upper case)."""
+    return SEVERITY_LABEL.get(str(severity), str(severity).upper() or "UNKNOWN")
+
+
+def count_findings(findings: list[Mapping[str, Any]]) -> dict[str, int]:
+    """Count findings by severity; an unknown severity counts as a warning."""
+    counts = {"fail": 0, "warn": 0, "info": 0, "pass": 0}
+    for finding in findings:
+        severity = str(finding.get("severity"))
+        counts[severity if severity in counts else "warn"] += 1
+    return counts
+
+
+def effective_verdict(verdict: object, counts: Mapping[str, int]) -> tuple[str, bool]:
+    """The verdict to print: the worse of the stated one and the one the counts imply.
+
+    Parameters
+    ----------
+    verdict : object
+        The check's ``verdict`` (may be missing or unknown).
+    counts : mapping
+        Findings counted by :func:`count_findings`.
+
+    Returns
+    -------
+    tuple
+        The verdict key (``"conforms"``, ``"needs-review"``,
+        ``"does-not-conform"``) and whether it differs from the stated one.
+        A missing or unknown stated verdict is at best ``"needs-review"``.
+    """
+    implied = "conforms"
+    if counts.get("warn", 0):
+        implied = "needs-review"
+    if counts.get("fail", 0):
+        implied = "does-not-conform"
+    stated = str(verdict) if verdict in _VERDICT_RANK else "needs-review"
+    chosen = max(stated, implied, key=_VERDICT_RANK.__getitem__)
+    return chosen, chosen != verdict
+
+
+def short_hash(hex_digest: str, n: int = 16) -> str:
+    """First ``n`` hex digits of a digest, for page footers."""
+    return hex_digest[:n]

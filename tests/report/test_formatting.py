@@ -1,0 +1,77 @@
+"""Plain-text formatting of check values (supervisor.report.formatting)."""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from supervisor.report import formatting as f
+
+
+@pytest.mark.parametrize(
+    ("value", "decimals", "expected"),
+    [
+        (12.0, 1, "12"),
+        (12.345, 2, "12.35"),
+        (0.30, 2, "0.3"),
+        (7, 1, "7"),
+        (-0.01, 1, "0"),
+        (None, 1, f.MISSING),
+        (math.nan, 1, f.MISSING),
+        (math.inf, 1, f.MISSING),
+        (True, 1, "yes"),
+        ("K", 1, "K"),
+    ],
+)
+def test_fmt_number(value: object, decimals: int, expected: str) -> None:
+    assert f.fmt_number(value, decimals) == expected
+
+
+def test_fmt_quantity_leaves_missing_values_without_unit() -> None:
+    assert f.fmt_quantity(130, "fsw") == "130 fsw"
+    assert f.fmt_quantity(23.7, "%") == "23.7 %"
+    assert f.fmt_quantity(None, "fsw") == f.MISSING
+
+
+def test_fmt_gf_accepts_fractions_and_percent() -> None:
+    assert f.fmt_gf(0.3, 0.85) == "30/85"
+    assert f.fmt_gf(30, 85) == "30/85"
+    assert f.fmt_gf(None, 0.85) == "?/85"
+
+
+def test_humanize_key() -> None:
+    assert f.humanize_key("need_l") == ("need", "L")
+    assert f.humanize_key("surfacing_gf_percent") == ("surfacing gf", "%")
+    assert f.humanize_key("locks") == ("locks", None)
+
+
+def test_flatten_nested_mapping() -> None:
+    assert f.flatten({"a": 1, "b": {"c": 2, "d": {}}}) == [("a", 1), ("b.c", 2), ("b.d", None)]
+
+
+def test_count_findings_treats_unknown_severity_as_warning() -> None:
+    counts = f.count_findings([{"severity": "fail"}, {"severity": "odd"}, {"severity": "pass"}])
+    assert counts == {"fail": 1, "warn": 1, "info": 0, "pass": 1}
+
+
+@pytest.mark.parametrize(
+    ("stated", "counts", "expected"),
+    [
+        ("conforms", {"fail": 0, "warn": 0}, ("conforms", False)),
+        ("conforms", {"fail": 0, "warn": 2}, ("needs-review", True)),
+        ("needs-review", {"fail": 1, "warn": 0}, ("does-not-conform", True)),
+        ("does-not-conform", {"fail": 0, "warn": 0}, ("does-not-conform", False)),
+        (None, {"fail": 0, "warn": 0}, ("needs-review", True)),
+        ("pass", {"fail": 0, "warn": 0}, ("needs-review", True)),
+    ],
+)
+def test_effective_verdict_never_better_than_the_findings(stated: object, counts: dict[str, int],
+                                                          expected: tuple[str, bool]) -> None:
+    assert f.effective_verdict(stated, counts) == expected
+
+
+def test_severity_order_worst_first() -> None:
+    order = sorted(["pass", "info", "fail", "warn"], key=f.severity_rank)
+    assert order == ["fail", "warn", "info", "pass"]
+    assert f.severity_label("odd") == "ODD"
