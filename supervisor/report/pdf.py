@@ -1,0 +1,192 @@
+"""Render the checklist record as a PDF (reportlab platypus).
+
+The PDF is deterministic: reportlab's invariant mode is on, and the creation
+and modification dates are the check's ``generated_at``, so the same record
+always gives the same bytes.  Every page carries "page x of y", the job
+title and the first 16 hex digits of the document sha256; page 1 prints it
+in full.  The full hash is also in the PDF keywords
+(``document-sha256:<hex>``), which ``supervisor verify`` reports.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import io
+from collections.abc import Mapping
+from typing import Any
+
+from reportlab.lib.pagesizes import A4, letter
+from reportlab.lib.units import inch
+from reportlab.pdfbase import pdfmetrics
+from reportlab.pdfgen import canvas as rl_canvas
+from reportlab.platypus import PageBreak, SimpleDocTemplate
+
+from supervisor import __version__
+from supervisor.report import sections
+from supervisor.report.fonts import REGULAR, clean, plain_width, register_fonts, runs
+from supervisor.report.formatting import NOT_COMPUTED, short_hash
+from supervisor.report.sections import SignerNote
+from supervisor.report.styles import H2, para
+
+PAPER = {"letter": letter, "a4": A4}
+MARGIN = 0.6 * inch
+KEYWORD_PREFIX = "document-sha256:"
+_FOOTER_SIZE = 7.0
+
+
+def pdf_date(generated_at: object) -> str:
+    """A PDF date string (``D:YYYYMMDDHHmmSS+00'00'``) from an ISO-8601 time.
+
+    Parameters
+    ----------
+    generated_at : object
+        The check's ``generated_at``; a naive time is taken as UTC.
+
+    Returns
+    -------
+    str
+        The time in UTC; ``D:20000101000000+00'00'`` if it cannot be parsed,
+        so the output stays deterministic.
+    """
+    try:
+        text = str(generated_at).strip().replace("Z", "+00:00")
+        when = dt.datetime.fromisoformat(text)
+    except ValueError:
+        return "D:20000101000000+00'00'"
+    if when.tzinfo is None:
+        when = when.replace(tzinfo=dt.UTC)
+    when = when.astimezone(dt.UTC)
+    return when.strftime("D:%Y%m%d%H%M%S+00'00'")
+
+
+def _fit(text: str, width: float) -> str:
+    """Shorten ``text`` with an ellipsis so that it prints within ``width`` [pt]."""
+    if plain_width(text, _FOOTER_SIZE) <= width:
+        return text
+    while text and plain_width(text + "…", _FOOTER_SIZE) > width:
+        text = text[:-1]
+    return text + "…"
+
+
+def _draw_text(canv: rl_canvas.Canvas, x: float, y: float, text: str) -> None:
+    """Draw user text at (x, y) switching fonts run by run."""
+    for run in runs(text):
+        canv.setFont(run.font, _FOOTER_SIZE)
+        canv.drawString(x, y, run.text)
+        x += pdfmetrics.stringWidth(run.text, run.font, _FOOTER_SIZE)
+
+
+def _canvas_maker(document_sha256: str, job_title: str, created: str) -> type:
+    """A canvas class that numbers pages "x of y" and prints the footer."""
+
+    class _Numbered(rl_canvas.Canvas):
+        def __init__(self, *args: Any, **kwargs: Any) -> None:
+            kwargs["invariant"] = 1
+            super().__init__(*args, **kwargs)
+            self.setDateFormatter(lambda *_: created)
+            self._saved: list[dict[str, Any]] = []
+
+        def showPage(self) -> None:  # noqa: N802 - reportlab's name
+            self._saved.append(dict(self.__dict__))
+            self._startPage()
+
+        def save(self) -> None:
+            total = len(self._saved)
+            for state in self._saved:
+                self.__dict__.update(state)
+                self._footer(total)
+                super().showPage()
+            super().save()
+
+        def _footer(self, total: int) -> None:
+            width, _ = self._pagesize
+            y = MARGIN * 0.55
+            self.setLineWidth(0.4)
+            self.line(MARGIN, y + 9, width - MARGIN, y + 9)
+            right = f"document sha256 {short_hash(document_sha256)}   page " \
+                    f"{self._pageNumber} of {total}"
+            self.setFont(REGULAR, _FOOTER_SIZE)
+            self.drawRightString(width - MARGIN, y, right)
+            room = width - 2 * MARGIN - pdfmetrics.stringWidth(right, REGULAR, _FOOTER_SIZE) - 18
+            _draw_text(self, MARGIN, y, _fit(f"Pre-dive checklist: {job_title}", room))
+
+    return _Numbered
+
+
+def render_pdf(
+    record: Mapping[str, Any],
+    document_sha256: str,
+    *,
+    signer: SignerNote | None = None,
+    paper: str = "letter",
+) -> bytes:
+    """Render the checklist PDF.
+
+    Parameters
+    ----------
+    record : mapping
+        The checklist record (see :func:`supervisor.report.document.build_record`).
+    document_sha256 : str
+        SHA-256 of the record's JSON bytes [hex].
+    signer : SignerNote, optional
+        Who will sign the PDF, printed in the signature section.
+    paper : {"letter", "a4"}
+        Page size.
+
+    Returns
+    -------
+    bytes
+        The PDF.
+
+    Raises
+    ------
+    ValueError
+        If ``paper`` is not a known size.
+    """
+    if paper not in PAPER:
+        raise ValueError(f"paper must be one of {sorted(PAPER)}, not {paper!r}")
+    register_fonts()
+    job = record.get("job") if isinstance(record.get("job"), Mapping) else {}
+    title = clean(str(job.get("title") or "untitled job"))
+    buffer = io.BytesIO()
+    doc = SimpleDocTemplate(
+        buffer,
+        pagesize=PAPER[paper],
+        leftMargin=MARGIN,
+        rightMargin=MARGIN,
+        topMargin=MARGIN,
+        bottomMargin=MARGIN,
+        title=f"Pre-dive checklist: {title}",
+        author=clean(str(job.get("supervisor") or "")),
+        subject="Pre-dive checklist and schedule check",
+        creator=f"supervisor {__version__}",
+        producer=f"supervisor {__version__} (reportlab)",
+        keywords=[f"{KEYWORD_PREFIX}{document_sha256}"],
+        invariant=1,
+        lang="en",
+        initialFontName=REGULAR,
+    )
+    width = doc.width
+    story: list[Any] = []
+    story += sections.title_block(record, document_sha256)
+    story.append(sections.header_table(record, document_sha256, width))
+    story += sections.references_table(record, width)
+    story += sections.verdict_block(record, width)
+    story += sections.caution_lead(record)
+    story += sections.findings_table(record, width)
+    for dive in record.get("dives") or []:
+        if isinstance(dive, Mapping):
+            story.append(PageBreak())
+            story += sections.dive_section(dive, record, width)
+    if not record.get("dives"):
+        story.append(para("Dives: " + NOT_COMPUTED, H2))
+    story.append(PageBreak())
+    story += sections.team_and_chamber(record, width)
+    story.append(PageBreak())
+    story += sections.predive_checklist(record, width)
+    story.append(PageBreak())
+    story += sections.cautions_section(record)
+    story += sections.signature_section(record, width, signer)
+    maker = _canvas_maker(document_sha256, title, pdf_date(record.get("generated_at")))
+    doc.build(story, canvasmaker=maker)
+    return buffer.getvalue()

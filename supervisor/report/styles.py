@@ -1,0 +1,88 @@
+"""Paragraph and table styles of the checklist, and small flowable helpers.
+
+One sans-serif family (the embedded DejaVu Sans), black on white, thin grey
+rules: the page must photocopy and fax legibly.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from reportlab.lib import colors
+from reportlab.lib.styles import ParagraphStyle
+from reportlab.platypus import Flowable, Paragraph, Table, TableStyle
+
+from supervisor.report.fonts import BOLD, REGULAR, markup, register_fonts
+
+register_fonts()
+
+RULE = colors.Color(0.55, 0.55, 0.55)
+HEAD_FILL = colors.Color(0.91, 0.91, 0.91)
+PANEL_FILL = colors.Color(0.96, 0.96, 0.96)
+
+BODY = ParagraphStyle("body", fontName=REGULAR, fontSize=8.5, leading=11)
+SMALL = ParagraphStyle("small", parent=BODY, fontSize=7.2, leading=9)
+CELL = ParagraphStyle("cell", parent=BODY, fontSize=7.6, leading=9.4)
+CELL_BOLD = ParagraphStyle("cell-bold", parent=CELL, fontName=BOLD)
+TITLE = ParagraphStyle("title", parent=BODY, fontName=BOLD, fontSize=16, leading=20,
+                       spaceAfter=2)
+SUBTITLE = ParagraphStyle("subtitle", parent=BODY, fontSize=10.5, leading=13, spaceAfter=8)
+H2 = ParagraphStyle("h2", parent=BODY, fontName=BOLD, fontSize=11.5, leading=14,
+                    spaceBefore=10, spaceAfter=4)
+H3 = ParagraphStyle("h3", parent=BODY, fontName=BOLD, fontSize=9, leading=11.5,
+                    spaceBefore=7, spaceAfter=3)
+VERDICT = ParagraphStyle("verdict", parent=BODY, fontName=BOLD, fontSize=14, leading=17)
+
+
+def para(text: object, style: ParagraphStyle = BODY, *, bold: bool = False) -> Paragraph:
+    """A paragraph that prints ``text`` literally (escaped, font fallback applied)."""
+    return Paragraph(markup("" if text is None else text, bold=bold), style)
+
+
+def rich(parts: Sequence[tuple[object, bool]], style: ParagraphStyle = BODY) -> Paragraph:
+    """A paragraph of several literal pieces, each ``(text, bold)``."""
+    return Paragraph("".join(markup(t, bold=b) for t, b in parts), style)
+
+
+def grid(
+    rows: list[list[object]],
+    widths: Sequence[float],
+    *,
+    header: bool = True,
+    repeat: bool = True,
+    extra: Sequence[tuple[object, ...]] = (),
+) -> Table:
+    """A ruled table; the first row is shaded and repeated on a new page when ``header``."""
+    table = Table(rows, colWidths=list(widths), repeatRows=1 if header and repeat else 0)
+    commands: list[tuple[object, ...]] = [
+        ("FONTNAME", (0, 0), (-1, -1), REGULAR),  # for plain-string cells (reportlab: Helvetica)
+        ("GRID", (0, 0), (-1, -1), 0.4, RULE),
+        ("VALIGN", (0, 0), (-1, -1), "TOP"),
+        ("LEFTPADDING", (0, 0), (-1, -1), 3),
+        ("RIGHTPADDING", (0, 0), (-1, -1), 3),
+        ("TOPPADDING", (0, 0), (-1, -1), 2),
+        ("BOTTOMPADDING", (0, 0), (-1, -1), 2.5),
+    ]
+    if header:
+        commands.append(("BACKGROUND", (0, 0), (-1, 0), HEAD_FILL))
+    commands.extend(extra)
+    table.setStyle(TableStyle(commands))
+    return table
+
+
+class TickBox(Flowable):
+    """An empty square to tick by hand."""
+
+    def __init__(self, size: float = 9.0) -> None:
+        super().__init__()
+        self.size = size
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:
+        """Report the box size to the layout engine [pt]."""
+        return self.size, self.size
+
+    def draw(self) -> None:
+        """Draw the square on the current canvas."""
+        self.canv.setLineWidth(0.8)
+        self.canv.setStrokeColor(colors.black)
+        self.canv.rect(0, 0, self.size, self.size, stroke=1, fill=0)

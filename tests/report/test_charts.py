@@ -1,0 +1,102 @@
+"""Depth-time and compartment charts (supervisor.report.charts)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+import pytest
+from reportlab.graphics.shapes import Drawing, Group, PolyLine, Rect, String
+
+from supervisor.report import charts
+
+
+def _strings(node: Any) -> list[str]:
+    out = []
+    for item in getattr(node, "contents", []):
+        if isinstance(item, String):
+            out.append(item.text)
+        elif isinstance(item, Group):
+            out += _strings(item)
+    return out
+
+
+@pytest.mark.parametrize(("lo", "hi"), [(0, 105), (0, 58.8), (0, 1), (3, 3), (0, 2400),
+                                        (-5, 5)])
+def test_nice_ticks_cover_range_with_round_steps(lo: float, hi: float) -> None:
+    ticks = charts.nice_ticks(lo, hi, 6)
+    assert ticks[0] <= lo and ticks[-1] >= hi
+    steps = {round(b - a, 9) for a, b in zip(ticks, ticks[1:], strict=False)}
+    assert len(steps) == 1
+    step = steps.pop()
+    mantissa = step / 10 ** int(f"{step:e}".split("e")[1])
+    assert round(mantissa, 6) in (1, 2, 2.5, 5)
+    assert len(ticks) - 1 <= 6
+
+
+def test_nice_ticks_rejects_non_finite() -> None:
+    with pytest.raises(ValueError, match="finite"):
+        charts.nice_ticks(0, float("inf"))
+
+
+def test_ceiling_breaks_finds_runs_shallower_than_ceiling() -> None:
+    t = [0, 1, 2, 3, 4, 5]
+    depth = [0, 100, 20, 10, 10, 0]
+    ceiling = [None, 5, 25, 12, 8, 0]
+    assert charts.ceiling_breaks(t, depth, ceiling) == [(2, 3)]
+    assert charts.ceiling_breaks(t, depth, [None] * 6) == []
+    assert charts.ceiling_breaks([0, 1], [5, 5], [9, 9]) == [(0, 1)]
+
+
+def test_profile_chart_draws_profile_ceiling_and_shading(check_result: dict[str, Any]) -> None:
+    chart = dict(check_result["dives"][0]["chart"])
+    chart["ceiling_depth"] = list(chart["ceiling_depth"])
+    chart["ceiling_depth"][5] = 25.0  # planned 20 fsw, ceiling 25: a break
+    g = charts.profile_chart(chart, "fsw", "zhl16c GF 30/85")
+    assert isinstance(g, Drawing)
+    lines = [c for c in g.contents if isinstance(c, PolyLine)]
+    assert len(lines) >= 2  # ceiling and profile
+    shaded = [c for c in g.contents if isinstance(c, Rect) and c.fillColor == charts.SHADE]
+    assert len(shaded) == 2  # the break and the legend sample
+    text = _strings(g)
+    assert "depth [fsw]" in text and "100" in text
+    assert any("zhl16c GF 30/85" in s for s in text)
+
+
+@pytest.mark.parametrize(
+    "chart",
+    [
+        None,
+        {},
+        {"t_min": [0, 1], "depth": [0], "ceiling_depth": [None, None]},
+        {"t_min": [0], "depth": [0], "ceiling_depth": [None]},
+        {"t_min": [0, "x"], "depth": [0, 1], "ceiling_depth": [None, None]},
+        {"t_min": [2, 1], "depth": [0, 1], "ceiling_depth": [None, None]},
+        {"t_min": [0, 1], "depth": [0, -3], "ceiling_depth": [None, None]},
+        {"t_min": [0, 1], "depth": [0, 1], "ceiling_depth": [None]},
+    ],
+)
+def test_profile_chart_refuses_bad_data(chart: Any) -> None:
+    assert charts.profile_chart(chart, "fsw", "m") is None
+
+
+def test_compartment_chart_marks_bars_over_the_limit(check_result: dict[str, Any]) -> None:
+    comps = dict(check_result["dives"][0]["compartments"])
+    comps["loading_percent_of_limit"] = [50.0] * 15 + [104.0]
+    g = charts.compartment_chart(comps)
+    assert isinstance(g, Drawing)
+    bars = [c for c in g.contents if isinstance(c, Rect)]
+    assert len(bars) == 16
+    assert sum(1 for b in bars if b.fillColor == charts.INK) == 1
+    text = _strings(g)
+    assert "104" in text and "16" in text
+
+
+@pytest.mark.parametrize(
+    "comps",
+    [None, {"labels": ["1"], "loading_percent_of_limit": []},
+     {"labels": ["1", "2"], "loading_percent_of_limit": [1.0]},
+     {"labels": "12", "loading_percent_of_limit": [1.0, 2.0]},
+     {"labels": ["1"], "loading_percent_of_limit": [None]}],
+)
+def test_compartment_chart_refuses_bad_data(comps: Any) -> None:
+    assert charts.compartment_chart(comps) is None
