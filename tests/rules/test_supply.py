@@ -1,0 +1,145 @@
+"""Gas-supply rules: a passing and a failing plan for every rule.
+
+Outside values (U.S. Navy Diving Manual Rev 4 Change A ch. 8, OLDER-EDITION, as
+in the gas-and-pressure notes §2): demand flow 1.4 acfm per diver; free gas =
+(D + 33) / 33 x acfm x minutes; minimum manifold pressure = 0.445 D (rounded up) +
+90 psig over bottom for 0-60 fsw, so 117 psig at 60 fsw; the EGS charge Vr / FV x
+14.7 + Pm.  Methods from an older edition: a shortfall warns.
+"""
+
+from __future__ import annotations
+
+import pytest
+from _engine_plans import data, no_bad, only, run
+
+from supervisor import analysis as an
+from supervisor import constants as C
+from supervisor.rules.supply import CFR_340, FAMILY, NAVY_CH8
+
+PEAK_60 = 2 * 1.4 * an.L_PER_FT3 * (60 + 33) / 33  # diver + standby at 60 fsw [L/min]
+
+
+def _o2_dive(**kw):
+    d = data(bottom_time_min=50, decompression="in-water-oxygen",
+             stops=[{"depth": 20, "minutes": 10, "gas": "oxygen"}])
+    d["gas_supply"]["oxygen_decompression"].update(kw)
+    return d
+
+
+def test_primary_compressor_pass():
+    f = only(run(data(), FAMILY, "supply-primary"), "pass")
+    assert f.limit == pytest.approx(PEAK_60, abs=0.1) and not f.verified
+
+
+def test_primary_compressor_short_warns():
+    d = data()
+    d["gas_supply"]["primary"]["delivery_lpm"] = 150
+    f = only(run(d, FAMILY, "supply-primary"), "warn")
+    assert f.rule == "supply-primary"
+    assert (f.measured, f.unit) == (150, "L/min")
+    assert f.limit == pytest.approx(PEAK_60, abs=0.1)  # Navy flow x ata, two divers
+    assert CFR_340 in f.citation and NAVY_CH8 in f.citation
+
+
+def _bank(volume_l, bar):
+    d = data()
+    d["gas_supply"]["primary"] = {"kind": "hp-bank", "gas": "air", "water_volume_l": volume_l,
+                                  "pressure_bar": bar}
+    return d
+
+
+def test_primary_bank_pass_and_short():
+    only(run(_bank(200, 200), FAMILY, "supply-primary"), "pass")
+    f = only(run(_bank(10, 50), FAMILY, "supply-primary"), "warn")
+    mmp_bar = 117 * C.BAR_PER_PSI
+    # (50 - MMP) bar x 10 L / 1 atm of free gas, Boyle (Navy Va formula)
+    assert f.measured == pytest.approx((50 - mmp_bar) * 10 / C.P_ATM_BAR, abs=0.05)
+    assert f.unit == "L" and f.measured < f.limit
+
+
+def test_secondary_pass_and_short():
+    only(run(data(), FAMILY, "supply-secondary"), "pass")
+    d = data()
+    d["gas_supply"]["secondary"].update(water_volume_l=1, pressure_bar=10)
+    f = only(run(d, FAMILY, "supply-secondary"), "warn")
+    assert f.rule == "supply-secondary" and f.measured < f.limit
+    assert f.measured == pytest.approx((10 - 117 * C.BAR_PER_PSI) * 1 / C.P_ATM_BAR, abs=0.05)
+    assert CFR_340 in f.citation
+
+
+def test_secondary_absent_is_information():
+    d = data()
+    del d["gas_supply"]["secondary"]
+    only(run(d, FAMILY, "supply-secondary"), "info")
+
+
+def test_over_bottom_pass_for_bank():
+    got = run(_bank(200, 200), FAMILY, "supply-over-bottom")
+    no_bad(got)
+    assert [f.limit for f in got] == [117, 117]  # 60 x 0.445 = 26.7 -> 27, + 90 psig (p. 8-4)
+
+
+def test_over_bottom_bank_below_mmp_warns():
+    f = only(run(_bank(200, 5), FAMILY, "supply-over-bottom"), "warn")  # primary only
+    assert f.rule == "supply-over-bottom"
+    assert f.measured == pytest.approx(5 / C.BAR_PER_PSI, abs=0.5) and f.limit == 117
+    assert f.citation.startswith(NAVY_CH8)
+
+
+def test_over_bottom_compressor_needs_review():
+    f = [x for x in run(data(), FAMILY, "supply-over-bottom") if x.severity == "warn"]
+    assert len(f) == 1 and "delivery pressure" in f[0].message
+
+
+def test_bailout_pass():
+    f = only(run(data(), FAMILY, "supply-bailout"), "pass")
+    assert f.measured > f.limit and not f.verified
+
+
+def test_bailout_short_warns():
+    d = data()
+    d["gas_supply"]["bailout"][0]["pressure_bar"] = 50
+    f = only(run(d, FAMILY, "supply-bailout"), "warn")
+    assert f.rule == "supply-bailout"
+    assert f.measured == pytest.approx(50 / C.BAR_PER_PSI, abs=0.5)
+    # Navy EGS: 5 min at 60 fsw + 2 min ascent at 30 fsw average depth, 1.4 acfm,
+    # FV = 7 L, Pm = 135 psig
+    scf = 1.4 * (93 / 33 * 5 + 63 / 33 * 2)
+    assert f.limit == pytest.approx(scf / (7 / an.L_PER_FT3) * 14.7 + 135, abs=1)
+    assert "8-2.2.1" in f.citation
+
+
+def test_bailout_absent_is_information():
+    d = data()
+    d["gas_supply"]["bailout"] = [b for b in d["gas_supply"]["bailout"]
+                                  if b["diver"] != "Dana Diver"]
+    only(run(d, FAMILY, "supply-bailout"), "info")
+
+
+def test_oxygen_pass_and_short():
+    only(run(_o2_dive(), FAMILY, "supply-oxygen"), "pass")
+    f = only(run(_o2_dive(water_volume_l=1, pressure_bar=5), FAMILY, "supply-oxygen"), "warn")
+    assert f.rule == "supply-oxygen" and f.measured < f.limit
+    # 10 min of oxygen at 20 fsw, 1.4 acfm: (20 + 33) / 33 x 39.6 L/min x 10 min and more
+    assert f.limit >= 10 * an.RMV_LPM * 53 / 33
+
+
+def test_oxygen_missing_fails():
+    d = _o2_dive()
+    del d["gas_supply"]["oxygen_decompression"]
+    f = only(run(d, FAMILY, "supply-oxygen"), "fail")
+    assert f.measured == 0 and f.citation.startswith("plan consistency")
+
+
+def test_no_oxygen_stops_no_finding():
+    assert run(data(), FAMILY, "supply-oxygen") == []
+
+
+def test_chamber_gas_needs_review_for_decompression_dives():
+    assert run(data(), FAMILY, "supply-chamber") == []
+    f = only(run(_o2_dive(), FAMILY, "supply-chamber"), "warn")
+    assert f.rule == "supply-chamber" and CFR_340 in f.citation
+
+
+def test_supply_rules_pass_shallow_base():
+    no_bad(run(data(), FAMILY, "supply-secondary"))
