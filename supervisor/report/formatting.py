@@ -25,6 +25,8 @@ _VERDICT_RANK = {"conforms": 0, "needs-review": 1, "does-not-conform": 2}
 
 _UNIT_SUFFIXES = (
     ("_percent", "%"),
+    ("_psig", "psig"),
+    ("_acfm", "acfm"),
     ("_lpm", "L/min"),
     ("_min", "min"),
     ("_bar", "bar"),
@@ -123,9 +125,22 @@ def flatten(mapping: Mapping[str, Any], prefix: str = "") -> list[tuple[str, Any
 
 
 def fmt_scalar(value: object) -> str:
-    """Format any JSON scalar or list for a key/value table."""
+    """Format any JSON value for a key/value table of extra details.
+
+    ``None`` prints as an em dash (the source gave no value); a list of stops
+    prints as ``depth/minutes gas place`` entries; other mappings as
+    ``key value`` pairs.
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, Mapping):
+        if "depth" in value and "minutes" in value:
+            parts = [fmt_number(value.get("depth")), "/", fmt_number(value.get("minutes"))]
+            extra = " ".join(str(value[k]) for k in ("gas", "place") if value.get(k))
+            return "".join(parts) + (f" {extra}" if extra else "")
+        return ", ".join(f"{k} {fmt_scalar(v)}" for k, v in value.items()) or "none"
     if isinstance(value, list):
-        return ", ".join(fmt_scalar(v) for v in value) if value else "none"
+        return "; ".join(fmt_scalar(v) for v in value) if value else "none"
     if isinstance(value, float | int) and not isinstance(value, bool):
         return fmt_number(value, 2)
     return fmt_number(value)

@@ -148,7 +148,7 @@ def references_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
             rows.append([para(_stated(ref.get(k)), CELL) for k in
                          ("name", "title", "edition", "source_status", "verification")])
         w = width
-        out.append(grid(rows, [0.2 * w, 0.34 * w, 0.16 * w, 0.15 * w, 0.15 * w]))
+        out.append(grid(rows, [0.19 * w, 0.31 * w, 0.22 * w, 0.14 * w, 0.14 * w]))
     model = record.get("model")
     if isinstance(model, Mapping):
         out.append(Spacer(1, 3))
@@ -204,11 +204,26 @@ def findings_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
     rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
                                  ("Result", "Rule / dive", "Finding", "Measured / limit",
                                   "Citation (source status)")]]
+    if any(f.get("severity") == "pass" for f in findings):
+        out.append(para("Passed checks are listed last in smaller type, as measured / limit.",
+                        SMALL))
     for f in findings:
         unit = f.get("unit") if isinstance(f.get("unit"), str) else None
         measured = _given(f.get("measured"), unit)
         limit = _given(f.get("limit"), unit)
         dive = f.get("dive")
+        status = f"({_stated(f.get('source_status'))})"
+        if f.get("severity") == "pass":
+            # passed checks print compactly, one paragraph per cell
+            where = f" (dive {dive})" if dive is not None else ""
+            rows.append([
+                para(severity_label("pass"), SMALL),
+                para(f"{_text(f.get('rule'))}{where}", SMALL),
+                para(_text(f.get("message")), SMALL),
+                para("—" if measured == limit == "—" else f"{measured} / {limit}", SMALL),
+                para(f"{_text(f.get('citation'))} {status}", SMALL),
+            ])
+            continue
         rule_cell = [para(_text(f.get("rule")), CELL)]
         if dive is not None:
             rule_cell.append(para(f"dive {dive}", CELL))
@@ -217,8 +232,7 @@ def findings_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
             rule_cell,
             para(_text(f.get("message")), CELL),
             [para(f"measured: {measured}", CELL), para(f"limit: {limit}", CELL)],
-            [para(_text(f.get("citation")), CELL),
-             para(f"({_stated(f.get('source_status'))})", CELL)],
+            [para(_text(f.get("citation")), CELL), para(status, CELL)],
         ])
     w = width
     out.append(grid(rows, [0.08 * w, 0.17 * w, 0.36 * w, 0.16 * w, 0.23 * w]))
@@ -388,7 +402,7 @@ def gas_supply_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
         ratio = float(available) / float(need)
         short = float(available) < float(need)
         rows.append([para("available / need", CELL_BOLD if short else CELL),
-                     para(f"{fmt_number(ratio, 2)}" + ("  (short of need)" if short else ""),
+                     para(f"{fmt_number(ratio, 2)}" + (" (short of need)" if short else ""),
                           CELL_BOLD if short else CELL)])
     else:
         rows.append([para("available / need", CELL), para(NOT_COMPUTED, CELL_BOLD)])
@@ -430,7 +444,7 @@ def contingency_section(dive: Mapping[str, Any], record: Mapping[str, Any],
                 cell.append(rich([(f"{label}: ", True), (shown, False)], CELL))
         cells.append(cell)
     out.append(grid([cells], [col, col, col], header=False))
-    return out
+    return [KeepTogether(out)]
 
 
 def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
@@ -507,6 +521,30 @@ _MODE_TITLE = {
 }
 
 
+def _item_groups(items: Sequence[Any]) -> list[tuple[str, list[Mapping[str, Any]]]]:
+    """Consecutive items with the same ``group``, in template order."""
+    groups: list[tuple[str, list[Mapping[str, Any]]]] = []
+    for raw in items:
+        item = _m(raw)
+        name = _text(item.get("group"))
+        if not groups or groups[-1][0] != name:
+            groups.append((name, []))
+        groups[-1][1].append(item)
+    return groups
+
+
+def _item_cells(item: Mapping[str, Any]) -> list[object]:
+    body = [para(_text(item.get("text")), CELL)]
+    if item.get("applies_when"):
+        body.append(para(f"Applies when: {item['applies_when']}.", SMALL))
+    status = _stated(item.get("source_status"))
+    cite = [para("; ".join(str(c) for c in item.get("citations") or []) or MISSING, CELL),
+            para(f"({status})", CELL_BOLD if status != "VERIFIED" else CELL)]
+    if item.get("status_note"):
+        cite.append(para(str(item["status_note"]), SMALL))
+    return [body, cite]
+
+
 def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]:
     """The pre-dive items for each diving mode of the job, with tick boxes."""
     section = _m(record.get("checklist"))
@@ -526,30 +564,20 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
             out.append(para("Dives: " + ", ".join(dives), BODY))
         out.append(para(_text(section.get("note")), SMALL))
         out.append(Spacer(1, 4))
-        rows: list[list[object]] = [[para("done", CELL_BOLD), para("n/a", CELL_BOLD),
-                                     para("Item", CELL_BOLD),
-                                     para("Citation (source status)", CELL_BOLD)]]
-        extra: list[tuple[object, ...]] = []
-        last_group = None
-        for item in group.get("items") or []:
-            item = _m(item)
-            if item.get("group") != last_group:
-                last_group = item.get("group")
-                rows.append([para(_text(last_group), CELL_BOLD), "", "", ""])
-                r = len(rows) - 1
-                extra += [("SPAN", (0, r), (-1, r)), ("BACKGROUND", (0, r), (-1, r), PANEL_FILL)]
-            body = [para(_text(item.get("text")), CELL)]
-            if item.get("applies_when"):
-                body.append(para(f"Applies when: {item['applies_when']}.", SMALL))
-            status = _text(item.get("source_status"))
-            cite = [para("; ".join(item.get("citations") or []) or MISSING, CELL),
-                    para(f"({status})", CELL_BOLD if status != "VERIFIED" else CELL)]
-            if item.get("status_note"):
-                cite.append(para(str(item["status_note"]), SMALL))
-            rows.append([TickBox(), TickBox(), body, cite])
-        extra += [("ALIGN", (0, 1), (1, -1), "CENTER")]
         w = width
-        out.append(grid(rows, [0.055 * w, 0.055 * w, 0.58 * w, 0.31 * w], extra=extra))
+        widths = [0.055 * w, 0.055 * w, 0.58 * w, 0.31 * w]
+        out.append(grid([[para("done", CELL_BOLD), para("n/a", CELL_BOLD), para("Item", CELL_BOLD),
+                          para("Citation (source status)", CELL_BOLD)]], widths, repeat=False))
+        for name, items in _item_groups(group.get("items") or []):
+            rows: list[list[object]] = [[para(name, CELL_BOLD), "", "", ""]]
+            for item in items:
+                rows.append([TickBox(), TickBox(), *_item_cells(item)])
+            # one table per group: its heading repeats if the group runs onto a new page,
+            # and a group never starts in the last few lines of a page
+            out.append(CondPageBreak(70))
+            out.append(grid(rows, widths, extra=[("SPAN", (0, 0), (-1, 0)),
+                                                 ("BACKGROUND", (0, 0), (-1, 0), PANEL_FILL),
+                                                 ("ALIGN", (0, 1), (1, -1), "CENTER")]))
     return out
 
 

@@ -75,3 +75,14 @@ def test_severity_order_worst_first() -> None:
     order = sorted(["pass", "info", "fail", "warn"], key=f.severity_rank)
     assert order == ["fail", "warn", "info", "pass"]
     assert f.severity_label("odd") == "ODD"
+
+
+def test_fmt_scalar_for_extra_details() -> None:
+    assert f.fmt_scalar(None) == "—"
+    assert f.fmt_scalar([]) == "none"
+    assert f.fmt_scalar(2531.0) == "2531"
+    stops = [{"depth": 40.0, "minutes": 3.0, "gas": "air", "place": "water"},
+             {"depth": 20, "minutes": 12}]
+    assert f.fmt_scalar(stops) == "40/3 air water; 20/12"
+    assert f.fmt_scalar({"a": 1, "b": None}) == "a 1, b —"
+    assert f.humanize_key("bailout_psig") == ("bailout", "psig")

@@ -78,7 +78,9 @@ def test_verdict_counts_and_findings_worst_first(rendered: tuple[bytes, str, lis
                                                   "INFO oxygen-cns", "PASS osha-425-b1")]
     assert positions == sorted(positions)
     assert "29 CFR 1910.423(c)(1)" in first and "(VERIFIED)" in first
-    assert "measured: 100 fsw limit: 190 fsw" in first
+    assert "measured: 1.12 limit: 1.5" in first
+    assert "osha-425-b1 (dive D1) Surface-supplied air depth within the limit. 100 fsw / 190 fsw" \
+        in first  # passed checks: compact rows
 
 
 def test_dive_numbers_match_the_check(rendered: tuple[bytes, str, list[str]]) -> None:
