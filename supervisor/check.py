@@ -30,7 +30,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from supervisor import __version__
+from supervisor import __version__, analysis
 from supervisor.findings import Finding, could_not_run, counts, sort_findings, verdict
 from supervisor.plan import (
     Dive,
@@ -239,7 +239,9 @@ def model_schedule_provider(ctx: CheckContext) -> Iterator[Finding]:
         }
 
 
-PROVIDERS: list[Provider] = [model_schedule_provider]
+#: The per-dive analysis (supervisor.analysis) runs after the first-dive schedules and
+#: fills every engine-backed section, repetitive dives included (tissues carried over).
+PROVIDERS: list[Provider] = [model_schedule_provider, analysis.provide]
 
 
 # ---------------------------------------------------------------------------

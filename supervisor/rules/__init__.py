@@ -11,9 +11,33 @@
 
 from __future__ import annotations
 
-from supervisor.rules import procedure, regulatory, team, uscg
+from supervisor.rules import (
+    contingency,
+    exposure,
+    gas,
+    model,
+    oxygen,
+    procedure,
+    regulatory,
+    supply,
+    tables,
+    team,
+    uscg,
+)
 from supervisor.rules.base import CheckContext, Family, Rule
 
-FAMILIES: tuple[Family, ...] = (regulatory.FAMILY, uscg.FAMILY, procedure.FAMILY, team.FAMILY)
+FAMILIES: tuple[Family, ...] = (
+    regulatory.FAMILY,
+    uscg.FAMILY,
+    procedure.FAMILY,
+    team.FAMILY,
+    tables.FAMILY,
+    model.FAMILY,
+    oxygen.FAMILY,
+    gas.FAMILY,
+    supply.FAMILY,
+    exposure.FAMILY,
+    contingency.FAMILY,
+)
 
 __all__ = ["FAMILIES", "CheckContext", "Family", "Rule"]

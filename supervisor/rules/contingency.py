@@ -77,8 +77,9 @@ def schedules(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                     "coefficients)")
             look = c.reference
             if look is not None and look.outside_table:
-                yield r.review(f"needs review: {text}; outside the reference table "
-                               f"({look.reason})", dive=d.id,
+                where = ("reference schedule not available" if look.row is not None
+                         else "outside the reference table")
+                yield r.review(f"needs review: {text}; {where} ({look.reason})", dive=d.id,
                                measured=float(s.total_stop_min), unit="min")
                 continue
             if look is not None and look.schedule is not None:

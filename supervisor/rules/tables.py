@@ -262,10 +262,12 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 status=status,
             )
         else:
+            what = ("a computed table is model output; have a second person check the row"
+                    if look.source_status == "COMPUTED" else
+                    "confirm the row against the source document")
             yield r.review(
                 f"needs review: the proposed stops cover {where}, but the row is "
-                f"{look.verification} and its source {look.source_status}; confirm it against "
-                "the printed table",
+                f"{look.verification} and its source {look.source_status}; {what}",
                 dive=d.id, status=status,
             )
         if look.exceptional_exposure:
