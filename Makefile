@@ -13,7 +13,7 @@ $(STAMP): pyproject.toml
 	touch $(STAMP)
 
 demo: $(STAMP)
-	$(PY) -m supervisor.demo
+	$(PY) examples/run_demo.py
 
 test: $(STAMP)
 	$(VENV)/bin/ruff check .

@@ -1,14 +1,57 @@
-"""Run the main job on the bundled demo data (``make demo``)."""
+"""Run the main job on the bundled demo data (``make demo``), from the project folder.
+
+Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
+key for its fictional supervisor, writes the signed pre-dive checklist (PDF and
+JSON) to ``out/`` and verifies it.  The demo key's passphrase is a fixed demo
+value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never use it for a real key.
+"""
 
 from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]  # the project folder (examples/..)
+DEMO_PASSPHRASE = "demo-only-passphrase"
+
+
+def _run(args: list[str], env: dict[str, str], ok: tuple[int, ...] = (0,)) -> int:
+    print(f"\n$ supervisor {' '.join(args)}", flush=True)
+    code = subprocess.run([sys.executable, "-m", "supervisor", *args], cwd=ROOT, env=env,
+                          check=False).returncode
+    if code not in ok:
+        raise SystemExit(code)
+    return code
 
 
 def main() -> int:
     """Run the demo and return an exit status."""
-    from supervisor.cli import app
-
-    app(["schedule", "--depth", "100", "--unit", "fsw", "--bottom-time", "30", "--gas", "air"],
-        standalone_mode=False)
+    plan = Path("examples") / "demo-job.toml"
+    out = Path("out")
+    (ROOT / out).mkdir(exist_ok=True)
+    env = dict(os.environ)
+    env.setdefault("SUPERVISOR_KEY_PASSPHRASE", DEMO_PASSPHRASE)
+    # the verdict of the demo job is needs-review (0) or, if a rule fails, 1: both are shown
+    _run(["check", str(plan)], env, ok=(0, 1))
+    # signed checklists are never replaced, so the demo writes a fresh folder each run
+    # and removes only the checklist files of its own previous run
+    checklists = out / "demo-checklist"
+    (ROOT / checklists).mkdir(exist_ok=True)
+    for old in (ROOT / checklists).glob("*-checklist.*"):
+        old.unlink()
+    key = out / "demo-supervisor.p12"
+    if not (ROOT / key).exists():
+        _run(["keys", "new", "--name", "Demo Supervisor (fictional)", "--out", str(key)], env)
+    _run(["checklist", str(plan), "--out", str(checklists), "--sign", str(key)], env, ok=(0, 1))
+    pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
+    for pdf in pdfs:
+        _run(["verify", str(pdf.relative_to(ROOT))], env)
+    source = "SUPERVISOR_KEY_PASSPHRASE" if "SUPERVISOR_KEY_PASSPHRASE" in os.environ else (
+        repr(DEMO_PASSPHRASE))
+    print(f"\nsigned checklist written to {checklists}/ (demo key passphrase: {source}; "
+          "demo only)")
     return 0
 
 
