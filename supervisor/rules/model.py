@@ -84,7 +84,7 @@ def ceiling(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield bad
             continue
         ev = a.evaluation
-        excess = ev.worst_excess_bar / an._bar_per_unit(ctx.unit)
+        excess = ev.worst_excess_bar / an.bar_per_unit(ctx.unit)
         kw = dict(measured=round(excess, 2), limit=0.0, unit=ctx.unit, dive=d.id)
         if ev.ceiling_broken:
             yield r.breach(

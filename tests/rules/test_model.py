@@ -36,7 +36,7 @@ def test_ceiling_fail():
     f = only(FAMILY.get("model-ceiling").run(ctx), "fail")
     a = _analysis(ctx)
     assert f.rule == "model-ceiling"
-    assert f.measured == round(a.evaluation.worst_excess_bar / an._bar_per_unit("fsw"), 2) > 0
+    assert f.measured == round(a.evaluation.worst_excess_bar / an.bar_per_unit("fsw"), 2) > 0
     assert "policy.model" in f.citation and f.unit == "fsw"
 
 
