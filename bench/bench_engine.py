@@ -49,25 +49,31 @@ def engine(t, p1, p2, fn2, fhe):
 
 def streaming(t, p1, p2, fn2, fhe, p0n, p0h, chunk=2048):
     """One in-place pass of the closed form from known start tensions (no recurrence),
-    in the same cache-sized chunks as the engine: the practical bound."""
+    over the same cache-sized pieces as the engine (groups of profiles, blocks of
+    segments): the practical bound."""
     n = t.shape[-1]
+    rows = t.reshape(-1, n).shape[0]
+    t2, a2, b2 = t.reshape(rows, n), p1.reshape(rows, n), p2.reshape(rows, n)
+    group = max(1, chunk // n)
     out = []
-    for f, half, p0 in ((fn2, C.n2_half, p0n), (fhe, C.he_half, p0h)):
+    for f, half, p0 in ((fn2.reshape(rows, n), C.n2_half, p0n), (fhe.reshape(rows, n),
+                                                                 C.he_half, p0h)):
         k = rate_constant(half)
         inv_k = 1.0 / k
-        res = np.empty(t.shape + (16,))
-        for s in range(0, n, chunk):
-            e = min(n, s + chunk)
-            tt = t[..., s:e, None]
-            pa = (p1[..., s:e, None] - PH2O) * f[..., s:e, None]
-            r = (p2[..., s:e, None] - p1[..., s:e, None]) * f[..., s:e, None] / tt
-            d = np.exp(-k * tt)  # the one exponential per element
-            blk = res[..., s:e, :]
-            np.subtract(p0, pa, out=blk)
-            blk += r * inv_k
-            blk *= d
-            blk += pa
-            blk += r * (tt - inv_k)
+        res = np.empty((rows, n, 16))
+        for g in range(0, rows, group):
+            for s in range(0, n, chunk):
+                sl = (slice(g, g + group), slice(s, min(n, s + chunk)))
+                tt = t2[sl][..., None]
+                pa = (a2[sl][..., None] - PH2O) * f[sl][..., None]
+                r = (b2[sl][..., None] - a2[sl][..., None]) * f[sl][..., None] / tt
+                d = np.exp(-k * tt)  # the one exponential per element
+                blk = res[sl]
+                np.subtract(p0, pa, out=blk)
+                blk += r * inv_k
+                blk *= d
+                blk += pa
+                blk += r * (tt - inv_k)
         out.append(res)
     return out
 
