@@ -22,6 +22,8 @@ app = typer.Typer(
     no_args_is_help=True,
     add_completion=False,
     pretty_exceptions_show_locals=False,
+    # help texts carry units in brackets ([min], [m]); they are text, not markup
+    rich_markup_mode=None,
 )
 
 
@@ -56,6 +58,12 @@ def main(argv: list[str] | None = None) -> None:
         rv = app(args=argv, standalone_mode=False)
     except typer.Exit as exc:
         sys.exit(getattr(exc, "exit_code", 0))
+    except BrokenPipeError:
+        # the reader closed the pipe (e.g. `supervisor tables show X | head`): stop quietly
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        sys.exit(0)
     except typer.Abort:
         typer.echo("error: aborted", err=True)
         sys.exit(2)

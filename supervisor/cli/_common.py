@@ -41,6 +41,8 @@ def guarded(func: F) -> F:
         except SupervisorError as exc:  # pragma: no cover - defensive
             typer.echo(f"error: {exc}", err=True)
             raise typer.Exit(EXIT_BAD_INPUT) from None
+        except BrokenPipeError:
+            raise  # the reader went away (e.g. `| head`): handled quietly by main()
         except (OSError, UnicodeDecodeError) as exc:
             typer.echo(f"error: {exc}", err=True)
             raise typer.Exit(EXIT_BAD_INPUT) from None

@@ -57,6 +57,12 @@ def _parse_break(text: str | None, option: str) -> tuple[float, float] | None:
     return float(m.group(1)), float(m.group(2))  # type: ignore[union-attr]
 
 
+def _surface_pressure(altitude_m: float) -> float:
+    if not (-500.0 <= altitude_m <= 6000.0):  # also refuses NaN
+        fail_input("--altitude", f"got {altitude_m!r} m; expected -500 to 6000 m above sea level")
+    return float(altitude_pressure(altitude_m))
+
+
 def _table(js: dict) -> str:
     u = js["unit"]
     lines = [
@@ -86,6 +92,13 @@ def _table(js: dict) -> str:
         + ("n/a" if otu is None else f"{otu:.0f}")
         + (" (PO2 above the CNS table: needs review)" if ox.get("out_of_range") else "")
     )
+    if js.get("surface_interval_max_gf_percent") is not None:
+        lines.append(
+            f"surface interval: peak supersaturation {js['surface_interval_max_gf_percent']:.0f} % "
+            "of the M-value gradient"
+        )
+    for w in js.get("warnings", []):
+        lines.append(f"warning: {w}")
     lines.append("Model output for review by a qualified supervisor; not a published table.")
     return "\n".join(lines)
 
@@ -169,7 +182,7 @@ def register(app: typer.Typer) -> None:
             stop_step=ds if stop_step is None else stop_step,
             last_stop=dl if last_stop is None else last_stop,
             deco_gases=tuple(parse_deco_gas(x) for x in deco_gas),
-            p_surface_bar=float(altitude_pressure(altitude)),
+            p_surface_bar=_surface_pressure(altitude),
             water=water,
             o2_air_break=_parse_break(o2_air_break, "--o2-air-break"),
             surface_decompression=sd,

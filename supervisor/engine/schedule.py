@@ -16,7 +16,9 @@ Conventions (also printed in every result under ``conventions``):
   in depth between.
 * The no-stop limit is the longest whole-minute bottom time whose GF-high ceiling
   at leaving the bottom is at the surface; a dive within it has no stops, and a dive
-  beyond it stops at least one minute at the last stop.
+  beyond it always has a first stop.
+* The first stop lasts at least one whole minute; later stops that need no time are
+  left out of the list.
 * Deco gases switch on arrival at the first stop depth at or above their switch
   depth; the gas with the shallowest switch depth that is allowed is breathed.
 * Tissues start saturated with air (21 % O2, 79 % N2) at the surface pressure.
@@ -65,6 +67,9 @@ from supervisor.units import DEPTH_UNITS, bar_per_depth_unit
 SCHEMA = "supervisor.schedule/1"
 
 _EPS = 1e-9  # bar; tolerance on ceiling comparisons
+#: Accepted range of a schedule request: depth (about 30 bar gauge) and bottom time.
+MAX_DEPTH: dict[str, float] = {"fsw": 1000.0, "ft": 1000.0, "msw": 300.0, "m": 300.0}
+MAX_BOTTOM_MIN: int = 2880
 
 CONVENTIONS: dict[str, str] = {
     "bottom_time": "from leaving the surface (descent included) to leaving the bottom",
@@ -184,13 +189,20 @@ class ScheduleRequest:
             raise InputError(
                 "--model", f"unknown model {self.model!r}; expected one of {', '.join(bm.MODELS)}"
             )
-        if not _num(self.depth) or self.depth <= 0:
-            raise InputError("--depth", f"got {self.depth!r}; expected a depth > 0 {self.unit}")
+        max_depth = MAX_DEPTH[self.unit]
+        if not _num(self.depth) or self.depth <= 0 or self.depth > max_depth:
+            raise InputError(
+                "--depth", f"got {self.depth!r}; expected a depth > 0 and <= {max_depth:g} "
+                f"{self.unit}"
+            )
         for name, v in (("--descent-rate", self.descent_rate), ("--ascent-rate", self.ascent_rate)):
             if not _num(v) or v <= 0:
                 raise InputError(name, f"got {v!r}; expected a rate > 0 {self.unit}/min")
-        if not _num(self.bottom_time_min) or self.bottom_time_min <= 0:
-            raise InputError("--bottom-time", f"got {self.bottom_time_min!r}; expected minutes > 0")
+        if not _num(self.bottom_time_min) or not 0 < self.bottom_time_min <= MAX_BOTTOM_MIN:
+            raise InputError(
+                "--bottom-time",
+                f"got {self.bottom_time_min!r}; expected minutes > 0 and <= {MAX_BOTTOM_MIN}",
+            )
         t_desc = self.depth / self.descent_rate
         if self.bottom_time_min + 1e-9 < t_desc:
             raise InputError(
@@ -229,18 +241,27 @@ class ScheduleRequest:
                 raise InputError(name, "expected (gas minutes, air minutes), both > 0")
         sd = self.surface_decompression
         if sd is not None:
-            if sd.leave_water_depth < self.last_stop or sd.chamber_depth < self.last_stop:
-                raise InputError("surface_decompression", "depths must not be above the last stop")
-            if sd.surface_interval_min <= 0:
-                raise InputError("surface_decompression.surface_interval_min", "expected > 0 min")
+            u = self.unit
+            for name, v in (("--surface-decompression", sd.leave_water_depth),
+                            ("--chamber-depth", sd.chamber_depth)):
+                if not _num(v) or v < self.last_stop or v > self.depth:
+                    raise InputError(
+                        name, f"got {v!r}; expected a depth from the last stop "
+                        f"({self.last_stop:g} {u}) to the bottom depth ({self.depth:g} {u})"
+                    )
             travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / self.descent_rate
-            if sd.surface_interval_min + 1e-9 < travel:
+            si = sd.surface_interval_min
+            if not _num(si) or si + 1e-9 < travel or si > 60:
                 raise InputError(
-                    "surface_decompression.surface_interval_min",
-                    f"{sd.surface_interval_min:g} min is shorter than the travel "
-                    f"({travel:.2f} min)",
+                    "--surface-interval",
+                    f"got {si!r} min; expected from the travel time ({travel:.2f} min: up from "
+                    f"{sd.leave_water_depth:g} {u}, down to {sd.chamber_depth:g} {u}) to 60 min",
                 )
             parse_gas(sd.chamber_gas, "surface_decompression.chamber_gas")
+            if sd.air_break is not None and (
+                len(sd.air_break) != 2 or not all(_num(x) and x > 0 for x in sd.air_break)
+            ):
+                raise InputError("--chamber-air-break", "expected GAS_MIN/AIR_MIN, both > 0")
 
 
 def _finite(v: Any) -> bool:
@@ -292,6 +313,7 @@ class ScheduleResult:
     surface_interval_max_gf: float | None = None
     oxygen: Any = None
     labels: tuple[str, ...] = field(default=())
+    warnings: list[str] = field(default_factory=list)
 
     def to_json(self) -> dict[str, Any]:
         """The ``supervisor.schedule/1`` JSON object."""
@@ -324,6 +346,7 @@ class ScheduleResult:
             if self.surface_interval_max_gf is None
             else round(100 * self.surface_interval_max_gf, 1),
             "oxygen": oxygen,
+            "warnings": list(self.warnings),
             "descent_rate": _num_out(r.descent_rate),
             "ascent_rate": _num_out(r.ascent_rate),
             "stop_step": _num_out(r.stop_step),
@@ -722,15 +745,15 @@ class _Batch:
                 mins, pn, ph, cycle = self.stop_minutes(
                     stopping, pn, ph, s, nxt, cur_gas, gf_next, r0.o2_air_break, cycle, "water"
                 )
-                if i == i_last:
-                    # a dive beyond the no-stop limit stops at least one minute at the last stop
-                    short = stopping & (mins == 0) & np.array([not st for st in stops])
-                    if short.any():
-                        one = np.where(short, 1.0, 0.0)
-                        pn2, ph2 = self.segment(pn, ph, cur, cur, one, cur_gas)
-                        pn = np.where(short[:, None], pn2, pn)
-                        ph = np.where(short[:, None], ph2, ph)
-                        mins = np.where(short, 1, mins)
+                # the first stop is a stop: at least one minute there (it is where going on
+                # would break the GF-low ceiling; a dive beyond the no-stop limit always has one)
+                short = stopping & (mins == 0) & (np.abs(first_stop - s) < 1e-9)
+                if short.any():
+                    one = np.where(short, 1.0, 0.0)
+                    pn2, ph2 = self.segment(pn, ph, cur, cur, one, cur_gas)
+                    pn = np.where(short[:, None], pn2, pn)
+                    ph = np.where(short[:, None], ph2, ph)
+                    mins = np.where(short, 1, mins)
                 self.record(stopping & (mins > 0), s, s, mins, cur_gas, "water", "stop")
                 for b in np.flatnonzero(stopping & (mins > 0)):
                     stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))
@@ -759,6 +782,17 @@ class _Batch:
 
         for b, req in enumerate(self.reqs):
             prof = Profile(self.segs[b], req.unit, req.p_surface_bar, req.water)  # type: ignore[arg-type]
+            warnings = _gas_warnings(prof)
+            if req.o2_air_break is not None and not any(
+                s.gas.fo2 > 0.5 for s in prof.segments if s.label == "stop"
+            ):
+                warnings.append("air breaks ignored: no stop is on an oxygen-rich gas")
+            if si_gf[b] is not None and si_gf[b] > req.gf_high:
+                warnings.append(
+                    f"surface decompression interval: supersaturation peaks at "
+                    f"{100 * si_gf[b]:.0f} % of the M-value gradient, above GF high "
+                    f"{100 * req.gf_high:.0f} % (inherent to surface decompression; needs review)"
+                )
             ctrl = int(np.argmax(gf_surf[b]))
             results.append(
                 ScheduleResult(
@@ -777,6 +811,7 @@ class _Batch:
                     surface_interval_max_gf=si_gf[b],
                     oxygen=_oxygen.profile_exposure(prof),
                     labels=self.c.labels,
+                    warnings=warnings,
                 )
             )
         return results
@@ -853,6 +888,36 @@ class _Batch:
         self.record(rows, cur, 0.0, tt, cgas, "chamber", "decompression to surface")
         ascent_time += tt
         return pn, ph, np.where(rows, 0.0, cur)
+
+
+#: Inspired PO2 below which a gas is hypoxic [bar]: the Navy hypoxia threshold
+#: (U.S. Navy Diving Manual, Rev 4/5 ch. 15, 0.16 ata; older edition).
+HYPOXIC_PO2_BAR = 0.16 * C.P_ATM_BAR
+#: Highest PO2 of the NOAA CNS table [bar] (1.6 atm); above it in the water is flagged.
+HYPEROXIC_PO2_BAR = 1.6 * C.P_ATM_BAR
+
+
+def _gas_warnings(profile: Profile) -> list[str]:
+    """Hypoxic or hyperoxic breathing anywhere in a schedule's profile."""
+    out: list[str] = []
+    a = profile.arrays()
+    po2 = np.concatenate([a.p_start * a.fo2, a.p_end * a.fo2])
+    depth = np.concatenate([[s.start_depth for s in profile.segments],
+                            [s.end_depth for s in profile.segments]])
+    gas = [s.gas.name for s in profile.segments] * 2
+    water = np.array([s.place == "water" for s in profile.segments] * 2)
+    u = profile.unit
+    lo = int(np.argmin(po2))
+    if po2[lo] < HYPOXIC_PO2_BAR - 1e-12:
+        out.append(f"hypoxic: {gas[lo]} gives PO2 {po2[lo]:.2f} bar at {_num_out(depth[lo])} {u}, "
+                   "below 0.16 atm (needs review)")
+    if water.any():
+        hi = int(np.argmax(np.where(water, po2, -np.inf)))
+        if po2[hi] > HYPEROXIC_PO2_BAR + 1e-9:
+            out.append(f"hyperoxic: {gas[hi]} gives PO2 {po2[hi] / C.P_ATM_BAR:.2f} atm in the "
+                       f"water at {_num_out(depth[hi])} {u}, above 1.6 atm, the top of the NOAA "
+                       "CNS table (needs review)")
+    return out
 
 
 def with_bottom_time(req: ScheduleRequest, bottom_time_min: float) -> ScheduleRequest:

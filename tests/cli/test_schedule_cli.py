@@ -101,3 +101,22 @@ def test_console_script_subprocess():
                           capture_output=True, text=True, timeout=60, check=False)
     assert proc.returncode == 0, proc.stderr
     assert json.loads(proc.stdout)["schema"] == "supervisor.schedule/1"
+
+
+def test_altitude_out_of_range(capsys):
+    code, _, err = run(["--depth", "100", "--bottom-time", "30", "--altitude", "-1000"], capsys)
+    assert code == 2 and err.startswith("error: --altitude:")
+
+
+def test_surface_decompression_shows_the_interval(capsys):
+    code, out, _ = run(["--depth", "100", "--bottom-time", "60", "--surface-decompression",
+                        "40"], capsys)
+    assert code == 0
+    assert "surface interval: peak supersaturation" in out and "warning:" in out
+    assert "chamber" in out
+
+
+def test_help_keeps_units_in_brackets(capsys):
+    with pytest.raises(SystemExit):
+        main(["schedule", "--help"])
+    assert "[min]" in capsys.readouterr().out

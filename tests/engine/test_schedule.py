@@ -205,3 +205,55 @@ def test_json_contract_keys():
     assert js["schema"] == "supervisor.schedule/1"
     assert set(js["oxygen"]) >= {"cns_percent", "otu"}
     assert all(set(s) >= {"depth", "minutes", "gas"} for s in js["stops"])
+
+
+def test_first_stop_lasts_at_least_a_minute():
+    """The first stop reported equals the stop list's first depth (it is a stop)."""
+    for depth, bt in [(100, 30), (130, 25), (60, 80), (190, 30)]:
+        r = plan_schedule(ScheduleRequest(depth=depth, bottom_time_min=bt, **FSW))
+        assert r.stops[0].depth == r.first_stop_depth and r.stops[0].minutes >= 1
+
+
+@pytest.mark.parametrize(
+    ("gas", "deco", "needle"),
+    [("5/95", (), "hypoxic"), ("air", (("oxygen", 200),), "hyperoxic"),
+     ("oxygen", (), "hyperoxic")],
+)
+def test_unsafe_gases_are_flagged(gas, deco, needle):
+    """PO2 below 0.16 atm (Navy hypoxia threshold, U.S. Navy Diving Manual Rev 4/5 ch. 15,
+    older edition) or above 1.6 atm in the water (top of the NOAA CNS table) is flagged."""
+    r = plan_schedule(ScheduleRequest(depth=100, bottom_time_min=20, gas=gas, deco_gases=deco,
+                                      **FSW))
+    assert any(needle in w for w in r.warnings)
+    assert r.to_json()["warnings"] == r.warnings
+
+
+def test_plain_air_schedule_has_no_warnings():
+    assert plan_schedule(ScheduleRequest(depth=100, bottom_time_min=30, **FSW)).warnings == []
+
+
+@pytest.mark.parametrize(
+    ("sd", "field"),
+    [
+        (SurfaceDecompression(float("nan"), 5, 50), "--surface-decompression"),
+        (SurfaceDecompression(40, float("inf"), 50), "--surface-interval"),
+        (SurfaceDecompression(40, float("nan"), 50), "--surface-interval"),
+        (SurfaceDecompression(40, 1, 50), "--surface-interval"),
+        (SurfaceDecompression(40, 5, 0), "--chamber-depth"),
+    ],
+)
+def test_surface_decompression_options_are_validated(sd, field):
+    with pytest.raises(InputError) as exc:
+        plan_schedule(ScheduleRequest(depth=150, bottom_time_min=40, surface_decompression=sd,
+                                      **FSW))
+    assert exc.value.field == field
+
+
+@pytest.mark.parametrize(("kw", "field"), [({"depth": 5000}, "--depth"),
+                                           ({"bottom_time_min": 1e8}, "--bottom-time")])
+def test_upper_limits(kw, field):
+    base = {"depth": 100, "bottom_time_min": 30, **FSW}
+    base.update(kw)
+    with pytest.raises(InputError) as exc:
+        plan_schedule(ScheduleRequest(**base))
+    assert exc.value.field == field and "<=" in exc.value.message
