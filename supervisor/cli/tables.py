@@ -11,7 +11,9 @@ verify    0 recorded; 1 the file fails validation (nothing written);
 import    0 written; 1 the imported table fails validation (nothing written);
           2 bad option or cell, or the output exists without --force.
 build     0 written; 2 bad option or a schedule the engine cannot compute.
-screen    0 no row flagged; 1 rows flagged; 2 unreadable or invalid file.
+screen    0 no row flagged; 1 rows flagged, or the file fails the sanity rules (it is
+          still screened: screening is a transcription aid); 2 unreadable file or one
+          that fails the schema.
 """
 
 from __future__ import annotations
@@ -390,7 +392,8 @@ def screen(
 ) -> None:
     """Run every row through the model; report its surfacing supersaturation, flag outliers.
 
-    Exit 0 when no row is flagged, 1 when rows are flagged, 2 for an unreadable file.
+    Exit 0 when no row is flagged, 1 when rows are flagged or the file fails the sanity
+    rules (it is screened all the same), 2 for an unreadable file.
     """
     t = load_table(file, strict=False)
     rep = screen_table(t, model.value, descent_rate, tolerance / 100.0)
@@ -415,7 +418,7 @@ def screen(
     if rep.validation_errors:
         typer.echo(f"note: {file} also fails validation ({len(rep.validation_errors)} "
                    "error(s)); run `supervisor tables validate`", err=True)
-    if rep.flagged:
+    if rep.flagged or rep.validation_errors:
         raise typer.Exit(EXIT_FAIL)
 
 

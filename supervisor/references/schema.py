@@ -308,7 +308,8 @@ class Stop(BaseModel):
     model_config = _STRICT
 
     depth: Positive
-    minutes: NonNegative
+    #: a stop lasts at least some time; a stop that needs none is left out of the row
+    minutes: Positive
     gas: GasName = "air"
     place: Literal["water", "chamber"] = "water"
 

@@ -199,6 +199,13 @@ def verify_rows(path: str | Path, spec: str, by: str, method: str,
     on = on or _dt.date.today().isoformat()
     if not is_iso_date(on):
         raise InputError("--on", f"got {on!r}; expected a date YYYY-MM-DD")
+    if _dt.date.fromisoformat(on) > _dt.date.today():
+        raise InputError("--on", f"got {on}; a check cannot be dated in the future "
+                         f"(today is {_dt.date.today().isoformat()})")
+    transcribed = table.model.provenance.transcribed_on
+    if transcribed and _dt.date.fromisoformat(on) < _dt.date.fromisoformat(transcribed):
+        raise InputError("--on", f"got {on}; a check cannot come before the transcription "
+                         f"(provenance.transcribed_on = {transcribed})")
     indices = parse_row_spec(spec, table)
 
     new = copy.deepcopy(doc)

@@ -98,7 +98,7 @@ def test_verify_success_and_refusals(tmp_path):
     assert res.exit_code == 2 and "second person" in res.stderr
     assert p.read_bytes() == before
     res = _run("verify", str(p), "--rows", "@60/40,4", "--by", "Second Checker",
-               "--method", "read aloud", "--on", "2026-12-02")
+               "--method", "read aloud", "--on", "2026-12-01")
     assert res.exit_code == 0, res.output
     assert "recorded check by Second Checker of 2 row(s)" in res.stdout
     listing = _run("show", str(p)).stdout

@@ -67,3 +67,12 @@ def test_issue_line_and_errors():
     assert e.line("t.toml") == "t.toml: error: row 3 (60 fsw), column depth: bad"
     assert w.line("t.toml") == "t.toml: warning: odd"
     assert errors([e, w]) == [e]
+
+
+def test_a_stop_of_zero_minutes_is_refused():
+    """A stop that needs no time is left out of the row, not written as 0 min."""
+    from supervisor.references.schema import Stop
+
+    assert Stop(depth=10, minutes=1).minutes == 1
+    with pytest.raises(ValidationError, match="greater than 0"):
+        Stop(depth=10, minutes=0)

@@ -73,5 +73,5 @@ def trusted_table(tmp: Path) -> Path:
     path = tmp / "fictional-decompression.toml"
     shutil.copy(TABLE, path)
     verify_rows(path, "all", by="second test author", method="fictional test check",
-                on="2026-12-02")
+                on="2026-12-01")
     return path
