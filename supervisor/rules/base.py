@@ -189,10 +189,28 @@ class Rule:
         """Run the rule and return its findings (exceptions propagate)."""
         return list(self.func(ctx, self))
 
-    def _severity_of_breach(self, status: str | None, kind: str | None = None) -> str:
+    def confirmed(self, status: str | None = _UNSET, kind: str | None = None) -> bool:
+        """Whether an answer of this rule rests on a confirmed source.
+
+        True for a company policy or the plan's own consistency (``kind`` "policy" or
+        "plan"), and for a regulation or reference whose status is VERIFIED (or
+        COMPUTED by this project, :data:`~supervisor.findings.CONFIRMED_STATUSES`).
+        A SECONDARY, FROM MEMORY, OLDER-EDITION or DERIVED source, or none, is not.
+
+        Parameters
+        ----------
+        status : str or None
+            Source status of the finding; the rule's own when not given.
+        kind : str or None
+            Kind of the finding; the rule's own when not given.
+        """
         if (kind or self.kind) in ("policy", "plan"):
-            return "fail"
-        return "fail" if status in CONFIRMED_STATUSES else "warn"
+            return True
+        st = self.source_status if status is _UNSET else status
+        return st in CONFIRMED_STATUSES
+
+    def _severity_of_breach(self, status: str | None, kind: str | None = None) -> str:
+        return "fail" if self.confirmed(status, kind) else "warn"
 
     def finding(
         self,
@@ -240,9 +258,27 @@ class Rule:
         sev = self._severity_of_breach(st, kind)
         return self.finding(sev, message, status=st, verified=sev == "fail", **kw)
 
-    def ok(self, message: str, **kw: Any) -> Finding:
-        """A requirement that is met."""
-        return self.finding("pass", message, **kw)
+    def ok(
+        self,
+        message: str,
+        *,
+        status: str | None = _UNSET,
+        kind: RuleKind | None = None,
+        verified: bool | None = None,
+        **kw: Any,
+    ) -> Finding:
+        """A requirement that is met.
+
+        The pass is ``verified`` only when it rests on a confirmed source
+        (:meth:`confirmed`): a pass on a SECONDARY, FROM MEMORY, OLDER-EDITION or
+        DERIVED row is marked unverified, so the verdict is at best "needs review".
+        ``verified=False`` marks a pass unverified for another reason; a pass on an
+        unconfirmed source can never be marked verified.
+        """
+        ok = self.confirmed(status, kind)
+        return self.finding(
+            "pass", message, status=status, verified=ok and verified is not False, **kw
+        )
 
     def review(self, message: str, **kw: Any) -> Finding:
         """Something that could not be verified: a ``warn`` marked unverified."""

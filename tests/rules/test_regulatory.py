@@ -544,3 +544,80 @@ def test_engine_stops_override_a_declared_no_stop_dive(base):
     [f] = FAMILY.get("osha-423-c1").run(ctx)
     assert (f.rule, f.severity) == ("osha-423-c1", "fail")
     assert "outside the no-decompression limits" in f.message
+
+
+# ---------------------------------------------------------------------------
+# a pass is verified only on a confirmed source (project logic)
+
+
+def _ctx(d):
+    from supervisor.plan import plan_from_dict
+    from supervisor.rules.base import CheckContext
+
+    return CheckContext(plan_from_dict(d))
+
+
+def test_a_pass_on_a_from_memory_row_never_conforms(base):
+    """29 CFR 1910.425(b)(1) is held FROM MEMORY: its pass is unverified, so needs review."""
+    from supervisor.findings import verdict
+
+    [f] = FAMILY.get("osha-425-b1").run(_ctx(base()))
+    assert (f.rule, f.severity, f.source_status, f.verified) == (
+        "osha-425-b1", "pass", "FROM MEMORY", False)
+    assert verdict([f]) == "needs-review"
+
+
+def test_a_pass_on_a_verified_row_is_verified(base):
+    """29 CFR 1910.424(b)(1) is VERIFIED: its pass is verified and alone conforms."""
+    from supervisor.findings import verdict
+
+    [f] = FAMILY.get("osha-424-b1").run(_ctx(_scuba(base)))
+    assert (f.rule, f.severity, f.source_status, f.verified) == (
+        "osha-424-b1", "pass", "VERIFIED", True)
+    assert verdict([f]) == "conforms"
+
+
+def test_stated_items_on_a_secondary_row_are_unverified_passes(base):
+    """29 CFR 1910.421(c) is SECONDARY: every stated item passes unverified."""
+    got = FAMILY.get("osha-421-c").run(_ctx(base()))
+    assert [(f.severity, f.verified) for f in got] == [("pass", False)] * 3
+
+
+def test_a_status_override_decides_the_pass(base):
+    """29 CFR 1910.426(b): VERIFIED for heliox; nitrox as mixed gas only FROM MEMORY."""
+    [f] = FAMILY.get("osha-426-b").run(_ctx(_heliox(base)))
+    assert (f.severity, f.source_status, f.verified) == ("pass", "VERIFIED", True)
+    d = base()
+    d["dives"][0].update(mode="surface-supplied-nitrox", gas="nitrox32")
+    [f] = FAMILY.get("osha-426-b").run(_ctx(d))
+    assert (f.severity, f.source_status, f.verified) == ("pass", "FROM MEMORY", False)
+
+
+def test_an_unconfirmed_pass_cannot_be_forced_verified():
+    """Rule.ok(verified=True) on a SECONDARY rule is still unverified; policy passes verify."""
+    from supervisor.rules.base import Family
+
+    fam = Family("t", "t")
+    for key, kind, status in (("sec", "reference", "SECONDARY"), ("pol", "policy", None),
+                              ("plan", "plan", None), ("ver", "regulatory", "VERIFIED"),
+                              ("none", "reference", None)):
+        fam.rule(key, title=key, citation="c", kind=kind, source_status=status)(
+            lambda ctx, r: [])
+    got = {r.id: r.ok("x", verified=True).verified for r in fam.rules}
+    assert got == {"sec": False, "pol": True, "plan": True, "ver": True, "none": False}
+    assert fam.get("ver").ok("x", verified=False).verified is False
+    assert fam.get("ver").ok("x", status="DERIVED").verified is False
+    assert fam.get("sec").ok("x", kind="plan").verified is True
+
+
+def test_base_plan_needs_review_while_rules_rest_on_unconfirmed_rows(base):
+    """Every OSHA rule passes the base plan, yet SECONDARY and FROM MEMORY rows keep the
+    verdict at needs review (29 CFR 1910.421(b), (c), .425(b)(1), (c)(1) are unconfirmed)."""
+    from supervisor.check import run_families
+    from supervisor.findings import verdict
+
+    found, _ = run_families(_ctx(base()), [FAMILY])
+    assert not _bad(found)
+    loose = {f.rule for f in found if not f.verified}
+    assert loose == {"osha-421-b", "osha-421-c", "osha-425-b1", "osha-425-c1"}
+    assert verdict(found) == "needs-review"
