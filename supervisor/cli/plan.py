@@ -4,13 +4,21 @@ Exit status
 -----------
 validate  0 valid; 2 the file cannot be read, is not TOML or does not validate
           (one ``error: FIELD: MESSAGE`` line per problem on stderr).
-schema    0 written; 2 the output file cannot be written.
+schema    0 written; 2 the output file exists (without ``--force``), is a folder or
+          cannot be written (one ``error: --out: ...`` line on stderr).
+
+The schema file is written atomically: to a temporary file in the target
+folder, then renamed into place, so a reader never sees half a file and a
+failure leaves an existing file untouched.
 """
 
 from __future__ import annotations
 
+import contextlib
 import functools
 import json
+import os
+import tempfile
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TypeVar
@@ -75,24 +83,81 @@ def validate(
     raise typer.Exit(EXIT_OK)
 
 
+class _Exists(Exception):
+    """The output file exists and ``--force`` was not given."""
+
+
+def _umask() -> int:
+    old = os.umask(0o022)
+    os.umask(old)
+    return old
+
+
+def write_new_file(path: Path, text: str, force: bool = False) -> None:
+    """Write ``text`` (UTF-8) to ``path`` atomically; refuse an existing file unless ``force``.
+
+    The text goes to a temporary file in the target folder, is synced, then
+    hard-linked to ``path`` (which fails if ``path`` exists, so nothing is ever
+    overwritten by accident) or, with ``force``, renamed over it.
+
+    Raises
+    ------
+    _Exists
+        If ``path`` exists and ``force`` is false.
+    OSError
+        If the file cannot be written.
+    """
+    folder = path.parent if str(path.parent) else Path(".")
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(text.encode("utf-8"))
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())
+        if force:
+            os.replace(tmp, path)
+            return
+        try:
+            os.link(tmp, path)
+        except FileExistsError:
+            raise _Exists from None
+        except OSError:  # no hard links on this file system: check, then rename
+            if path.exists() or path.is_symlink():
+                raise _Exists from None
+            os.replace(tmp, path)
+    finally:
+        with contextlib.suppress(FileNotFoundError):
+            os.unlink(tmp)
+
+
 @plan_app.command("schema")
 @plan_errors
 def schema(
     out: Path | None = typer.Option(
         None, "--out", help="Write the schema to this file instead of standard output."
     ),
+    force: bool = typer.Option(
+        False, "--force", help="Replace the --out file if it exists (refused otherwise)."
+    ),
 ) -> None:
-    """Print the JSON Schema of the plan file."""
+    """Print the JSON Schema of the plan file (or write it with --out)."""
     text = json.dumps(plan_json_schema(), indent=2, sort_keys=False) + "\n"
     if out is None:
         typer.echo(text, nl=False)
-    else:
-        try:
-            out.write_text(text, encoding="utf-8")
-        except OSError as exc:
-            typer.echo(f"error: --out: cannot write {out} ({exc.strerror or exc})", err=True)
-            raise typer.Exit(EXIT_BAD_INPUT) from None
-        typer.echo(f"wrote {out}")
+        raise typer.Exit(EXIT_OK)
+    if out.is_dir():
+        typer.echo(f"error: --out: {out} is a folder; expected a file path", err=True)
+        raise typer.Exit(EXIT_BAD_INPUT)
+    try:
+        write_new_file(out, text, force)
+    except _Exists:
+        typer.echo(f"error: --out: {out} exists; give --force to replace it", err=True)
+        raise typer.Exit(EXIT_BAD_INPUT) from None
+    except OSError as exc:
+        typer.echo(f"error: --out: cannot write {out} ({exc.strerror or exc})", err=True)
+        raise typer.Exit(EXIT_BAD_INPUT) from None
+    typer.echo(f"wrote {out}")
     raise typer.Exit(EXIT_OK)
 
 

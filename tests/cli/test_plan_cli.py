@@ -70,3 +70,28 @@ def test_schema_unwritable(capsys, tmp_path):
     code, _, err = run(["plan", "schema", "--out", str(tmp_path / "no" / "x.json")], capsys)
     assert code == 2
     assert err.startswith("error: --out: cannot write ")
+
+
+def test_schema_refuses_an_existing_file(capsys, tmp_path):
+    target = tmp_path / "plan.schema.json"
+    target.write_text("keep me\n", encoding="utf-8")
+    code, out, err = run(["plan", "schema", "--out", str(target)], capsys)
+    assert code == 2 and out == ""
+    assert err == f"error: --out: {target} exists; give --force to replace it\n"
+    assert target.read_text(encoding="utf-8") == "keep me\n"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["plan.schema.json"]  # no temp left
+
+
+def test_schema_force_replaces(capsys, tmp_path):
+    target = tmp_path / "plan.schema.json"
+    target.write_text("old\n", encoding="utf-8")
+    code, out, _ = run(["plan", "schema", "--out", str(target), "--force"], capsys)
+    assert code == 0 and out == f"wrote {target}\n"
+    assert json.loads(target.read_text(encoding="utf-8"))["title"] == "supervisor-plan/1"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["plan.schema.json"]
+
+
+def test_schema_out_is_a_folder(capsys, tmp_path):
+    code, _, err = run(["plan", "schema", "--out", str(tmp_path), "--force"], capsys)
+    assert code == 2
+    assert err == f"error: --out: {tmp_path} is a folder; expected a file path\n"
