@@ -41,6 +41,26 @@ _RESERVED = {"con", "prn", "aux", "nul"} | {f"com{i}" for i in range(10)} | {
 }
 
 
+# letters that Unicode decomposition (NFKD) does not reduce to ASCII, spelt the usual way
+_LETTERS = str.maketrans({
+    "æ": "ae", "ø": "o", "œ": "oe", "ß": "ss", "ł": "l", "đ": "d", "ð": "d", "þ": "th",
+    "ı": "i", "ħ": "h", "ŧ": "t", "ŀ": "l", "ŋ": "ng", "ĸ": "k", "ſ": "s",
+})
+
+
+def transliterate(text: str) -> str:
+    """Fold text to ASCII for a file name, keeping Latin names recognisable.
+
+    Accents are dropped through NFKD decomposition (``"é"`` gives ``"e"``,
+    ``"å"`` gives ``"a"``) and letters that do not decompose are spelt out
+    (``"Ærøskøbing"`` gives ``"aeroskobing"``, ``"Straße"`` ``"strasse"``,
+    ``"Łódź"`` ``"lodz"``).  The result is lower case; characters of other
+    scripts are left out.
+    """
+    lowered = text.lower().translate(_LETTERS)
+    return unicodedata.normalize("NFKD", lowered).encode("ascii", "ignore").decode("ascii")
+
+
 def job_slug(title: object, max_length: int = 60) -> str:
     """A file-name-safe slug of a job title.
 
@@ -55,12 +75,14 @@ def job_slug(title: object, max_length: int = 60) -> str:
     -------
     str
         Lower-case ASCII letters, digits and single hyphens, accents folded
-        (``"Pier 7 — Zoë"`` gives ``"pier-7-zoe"``).  A title with no
+        and other Latin letters spelt out by :func:`transliterate`
+        (``"Pier 7 — Zoë"`` gives ``"pier-7-zoe"``, ``"Ærøskøbing"``
+        ``"aeroskobing"``).  A title with no
         ASCII-foldable letter (``"王芳"``) gives ``"job-"`` and the first 10 hex
         digits of the title's SHA-256, so distinct titles keep distinct names.
     """
     text = "" if title is None else str(title)
-    folded = unicodedata.normalize("NFKD", text).encode("ascii", "ignore").decode("ascii")
+    folded = transliterate(text)
     slug = re.sub(r"[^a-z0-9]+", "-", folded.lower()).strip("-")
     slug = slug[:max_length].rstrip("-")
     if not slug or slug in _RESERVED:

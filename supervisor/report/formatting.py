@@ -87,6 +87,25 @@ def fmt_quantity(value: object, unit: str | None, decimals: int = 1) -> str:
     return f"{text} {unit}"
 
 
+def fmt_stop_depth(value: object) -> str:
+    """A stop depth to 0.1 of its unit (``16.6901`` gives ``"16.7"``, ``50.0`` ``"50"``)."""
+    return fmt_number(value, 1)
+
+
+def fmt_stop_minutes(value: object) -> str:
+    """Stop minutes: whole minutes as whole numbers, others rounded *up* to 0.1 min.
+
+    A printed stop is never shorter than the computed one (``2.01`` gives
+    ``"2.1"``, ``15.0`` gives ``"15"``).
+    """
+    if not is_number(value):
+        return fmt_number(value)
+    x = float(value)  # type: ignore[arg-type]
+    if abs(x - round(x)) < 1e-9:
+        return str(int(round(x)))
+    return fmt_number(math.ceil(x * 10 - 1e-9) / 10, 1)
+
+
 def fmt_gf(gf_low: object, gf_high: object) -> str:
     """Gradient factors as percent, ``"30/85"`` (fractions or percent accepted)."""
 
@@ -135,7 +154,8 @@ def fmt_scalar(value: object) -> str:
         return "—"
     if isinstance(value, Mapping):
         if "depth" in value and "minutes" in value:
-            parts = [fmt_number(value.get("depth")), "/", fmt_number(value.get("minutes"))]
+            parts = [fmt_stop_depth(value.get("depth")), "/",
+                     fmt_stop_minutes(value.get("minutes"))]
             extra = " ".join(str(value[k]) for k in ("gas", "place") if value.get(k))
             return "".join(parts) + (f" {extra}" if extra else "")
         return ", ".join(f"{k} {fmt_scalar(v)}" for k, v in value.items()) or "none"

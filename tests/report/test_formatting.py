@@ -34,6 +34,24 @@ def test_fmt_quantity_leaves_missing_values_without_unit() -> None:
     assert f.fmt_quantity(None, "fsw") == f.MISSING
 
 
+@pytest.mark.parametrize(
+    ("depth", "expected"), [(16.6901, "16.7"), (50.0, "50"), (9.96, "10"), (None, f.MISSING)])
+def test_fmt_stop_depth_rounds_to_a_tenth(depth: object, expected: str) -> None:
+    assert f.fmt_stop_depth(depth) == expected
+
+
+@pytest.mark.parametrize(
+    ("minutes", "expected"),
+    [(15.0, "15"), (3, "3"), (2.01, "2.1"), (2.1, "2.1"), (7.45, "7.5"), (None, f.MISSING)],
+)
+def test_fmt_stop_minutes_whole_or_rounded_up(minutes: object, expected: str) -> None:
+    assert f.fmt_stop_minutes(minutes) == expected
+
+
+def test_fmt_scalar_rounds_stops() -> None:
+    assert f.fmt_scalar([{"depth": 16.6901, "minutes": 3.0, "gas": "air"}]) == "16.7/3 air"
+
+
 def test_fmt_gf_accepts_fractions_and_percent() -> None:
     assert f.fmt_gf(0.3, 0.85) == "30/85"
     assert f.fmt_gf(30, 85) == "30/85"
