@@ -19,6 +19,7 @@ from typing import Any
 
 from reportlab.graphics.shapes import Drawing, Group, Line, PolyLine, Rect, String
 from reportlab.lib import colors
+from reportlab.pdfbase.pdfmetrics import stringWidth
 
 from supervisor.report.fonts import BOLD, REGULAR, register_fonts
 from supervisor.report.formatting import fmt_number, is_number
@@ -119,6 +120,42 @@ def ceiling_breaks(
     return intervals
 
 
+def surface_interval_window(
+    t_min: Sequence[float], depth: Sequence[float]
+) -> tuple[float, float] | None:
+    """The surface interval of a surface-decompression profile, from its samples.
+
+    Parameters
+    ----------
+    t_min, depth : sequence of float
+        Sample times [min] and planned depths [fsw or msw].
+
+    Returns
+    -------
+    (float, float) or None
+        ``(start, end)`` [min]: from the end of the last water stop (where the
+        ascent to the first return to the surface begins) to the arrival at
+        chamber depth (where the compression after it ends); ``None`` if the
+        profile does not return to the surface before its end.
+    """
+    n = len(depth)
+    for i in range(1, n - 1):
+        if depth[i] > 1e-9:
+            continue
+        if not any(d > 1e-9 for d in depth[:i]) or not any(d > 1e-9 for d in depth[i + 1:]):
+            continue
+        k = i
+        while k > 0 and depth[k - 1] > depth[k] + 1e-9:
+            k -= 1
+        m = i
+        while m + 1 < n and depth[m + 1] <= 1e-9:
+            m += 1
+        while m + 1 < n and depth[m + 1] > depth[m] + 1e-9:
+            m += 1
+        return float(t_min[k]), float(t_min[m])
+    return None
+
+
 def _label(x: float, y: float, text: str, size: float = 6.5, anchor: str = "middle",
            bold: bool = False) -> String:
     return String(x, y, text, fontName=BOLD if bold else REGULAR, fontSize=size,
@@ -131,6 +168,8 @@ def profile_chart(
     model_label: str,
     width: float = 500.0,
     height: float = 190.0,
+    *,
+    surface_interval: bool = False,
 ) -> Drawing | None:
     """Depth-time chart of the planned profile with the model ceiling.
 
@@ -145,6 +184,11 @@ def profile_chart(
         Model name for the legend, e.g. ``"zhl16c GF 30/85"``.
     width, height : float
         Drawing size [pt].
+    surface_interval : bool
+        The dive is decompressed on the surface: the surface interval
+        (:func:`surface_interval_window`) is outlined with a dotted box and
+        labelled, and, as in the check, depths shallower than the ceiling
+        inside it are not shaded as breaks.
 
     Returns
     -------
@@ -182,10 +226,25 @@ def profile_chart(
         return y_top - (dv - y_ticks[0]) / (y_ticks[-1] - y_ticks[0]) * (y_top - y_bottom)
 
     g = Drawing(width, height, initialFontName=REGULAR, initialFontSize=6.5)
-    for a, b in ceiling_breaks(times, depths, ceilings):
+    window = surface_interval_window(times, depths) if surface_interval else None
+    checked = ceilings
+    if window is not None:
+        checked = [None if window[0] < tv <= window[1] else cv
+                   for tv, cv in zip(times, ceilings, strict=True)]
+    for a, b in ceiling_breaks(times, depths, checked):
         xa, xb = px(a), px(b)
         g.add(Rect(xa - 1, y_bottom, max(2.0, xb - xa + 2), y_top - y_bottom,
                    fillColor=SHADE, strokeColor=None))
+    if window is not None:
+        xa, xb = px(window[0]), px(window[1])
+        g.add(Rect(xa, y_bottom, max(1.0, xb - xa), y_top - y_bottom, fillColor=None,
+                   strokeColor=INK, strokeWidth=0.6, strokeDashArray=[1, 1.5]))
+        lines = ("surface interval", "not in the ceiling check")
+        half = max(stringWidth(text, REGULAR, 6) for text in lines) / 2 + 2
+        g.add(Rect((xa + xb) / 2 - half, y_bottom + 3, 2 * half, 16, fillColor=colors.white,
+                   strokeColor=None))
+        g.add(_label((xa + xb) / 2, y_bottom + 12, lines[0], size=6))
+        g.add(_label((xa + xb) / 2, y_bottom + 5, lines[1], size=6))
     for tv in x_ticks:
         g.add(Line(px(tv), y_bottom, px(tv), y_top, strokeColor=GRID, strokeWidth=0.4))
         g.add(_label(px(tv), y_bottom - 9, fmt_number(tv, 1)))

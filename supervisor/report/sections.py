@@ -27,6 +27,8 @@ from supervisor.report.formatting import (
     fmt_number,
     fmt_quantity,
     fmt_scalar,
+    fmt_stop_depth,
+    fmt_stop_minutes,
     humanize_key,
     is_number,
     severity_label,
@@ -261,8 +263,8 @@ def _stops_table(stops: Any, unit: str, width: float) -> Flowable:
                                  (f"stop [{unit}]", "min", "gas", "place")]]
     for stop in stops:
         stop = _m(stop)
-        rows.append([para(fmt_number(stop.get("depth"), 1), CELL),
-                     para(fmt_number(stop.get("minutes"), 1), CELL),
+        rows.append([para(fmt_stop_depth(stop.get("depth")), CELL),
+                     para(fmt_stop_minutes(stop.get("minutes")), CELL),
                      para(_text(stop.get("gas")), CELL),
                      para(_text(stop.get("place")), CELL)])
     return grid(rows, [0.24 * width, 0.18 * width, 0.3 * width, 0.28 * width], repeat=False)
@@ -276,6 +278,92 @@ def _minutes(value: Any) -> str:
     return fmt_quantity(value, "min", 1)
 
 
+def reference_gaps(ref: Mapping[str, Any]) -> list[str]:
+    """Why a reference-table schedule is missing or partial; empty when it is whole.
+
+    The check's ``reason``, then "outside the table" when ``outside_table``
+    is set, then "no stops given" when ``stops`` is not a list.  Row
+    verification is reported separately (:func:`reference_cells`).
+    """
+    gaps: list[str] = []
+    reason = ref.get("reason")
+    if isinstance(reason, str) and reason.strip():
+        gaps.append(reason.strip())
+    if ref.get("outside_table") is True:
+        gaps.append("outside the table")
+    if not isinstance(ref.get("stops"), list):
+        gaps.append("no stops given")
+    return gaps
+
+
+def reference_cells(ref: Any, unit: str, width: float) -> list[Flowable]:
+    """A reference-table schedule: its stops, or why there are none, and its row.
+
+    "no decompression stops" is printed only for a whole schedule (no
+    ``reason``, inside the table, stops given); a missing or partial one
+    prints its reason and "needs review" instead, and a row that is not
+    verified says so.
+    """
+    if not isinstance(ref, Mapping):
+        return [para(NOT_COMPUTED, CELL_BOLD)]
+    cells: list[Flowable] = []
+    gaps = reference_gaps(ref)
+    stops = ref.get("stops")
+    if gaps:
+        if isinstance(stops, list) and stops:
+            cells.append(_stops_table(stops, unit, width))
+            cells.append(para("Partial reference schedule — needs review:", CELL_BOLD))
+        else:
+            cells.append(para("No reference schedule — needs review:", CELL_BOLD))
+        cells += [para(gap, CELL) for gap in gaps]
+    else:
+        cells.append(_stops_table(stops, unit, width))
+    verification = ref.get("row_verification")
+    if verification == "unverified":
+        cells.append(para("row unverified — needs review", CELL_BOLD))
+    elif verification != "verified":
+        cells.append(para(f"row verification {_stated(verification)} — needs review",
+                          CELL_BOLD))
+    if ref.get("exceptional_exposure") is True:
+        cells.append(para("Exceptional exposure schedule: needs review.", CELL_BOLD))
+    row = f"{fmt_quantity(ref.get('depth'), unit)} for {_minutes(ref.get('bottom_time_min'))}"
+    asked_depth, asked_time = ref.get("depth_requested"), ref.get("bottom_time_requested")
+    asked = []
+    if is_number(asked_depth) and is_number(ref.get("depth")) \
+            and abs(float(asked_depth) - float(ref["depth"])) > 1e-9:
+        asked.append(fmt_quantity(asked_depth, unit))
+    if is_number(asked_time) and is_number(ref.get("bottom_time_min")) \
+            and abs(float(asked_time) - float(ref["bottom_time_min"])) > 1e-9:
+        asked.append(_minutes(asked_time))
+    if asked:
+        row += f" (looked up for {', '.join(asked)})"
+    cells += _kv_lines([("row", row), ("repetitive group", _text(ref.get("repetitive_group"))),
+                        ("source status", _stated(ref.get("source_status")))])
+    return cells
+
+
+def _model_cells(sched: Any, unit: str, width: float, *,
+                 totals: Sequence[tuple[str, str]] = ()) -> list[Flowable]:
+    """A model schedule's stops and totals, or why it was not computed."""
+    if not isinstance(sched, Mapping):
+        return [para(NOT_COMPUTED, CELL_BOLD)]
+    error = sched.get("error")
+    if error:
+        return [para(NOT_COMPUTED, CELL_BOLD), para(str(error), CELL)]
+    if "total_stop_min" in sched and sched.get("total_stop_min") is None \
+            and not sched.get("stops"):
+        return [para(NOT_COMPUTED, CELL_BOLD)]  # an empty list here means "no schedule"
+    cells: list[Flowable] = [_stops_table(sched.get("stops"), unit, width)]
+    cells += _kv_lines([
+        ("total stop time", _minutes(sched.get("total_stop_min"))),
+        ("total ascent time", _minutes(sched.get("total_ascent_min"))),
+        ("no-stop limit", "not reported" if sched.get("no_stop_limit_min") is None
+         else _minutes(sched.get("no_stop_limit_min"))),
+        *totals,
+    ])
+    return cells
+
+
 def schedules_side_by_side(dive: Mapping[str, Any], record: Mapping[str, Any],
                            width: float) -> Flowable:
     """Proposed, reference-table and model schedules in three columns."""
@@ -284,38 +372,12 @@ def schedules_side_by_side(dive: Mapping[str, Any], record: Mapping[str, Any],
     inner = col - 8
     model = _m(record.get("model"))
     ref = dive.get("reference_schedule")
-    msched = dive.get("model_schedule")
 
     proposed = [_stops_table(dive.get("proposed_stops"), unit, inner)]
-
-    if isinstance(ref, Mapping):
-        ref_cells: list[Flowable] = [_stops_table(ref.get("stops"), unit, inner)]
-        notes = [
-            ("row", f"{fmt_quantity(ref.get('depth'), unit)} for "
-                    f"{_minutes(ref.get('bottom_time_min'))}"),
-            ("repetitive group", _text(ref.get("repetitive_group"))),
-            ("row verification", _text(ref.get("row_verification"))),
-        ]
-        ref_cells += _kv_lines(notes)
-        if ref.get("outside_table") is True:
-            ref_cells.append(para("Exposure outside the table: needs review.", CELL_BOLD))
-        if ref.get("exceptional_exposure") is True:
-            ref_cells.append(para("Exceptional exposure schedule: needs review.", CELL_BOLD))
-        ref_head = f"Reference table: {_text(ref.get('table'))}"
-    else:
-        ref_cells = [para(NOT_COMPUTED, CELL_BOLD)]
-        ref_head = "Reference table"
-
-    if isinstance(msched, Mapping):
-        model_cells: list[Flowable] = [_stops_table(msched.get("stops"), unit, inner)]
-        model_cells += _kv_lines([
-            ("total stop time", _minutes(msched.get("total_stop_min"))),
-            ("total ascent time", _minutes(msched.get("total_ascent_min"))),
-            ("no-stop limit", "not reported" if msched.get("no_stop_limit_min") is None
-             else _minutes(msched.get("no_stop_limit_min"))),
-        ])
-    else:
-        model_cells = [para(NOT_COMPUTED, CELL_BOLD)]
+    ref_cells = reference_cells(ref, unit, inner)
+    ref_head = (f"Reference table: {_text(_m(ref).get('table'))}" if isinstance(ref, Mapping)
+                else "Reference table")
+    model_cells = _model_cells(dive.get("model_schedule"), unit, inner)
     model_head = (f"Model: {model_label(model)} "
                   f"(coefficients {_text(model.get('coefficient_status'))})")
 
@@ -346,24 +408,66 @@ def dive_facts(dive: Mapping[str, Any], record: Mapping[str, Any], width: float)
     return grid(rows, [k, v, k, v, k, v], header=False)
 
 
+def has_surface_interval(dive: Mapping[str, Any]) -> bool:
+    """True for surface decompression: the diver leaves the water between water and chamber."""
+    if dive.get("decompression") == "surface-oxygen":
+        return True
+    stops = dive.get("proposed_stops")
+    return isinstance(stops, list) and any(_m(s).get("place") == "chamber" for s in stops)
+
+
+def surface_interval_peak(dive: Mapping[str, Any]) -> float | None:
+    """Peak supersaturation in the surface interval [% of the M-value gradient], if reported.
+
+    Read from ``model_margin`` (or ``chart``) as ``surface_interval_max_gf_percent``,
+    or as the fraction ``surface_interval_max_gf``; ``None`` when neither is a number.
+    """
+    for source in (dive.get("model_margin"), dive.get("chart")):
+        found = _m(source)
+        if is_number(found.get("surface_interval_max_gf_percent")):
+            return float(found["surface_interval_max_gf_percent"])
+        if is_number(found.get("surface_interval_max_gf")):
+            return 100.0 * float(found["surface_interval_max_gf"])
+    return None
+
+
+def surface_interval_note(dive: Mapping[str, Any]) -> str:
+    """What the ceiling check leaves out for surface decompression, and what is known of it."""
+    head = ("The surface interval (leaving the last water stop to arriving at chamber depth) "
+            "is excluded from the ceiling check; ")
+    peak = surface_interval_peak(dive)
+    if peak is None:
+        return head + "surface interval: not assessed by the ceiling check — needs review."
+    return head + (f"surface interval: peak supersaturation {fmt_number(peak, 0)} % of the "
+                   "M-value gradient, reported by the model and not judged against a limit "
+                   "— needs review.")
+
+
 def model_margin(dive: Mapping[str, Any], record: Mapping[str, Any]) -> list[Flowable]:
     """Ceiling check of the proposed profile against the model."""
     margin = dive.get("model_margin")
     status = _text(_m(record.get("model")).get("coefficient_status"))
     if not isinstance(margin, Mapping):
         return [_not_computed("Model margin")]
+    surd = has_surface_interval(dive)
+    where = " in the water and in the chamber" if surd else ""
     broken = margin.get("ceiling_broken")
-    if broken is True:
-        verdict = ("The proposed profile goes shallower than the model ceiling.", True)
+    if margin.get("error"):
+        verdict = (f"Ceiling check: {NOT_COMPUTED} ({margin['error']}).", True)
+    elif broken is True:
+        verdict = (f"The proposed profile goes shallower than the model ceiling{where}.", True)
     elif broken is False:
-        verdict = ("The proposed profile stays at or below the model ceiling.", False)
+        verdict = (f"The proposed profile stays at or below the model ceiling{where}.", False)
     else:
         verdict = (f"Ceiling check: {NOT_COMPUTED}.", True)
     pct = margin.get("surfacing_gf_percent")
-    return [rich([verdict, (
+    parts: list[tuple[object, bool]] = [verdict, (
         f" Surfacing gradient factor {fmt_quantity(pct, '%', 0)}; controlling compartment "
         f"{_text(margin.get('controlling_compartment'))}; margin "
-        f"{_minutes(margin.get('margin_min'))}. (Model coefficients {status}.)", False)], BODY)]
+        f"{_minutes(margin.get('margin_min'))}. (Model coefficients {status}.)", False)]
+    if surd:
+        parts.append((" " + surface_interval_note(dive), True))
+    return [rich(parts, BODY)]
 
 
 def oxygen_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
@@ -388,30 +492,108 @@ def oxygen_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
     return out + [grid(rows, [0.6 * width, 0.4 * width], repeat=False)]
 
 
+def _has_oxygen_stops(dive: Mapping[str, Any]) -> bool:
+    stops = dive.get("proposed_stops")
+    if not isinstance(stops, list):
+        return True  # unknown: assume oxygen may be breathed
+    return any("oxygen" in str(_m(s).get("gas", "")).lower() for s in stops)
+
+
+def _supply_row(label: str, have: Any, need: Any, unit: str) -> list[object]:
+    """One "available against need" row; any missing figure prints as not computed."""
+    have_text = fmt_quantity(have, unit, 0)
+    need_text = fmt_quantity(need, unit, 0)
+    if is_number(have) and is_number(need) and float(need) > 0:
+        short = float(have) < float(need)
+        style = CELL_BOLD if short else CELL
+        ratio = fmt_number(float(have) / float(need), 2) + (" (short of need)" if short else "")
+        return [para(label, style), para(have_text, CELL), para(need_text, CELL),
+                para(ratio, style)]
+    return [para(label, CELL), para(have_text, CELL), para(need_text, CELL),
+            para(NOT_COMPUTED, CELL_BOLD)]
+
+
+def _is_compressor(supply: Mapping[str, Any], which: str) -> bool:
+    return (supply.get(f"{which}_kind") == "compressor"
+            or is_number(supply.get(f"{which}_delivery_lpm")))
+
+
+_SUPPLY_SHOWN = ("need_l", "available_l", "primary_kind", "primary_delivery_lpm",
+                 "peak_flow_lpm", "recovery_need_l", "secondary_kind", "secondary_available_l",
+                 "secondary_delivery_lpm", "oxygen_need_l", "oxygen_available_l",
+                 "bailout_psig", "bailout_required_psig")
+
+
+_SUPPLY_LABELS: dict[str, tuple[str, str | None]] = {
+    "rmv_lpm": ("breathing rate assumed", "L/min"),
+    "people": ("people counted", None),
+    "diver_need_l": ("one diver's need, whole dive", "L"),
+    "need_l": ("need of all counted, whole dive", "L"),
+    "over_bottom_psig": ("over-bottom pressure", "psig"),
+    "mmp_psig": ("minimum manifold pressure", "psig"),
+    "bailout_required_psig_rounded": ("bailout required, rounded up", "psig"),
+}
+
+
 def gas_supply_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
-    """Gas supply against need."""
+    """Gas supply against need: what the check compares, then the other figures.
+
+    A compressor is compared by flow (its delivery against the peak flow the
+    divers need at the maximum depth), a bank or cylinder by free gas against
+    the need; a figure the check does not give prints as not computed.
+    """
     out: list[Flowable] = [para("Gas supply against need", H3)]
     supply = dive.get("gas_supply")
     if not isinstance(supply, Mapping):
         return out + [_not_computed("Gas supply")]
-    need, available = supply.get("need_l"), supply.get("available_l")
-    rows: list[list[object]] = [[para("Item", CELL_BOLD), para("Value", CELL_BOLD)]]
-    rows.append([para("need [L]", CELL), para(fmt_number(need, 0), CELL)])
-    rows.append([para("available [L]", CELL), para(fmt_number(available, 0), CELL)])
-    if is_number(need) and is_number(available) and float(need) > 0:
-        ratio = float(available) / float(need)
-        short = float(available) < float(need)
-        rows.append([para("available / need", CELL_BOLD if short else CELL),
-                     para(f"{fmt_number(ratio, 2)}" + (" (short of need)" if short else ""),
-                          CELL_BOLD if short else CELL)])
+    rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
+                                 ("Supply", "available", "needed", "available / needed")]]
+    kind = supply.get("primary_kind")
+    if _is_compressor(supply, "primary"):
+        rows.append(_supply_row("primary compressor: delivery against peak flow",
+                                supply.get("primary_delivery_lpm"), supply.get("peak_flow_lpm"),
+                                "L/min"))
     else:
-        rows.append([para("available / need", CELL), para(NOT_COMPUTED, CELL_BOLD)])
-    for key, value in flatten({k: v for k, v in supply.items()
-                               if k not in ("need_l", "available_l")}):
-        label, unit = humanize_key(key)
-        rows.append([para(f"{label} [{unit}]" if unit else label, CELL),
-                     para(fmt_scalar(value), CELL)])
-    return out + [grid(rows, [0.55 * width, 0.45 * width], repeat=False)]
+        label = f"primary {kind}" if isinstance(kind, str) and kind else "primary"
+        rows.append(_supply_row(f"{label}: free gas against the whole dive",
+                                supply.get("available_l"), supply.get("need_l"), "L"))
+    if any(k.startswith("secondary_") for k in supply):
+        second = supply.get("secondary_kind")
+        if second is None:
+            rows.append([para("secondary", CELL), para("none in the plan", CELL_BOLD), "", ""])
+        elif _is_compressor(supply, "secondary"):
+            rows.append(_supply_row("secondary compressor: delivery against peak flow",
+                                    supply.get("secondary_delivery_lpm"),
+                                    supply.get("peak_flow_lpm"), "L/min"))
+        else:
+            rows.append(_supply_row(f"secondary {second}: free gas against the ascent and "
+                                    "decompression", supply.get("secondary_available_l"),
+                                    supply.get("recovery_need_l"), "L"))
+    if "oxygen_need_l" in supply:
+        if supply.get("oxygen_need_l") is None and not _has_oxygen_stops(dive):
+            rows.append([para("decompression oxygen", CELL),
+                         para("no oxygen stops in the plan", CELL), "", ""])
+        else:
+            rows.append(_supply_row("decompression oxygen", supply.get("oxygen_available_l"),
+                                    supply.get("oxygen_need_l"), "L"))
+    if "bailout_psig" in supply or "bailout_required_psig" in supply:
+        rows.append(_supply_row("bailout cylinder: charge against required",
+                                supply.get("bailout_psig"), supply.get("bailout_required_psig"),
+                                "psig"))
+    w = width
+    out.append(grid(rows, [0.4 * w, 0.19 * w, 0.19 * w, 0.22 * w], repeat=False,
+                    extra=[("SPAN", (1, r), (3, r)) for r, row in enumerate(rows)
+                           if r and row[2] == ""]))
+    shown = set(_SUPPLY_SHOWN) - ({"need_l"} if _is_compressor(supply, "primary") else set())
+    details: list[list[object]] = []
+    for key, value in flatten({k: v for k, v in supply.items() if k not in shown}):
+        label, unit = _SUPPLY_LABELS.get(key) or humanize_key(key)
+        details.append([para(f"{label} [{unit}]" if unit else label, CELL),
+                        para(fmt_scalar(value), CELL)])
+    if details:
+        out.append(Spacer(1, 3))
+        out.append(grid(details, [0.55 * width, 0.45 * width], header=False, repeat=False))
+    return out
 
 
 _CONTINGENCIES = (
@@ -420,29 +602,55 @@ _CONTINGENCIES = (
     ("oxygen_failure", "Loss of decompression oxygen"),
 )
 
+_CONTINGENCY_SHOWN = ("kind", "depth", "bottom_time_min", "basis", "stops", "total_stop_min",
+                      "total_ascent_min", "no_stop_limit_min", "oxygen", "reference", "error")
+
+
+def _contingency_cell(key: str, title: str, sched: Any, dive: Mapping[str, Any], unit: str,
+                      width: float) -> list[Flowable]:
+    cell: list[Flowable] = [para(title, CELL_BOLD)]
+    if not isinstance(sched, Mapping):
+        if key == "oxygen_failure" and sched is None \
+                and dive.get("decompression") in ("none", "in-water") \
+                and not _has_oxygen_stops(dive):
+            return cell + [para("not applicable: the plan breathes no oxygen at its stops",
+                                CELL)]
+        return cell + [para(NOT_COMPUTED, CELL_BOLD)]
+    depth, time = sched.get("depth"), sched.get("bottom_time_min")
+    if is_number(depth) and is_number(time):
+        cell += _kv_lines([("dive", f"{fmt_quantity(depth, unit)} for {_minutes(time)}")])
+    else:
+        cell += _kv_lines([("depth", fmt_quantity(depth, unit)), ("bottom time", _minutes(time))])
+    if sched.get("basis"):
+        cell.append(para(str(sched["basis"]), SMALL))
+    oxygen = _m(sched.get("oxygen"))
+    cell.append(para("Model schedule", CELL_BOLD))
+    cell += _model_cells(sched, unit, width, totals=[
+        ("CNS", fmt_quantity(oxygen.get("cns_percent"), "%", 1)),
+        ("OTU", fmt_number(oxygen.get("otu"), 0)),
+    ])
+    cell.append(para("Reference table" + (f": {sched['reference']['table']}"
+                                          if _m(sched.get("reference")).get("table") else ""),
+                     CELL_BOLD))
+    cell += reference_cells(sched.get("reference"), unit, width)
+    for k, value in flatten({k: v for k, v in sched.items() if k not in _CONTINGENCY_SHOWN}):
+        label, u = humanize_key(k)
+        shown = fmt_quantity(value, u, 1) if is_number(value) else fmt_scalar(value)
+        cell.append(rich([(f"{label}: ", True), (shown, False)], CELL))
+    return cell
+
 
 def contingency_section(dive: Mapping[str, Any], record: Mapping[str, Any],
                         width: float) -> list[Flowable]:
-    """Contingency schedules: overrun, deeper, loss of oxygen."""
+    """Contingency schedules: overrun, deeper, loss of oxygen (model and reference table)."""
     unit = _text(record.get("unit"))
     out: list[Flowable] = [para("Contingency schedules", H3)]
     cont = dive.get("contingency")
     if not isinstance(cont, Mapping):
         return out + [_not_computed("Contingency schedules")]
-    cells: list[list[Flowable]] = []
     col = width / 3
-    for key, title in _CONTINGENCIES:
-        sched = cont.get(key)
-        cell: list[Flowable] = [para(title, CELL_BOLD)]
-        if not isinstance(sched, Mapping):
-            cell.append(para(NOT_COMPUTED, CELL_BOLD))
-        else:
-            cell.append(_stops_table(sched.get("stops"), unit, col - 8))
-            for k, value in flatten({k: v for k, v in sched.items() if k != "stops"}):
-                label, u = humanize_key(k)
-                shown = fmt_quantity(value, u, 1) if is_number(value) else fmt_scalar(value)
-                cell.append(rich([(f"{label}: ", True), (shown, False)], CELL))
-        cells.append(cell)
+    cells = [_contingency_cell(key, title, cont.get(key), dive, unit, col - 8)
+             for key, title in _CONTINGENCIES]
     out.append(grid([cells], [col, col, col], header=False))
     return [KeepTogether(out)]
 
@@ -460,11 +668,17 @@ def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
         Spacer(1, 4),
     ]
     out += model_margin(dive, record)
+    surd = has_surface_interval(dive)
     profile = charts.profile_chart(dive.get("chart"), _text(record.get("unit")),
-                                   model_label(model), width=width)
+                                   model_label(model), width=width, surface_interval=surd)
     head = para(f"Planned depth-time profile and model ceiling (coefficients {status})", H3)
-    out.append(KeepTogether([head, profile if profile is not None
-                             else _not_computed("Depth-time chart")]))
+    block: list[Flowable] = [head, profile if profile is not None
+                             else _not_computed("Depth-time chart")]
+    if surd:
+        block.append(para("Dotted box: the surface interval of surface decompression, "
+                          "excluded from the ceiling check (see the ceiling check above); "
+                          "shading marks only breaks outside it.", SMALL))
+    out.append(KeepTogether(block))
     bars = charts.compartment_chart(dive.get("compartments"), width=width)
     head = para(f"Compartment loading at surfacing (coefficients {status})", H3)
     out.append(KeepTogether([head, bars if bars is not None

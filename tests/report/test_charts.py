@@ -100,3 +100,40 @@ def test_compartment_chart_marks_bars_over_the_limit(check_result: dict[str, Any
 )
 def test_compartment_chart_refuses_bad_data(comps: Any) -> None:
     assert charts.compartment_chart(comps) is None
+
+
+# fictional surface-decompression profile: stops at 50 and 40, surface, chamber at 50 and 40
+_SURD_T = [0.0, 2.0, 40.0, 42.0, 45.0, 45.3, 48.3, 49.7, 52.7, 53.2, 68.2, 68.5, 83.5, 84.8]
+_SURD_D = [0.0, 110.0, 110.0, 50.0, 50.0, 40.0, 40.0, 0.0, 0.0, 50.0, 50.0, 40.0, 40.0, 0.0]
+_SURD_C = [0.0, 0.0, 52.0, 49.0, 44.0, 38.0, 33.7, 16.6, 12.7, 29.9, 9.3, 6.5, 0.0, 0.0]
+
+
+def test_surface_interval_window_runs_from_last_water_stop_to_chamber_depth() -> None:
+    assert charts.surface_interval_window(_SURD_T, _SURD_D) == (48.3, 53.2)
+    assert charts.surface_interval_window([0, 1, 30, 31], [0, 60, 60, 0]) is None
+
+
+def test_profile_chart_outlines_surface_interval_and_leaves_it_unshaded() -> None:
+    chart = {"t_min": _SURD_T, "depth": _SURD_D, "ceiling_depth": _SURD_C}
+    plain = charts.profile_chart(chart, "fsw", "m")
+    assert plain is not None
+    shaded = [c for c in plain.contents if isinstance(c, Rect) and c.fillColor == charts.SHADE]
+    assert len(shaded) == 2  # the surface samples above the ceiling, and the legend sample
+    g = charts.profile_chart(chart, "fsw", "m", surface_interval=True)
+    assert g is not None
+    shaded = [c for c in g.contents if isinstance(c, Rect) and c.fillColor == charts.SHADE]
+    assert len(shaded) == 1  # the legend sample only
+    boxes = [c for c in g.contents if isinstance(c, Rect) and c.fillColor is None
+             and c.strokeDashArray]
+    assert len(boxes) == 1
+    assert {"surface interval", "not in the ceiling check"} <= set(_strings(g))
+
+
+def test_break_outside_the_surface_interval_is_still_shaded() -> None:
+    ceiling = list(_SURD_C)
+    ceiling[10] = 55.0  # chamber stop at 50 with the ceiling at 55
+    g = charts.profile_chart({"t_min": _SURD_T, "depth": _SURD_D, "ceiling_depth": ceiling},
+                             "fsw", "m", surface_interval=True)
+    assert g is not None
+    shaded = [c for c in g.contents if isinstance(c, Rect) and c.fillColor == charts.SHADE]
+    assert len(shaded) == 2

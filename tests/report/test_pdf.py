@@ -91,9 +91,11 @@ def test_dive_numbers_match_the_check(rendered: tuple[bytes, str, list[str]]) ->
                      "total stop time: 32 min", "total ascent time: 35.3 min",
                      "no-stop limit: 19.5 min", "Surfacing gradient factor 81 %",
                      "controlling compartment 5", "bottom 0.85", "decompression 0.34",
-                     "CNS [% of limit] 23.7", "pulmonary dose [OTU] 41", "need [L] 9600",
-                     "available [L] 10750", "available / need 1.12", "reserve [L] 4000",
-                     "flow [L/min] 125", "depth: 110", "total stop: 44 min"):
+                     "CNS [% of limit] 23.7", "pulmonary dose [OTU] 41",
+                     "primary: free gas against the whole dive 10750 L 9600 L 1.12",
+                     "reserve [L] 4000", "flow [L/min] 125", "depth: not computed",
+                     "bottom time: 40 min", "dive: 110 fsw for 30 min",
+                     "total stop time: 44 min"):
         assert fragment in dive, fragment
     assert "81.4" not in dive.split("Compartment loading")[1][:40]
     assert " 81 " in dive.split("Compartment loading at surfacing")[1]  # bar label
