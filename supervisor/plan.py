@@ -43,6 +43,7 @@ from __future__ import annotations
 import datetime as _dt
 import hashlib
 import json
+import math
 import tomllib
 import typing
 from pathlib import Path
@@ -88,8 +89,18 @@ MAX_PLAN_DEPTH_FSW = 2000.0
 
 #: Chamber compression rate used to draw a surface-decompression profile [fsw/min]:
 #: "compress in the chamber to 50 fsw at up to 100 fsw/min", U.S. Navy Diving Manual
-#: Rev 7 ch. 9 surface decompression on oxygen (SECONDARY).
+#: Rev 7 ch. 9 surface decompression on oxygen (SECONDARY).  The plan has no field for
+#: it; :meth:`Plan.chamber_compression_rate` gives it in the plan unit.
 CHAMBER_COMPRESSION_FSW_PER_MIN = 100.0
+
+#: Surface interval of surface decompression on oxygen [min]: leaving the last water stop
+#: to arriving at the first chamber stop within 5 min, U.S. Navy Diving Manual Rev 7 ch. 9
+#: (SECONDARY).  A plan that states no ``surface_transfer_min`` is drawn with the rest of
+#: this interval on deck.
+SURD_INTERVAL_MIN = 5.0
+
+#: Kinds of bundled table a plan may name as its ``policy.reference_table``.
+REFERENCE_TABLE_KINDS: tuple[str, ...] = ("no-stop", "decompression")
 
 # Policy defaults per unit: (fsw value, msw value).
 _UNIT_DEFAULTS: dict[str, tuple[float, float]] = {
@@ -181,9 +192,56 @@ def _to_roles(value: Any) -> Any:
     return [value] if isinstance(value, str) else value
 
 
+def bundled_reference_tables() -> dict[str, str]:
+    """Bundled table names by kind folder: ``{name: kind}`` (files are not loaded)."""
+    from supervisor.resources import tables_dir
+
+    try:
+        root = tables_dir()
+    except FileNotFoundError:
+        return {}
+    return {
+        f.stem: f.parent.name
+        for f in sorted(root.rglob("*.toml"))
+        if not f.name.startswith(".") and f.parent != root
+    }
+
+
+def _check_reference_table(value: str | None) -> str | None:
+    """Accept a bundled no-stop or decompression table name, or an existing table file."""
+    if value is None:
+        return None
+    text = value.strip()
+    tables = bundled_reference_tables()
+    usable = sorted(n for n, k in tables.items() if k in REFERENCE_TABLE_KINDS)
+    form = (f"expected a bundled table name ({', '.join(usable) or 'none bundled'}) or the "
+            "path of a table file (.toml)")
+    if not text:
+        raise ValueError(f"got empty text; {form}")
+    path = Path(text)
+    if path.suffix == ".toml" or len(path.parts) > 1 or path.exists():
+        if not path.is_file():
+            raise ValueError(f"got {text!r}: no such file; {form}")
+        return text
+    kind = tables.get(text)
+    if kind is None:
+        raise ValueError(f"got {text!r}: no bundled table of that name; {form}")
+    if kind not in REFERENCE_TABLE_KINDS:
+        raise ValueError(
+            f"got {text!r}, a bundled {kind} table; expected a no-stop or decompression "
+            f"table: {', '.join(usable)}"
+        )
+    return text
+
+
 Depth = Annotated[float, AfterValidator(_check_depth)]
 Rate = Annotated[float, AfterValidator(_check_rate)]
 GasText = Annotated[str, AfterValidator(_check_gas)]
+
+
+def _ceil2(x: float) -> float:
+    """Round up to 0.01 (so a stated minimum is never below the true one)."""
+    return math.ceil(x * 100 - 1e-9) / 100
 
 
 def _depth_field(description: str, default: Any = ..., **kw: Any) -> Any:
@@ -383,7 +441,11 @@ class Policy(_Section):
     density_warn_g_per_l: float = Field(5.2, gt=0, le=30, description="Gas density warning [g/L]")
     density_fail_g_per_l: float = Field(6.2, gt=0, le=30, description="Gas density limit [g/L]")
     end_max: Depth | None = _depth_field("Equivalent narcotic depth limit", None)
-    reference_table: str | None = Field(None, description="Name of the reference table in use")
+    reference_table: Annotated[str | None, AfterValidator(_check_reference_table)] = Field(
+        None,
+        description="Reference table in use: a bundled no-stop or decompression table name, "
+        "or the path of a table file",
+    )
     descent_rate_max: Rate | None = Field(None, description="Fastest descent [plan unit/min]")
     ascent_rate: Rate | None = Field(None, description="Planned ascent rate [plan unit/min]")
     ascent_rate_min: Rate | None = Field(None, description="Slowest ascent [plan unit/min]")
@@ -443,6 +505,18 @@ def _mode_gas_problem(mode: str, gas: Gas, text: str) -> str | None:
     if mode == "surface-supplied-heliox" and (gas.fhe <= 0 or gas.fn2 > 0.005):
         return f"got {text!r}; expected heliox O2/He percentages adding up to 100 for mode {mode}"
     return None
+
+
+def _descent_problem(dive: Dive, descent: float, unit: str) -> str | None:
+    """The message for a bottom time shorter than the descent, else ``None``."""
+    t_desc = dive.max_depth / descent
+    if dive.bottom_time_min + 1e-9 >= t_desc:
+        return None
+    return (
+        f"got {dive.bottom_time_min:g} min; expected at least the descent time "
+        f"{_ceil2(t_desc):.2f} min ({dive.max_depth:g} {unit} at {descent:g} {unit}/min): the "
+        "bottom time counts from leaving the surface"
+    )
 
 
 class Dive(_Section):
@@ -534,6 +608,10 @@ class Dive(_Section):
                     )
                 )
             last[s.place] = s.depth
+        if self.descent_rate is not None and self.max_depth > 0:
+            msg = _descent_problem(self, self.descent_rate, unit)
+            if msg:
+                problems.append(("bottom_time_min", msg))
         if self.previous_dive is not None and self.surface_interval_min is None:
             problems.append(
                 (
@@ -636,6 +714,10 @@ class Plan(_Section):
                         f"got {d.diver!r}, the diver of this dive; expected another team member",
                     )
                 )
+            if d.descent_rate is None:  # with its own rate the dive checked itself
+                msg = _descent_problem(d, self.descent_rate(d), self.unit)
+                if msg:
+                    problems.append((f"dives[{i}].bottom_time_min", msg))
             if d.previous_dive is not None and d.previous_dive not in ids:
                 problems.append(
                     (
@@ -698,6 +780,35 @@ class Plan(_Section):
     def ascent_rate(self, dive: Dive) -> float:
         """Ascent rate of ``dive`` [unit/min]: its own or the policy's planned rate."""
         return float(dive.ascent_rate or self.resolved_policy.ascent_rate)
+
+    @property
+    def chamber_compression_rate(self) -> float:
+        """Chamber compression rate of surface decompression [plan unit/min].
+
+        :data:`CHAMBER_COMPRESSION_FSW_PER_MIN` in the plan unit (the plan has no
+        field for it).
+        """
+        return self.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
+
+    def surface_decompression_times(self, dive: Dive) -> tuple[float, float, float, bool]:
+        """Surface interval of a dive's surface decompression, in its three parts [min].
+
+        Returns ``(ascent, deck, compression, stated)``: the ascent from the last
+        water stop (the bottom if there is none) at the dive's ascent rate, the time
+        on deck (``surface_transfer_min``; when not stated, the rest of a
+        :data:`SURD_INTERVAL_MIN` interval, never below 0, and ``stated`` is false),
+        and the compression to the first chamber stop at
+        :attr:`chamber_compression_rate`.  All zero for a dive without chamber stops.
+        """
+        chamber = dive.chamber_stops
+        if not chamber:
+            return 0.0, 0.0, 0.0, dive.surface_transfer_min is not None
+        ws = dive.water_stops
+        up = (ws[-1].depth if ws else dive.max_depth) / self.ascent_rate(dive)
+        down = chamber[0].depth / self.chamber_compression_rate
+        if dive.surface_transfer_min is not None:
+            return up, float(dive.surface_transfer_min), down, True
+        return up, max(SURD_INTERVAL_MIN - up - down, 0.0), down, False
 
     def to_fsw(self, depth: float) -> float:
         """Convert a plan depth to fsw [fsw] (both are pressure units)."""
@@ -817,15 +928,19 @@ def plan_to_json(plan: Plan) -> str:
 # profile of a proposed dive
 
 
-def proposed_profile(plan: Plan, dive: Dive) -> Profile:
+def proposed_profile(plan: Plan, dive: Dive, notes: list[str] | None = None) -> Profile:
     """Build the time-ordered profile of a dive as proposed.
 
-    Descent at the dive's descent rate, bottom time counted from leaving the
-    surface, ascent at the dive's ascent rate to each water stop and to the
-    surface; for surface decompression the deck time (``surface_transfer_min``,
-    0 if not stated), compression to the first chamber stop and the chamber
-    stops, then ascent to the surface at the ascent rate.  Travel between stops
-    is added to the schedule, not taken out of the stop times.
+    Descent at the dive's descent rate and bottom time counted from leaving the
+    surface; travel to each water stop at the ascent rate on the gas breathed
+    before it, the stop on its own gas (the switch is on arrival); then either the
+    ascent to the surface or, with chamber stops, surface decompression: the ascent
+    from the last water stop, the time on deck and the compression to the first
+    chamber stop (:meth:`Plan.surface_decompression_times`; these three are labelled
+    ``surface interval`` so the decompression engine reports the deliberate
+    supersaturation apart), the chamber stops and the chamber ascent to the surface
+    on air.  Travel is added to the stop times, never taken out of them.  This is
+    the profile every check evaluates (:mod:`supervisor.analysis`).
 
     Parameters
     ----------
@@ -833,35 +948,67 @@ def proposed_profile(plan: Plan, dive: Dive) -> Profile:
         The plan (unit, altitude, water, policy).
     dive : Dive
         One of its dives.
+    notes : list of str, optional
+        Receives the assumptions made (e.g. a time on deck that is not stated).
 
     Returns
     -------
     Profile
         Depths in the plan unit.
+
+    Raises
+    ------
+    InputError
+        If the bottom time is shorter than the descent (a validated plan never is;
+        a variant built for a search may be).
     """
+    from supervisor.engine.evaluate import SURFACE_INTERVAL
+
+    notes = notes if notes is not None else []
     descent = plan.descent_rate(dive)
     ascent = plan.ascent_rate(dive)
+    t_desc = dive.max_depth / descent
+    if dive.bottom_time_min + 1e-9 < t_desc:
+        raise InputError(
+            f"dives[{dive.id}].bottom_time_min",
+            f"{dive.bottom_time_min:g} min is shorter than the descent ({t_desc:.2f} min at "
+            f"{descent:g} {plan.unit}/min); bottom time counts from leaving the surface",
+        )
     prof = Profile(unit=plan.unit, p_surface_bar=plan.p_surface_bar, water=plan.site.water)
     gas = dive.gas_mix
-    t_desc = dive.max_depth / descent
-    prof.add(dive.max_depth, min(t_desc, dive.bottom_time_min), gas, "water", "descent")
-    prof.add(dive.max_depth, max(dive.bottom_time_min - t_desc, 0.0), gas, "water", "bottom")
-    depth = dive.max_depth
+
+    def add(end: float, minutes: float, g: Gas, place: str, label: str) -> None:
+        if minutes > 1e-12:
+            prof.add(end, minutes, g, place, label)  # type: ignore[arg-type]
+
+    add(dive.max_depth, t_desc, gas, "water", "descent")
+    add(dive.max_depth, dive.bottom_time_min - t_desc, gas, "water", "bottom")
+    depth, cur = dive.max_depth, gas
     for s in dive.water_stops:
-        prof.add(s.depth, (depth - s.depth) / ascent, None, "water", "travel")
-        prof.add(s.depth, s.minutes, dive.stop_gas(s), "water", "stop")
+        add(s.depth, (depth - s.depth) / ascent, cur, "water", "travel")
+        cur = dive.stop_gas(s)
+        add(s.depth, s.minutes, cur, "water", "stop")
         depth = s.depth
-    prof.add(0.0, depth / ascent, None, "water", "travel")
     chamber = dive.chamber_stops
-    if chamber:
-        prof.add(0.0, dive.surface_transfer_min or 0.0, None, "surface", "surface interval")
-        compress = plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
-        prof.add(chamber[0].depth, chamber[0].depth / compress, None, "chamber", "compression")
-        depth = chamber[0].depth
-        for s in chamber:
-            if s.depth != depth:
-                prof.add(s.depth, abs(depth - s.depth) / ascent, None, "chamber", "travel")
-            prof.add(s.depth, s.minutes, dive.stop_gas(s), "chamber", "stop")
-            depth = s.depth
-        prof.add(0.0, depth / ascent, parse_gas("air"), "chamber", "travel")
+    if not chamber:
+        add(0.0, depth / ascent, cur, "water", "ascent")
+        return prof
+    up, deck, down, stated = plan.surface_decompression_times(dive)
+    if not stated:
+        notes.append(
+            f"time on deck not stated: {deck:.2f} min assumed, the rest of a "
+            f"{SURD_INTERVAL_MIN:g}-min surface interval (U.S. Navy Diving Manual Rev 7 ch. 9, "
+            "SECONDARY)"
+        )
+    air = parse_gas("air")
+    add(0.0, up, cur, "water", SURFACE_INTERVAL + ": ascent")
+    add(0.0, deck, air, "surface", SURFACE_INTERVAL)
+    add(chamber[0].depth, down, air, "chamber", SURFACE_INTERVAL + ": compression")
+    depth = chamber[0].depth
+    for s in chamber:
+        if abs(s.depth - depth) > 1e-9:
+            add(s.depth, abs(depth - s.depth) / ascent, dive.stop_gas(s), "chamber", "travel")
+        add(s.depth, s.minutes, dive.stop_gas(s), "chamber", "stop")
+        depth = s.depth
+    add(0.0, depth / ascent, air, "chamber", "decompression to surface")
     return prof

@@ -96,14 +96,21 @@ def test_planned_profile_deck_time_assumed_when_missing():
     assert notes and "not stated" in notes[0]
 
 
+def _too_short(plan):
+    """The plan with its dive's bottom time below the descent (a search variant; a
+    plan file like it does not validate)."""
+    dive = plan.dives[0].model_copy(update={"max_depth": 120, "bottom_time_min": 1})
+    return plan.model_copy(update={"dives": [dive]})
+
+
 def test_planned_profile_rejects_bottom_time_shorter_than_descent():
-    plan = _plan(max_depth=120, bottom_time_min=1, descent_rate=60)
+    plan = _too_short(_plan())
     with pytest.raises(InputError, match="shorter than the descent"):
         an.planned_profile(plan, plan.dives[0])
 
 
 def test_bad_dive_becomes_errors_not_a_traceback():
-    plan = _plan(max_depth=120, bottom_time_min=1, descent_rate=60)
+    plan = _too_short(_plan())
     a = an.analyse_plan(plan).dives["D1"]
     assert "profile" in a.errors and a.evaluation is None and a.supply is None
     j = a.to_json()
@@ -134,6 +141,51 @@ def test_schedule_request_default_oxygen_depth_msw():
     req = an.schedule_request(plan, plan.dives[0])
     # 30 fsw = 9.09 msw, rounded down to the 3 msw stop step
     assert req.deco_gases == (("oxygen", 9.0),)
+
+
+def _surd_plan(**dive):
+    kw = dict(max_depth=100, bottom_time_min=40, descent_rate=60, decompression="surface-oxygen",
+              stops=[{"depth": 40, "minutes": 2},
+                     {"depth": 50, "minutes": 30, "gas": "oxygen", "place": "chamber"}])
+    kw.update(dive)
+    return _plan(**kw)
+
+
+def _deck_min(segments) -> float:
+    return sum(s.minutes for s in segments if s.place == "surface")
+
+
+@pytest.mark.parametrize("deck", [0, 2, None])
+def test_surface_decompression_request_keeps_the_planned_deck_time(deck):
+    plan = _surd_plan(surface_transfer_min=deck)
+    notes: list[str] = []
+    req = an.schedule_request(plan, plan.dives[0], notes=notes)
+    up, planned_deck, down, _ = plan.surface_decompression_times(plan.dives[0])
+    sd = req.surface_decompression
+    # the engine compresses at the descent rate (60 fsw/min, 50/60 min), slower than the
+    # plan's 100 fsw/min: the interval grows by the difference, the deck time stays
+    assert sd.surface_interval_min == pytest.approx(up + planned_deck + 50 / 60, abs=1e-6)
+    assert sd.surface_interval_min >= up + planned_deck + down
+    res = plan_schedule(req)  # a deck time of 0 min is a working schedule
+    assert _deck_min(res.profile.segments) == pytest.approx(planned_deck, abs=1e-6)
+    assert any("descent rate (60 fsw/min)" in n for n in notes)
+
+
+def test_surface_decompression_request_never_shortens_the_interval():
+    # descent faster than the chamber compression: the engine's deck time grows instead
+    plan = _surd_plan(descent_rate=150, bottom_time_min=30, surface_transfer_min=0)
+    req = an.schedule_request(plan, plan.dives[0])
+    up, deck, down, _ = plan.surface_decompression_times(plan.dives[0])
+    assert req.surface_decompression.surface_interval_min == pytest.approx(up + deck + down,
+                                                                           abs=1e-6)
+    res = plan_schedule(req)
+    assert _deck_min(res.profile.segments) == pytest.approx(50 / 100 - 50 / 150, abs=1e-6)
+
+
+def test_surface_transfer_zero_analyses_without_errors():
+    a = an.analyse_plan(_surd_plan(surface_transfer_min=0)).dives["D1"]
+    assert a.model_schedule is not None and "model_schedule" not in a.errors
+    assert all(c is not None and c.error is None for c in a.contingencies.values())
 
 
 def test_plan_copying_the_model_schedule_is_covered():

@@ -292,6 +292,71 @@ def test_policy_order_checks():
     assert fields(d) == ["policy.gf_low", "policy.density_warn_g_per_l"]
 
 
+def test_bottom_time_shorter_than_the_descent():
+    d = base()
+    del d["dives"][0]["descent_rate"]  # the policy's fastest descent: 75 fsw/min by default
+    d["dives"][0].update(max_depth=110, bottom_time_min=0.5)
+    # 110 fsw at 75 fsw/min = 1.4667 min, stated rounded up
+    assert problems(d) == [(
+        "dives[0].bottom_time_min",
+        "got 0.5 min; expected at least the descent time 1.47 min (110 fsw at 75 fsw/min): "
+        "the bottom time counts from leaving the surface",
+    )]
+
+
+def test_bottom_time_equal_to_the_descent_is_accepted():
+    d = base()
+    d["dives"][0].update(max_depth=60, descent_rate=60, bottom_time_min=1)
+    assert plan_from_dict(d).dives[0].bottom_time_min == 1
+
+
+def test_bottom_time_check_uses_the_msw_descent():
+    d = base("msw")
+    d["dives"][0].update(max_depth=36, descent_rate=18, bottom_time_min=1.5)
+    [(path, msg)] = problems(d)
+    assert path == "dives[0].bottom_time_min"
+    assert "2.00 min (36 msw at 18 msw/min)" in msg
+
+
+def test_reference_table_bundled_name_or_file(tmp_path):
+    from supervisor.plan import bundled_reference_tables
+
+    tables = bundled_reference_tables()
+    assert tables["zhl16c-gf30-85-air-fsw"] == "decompression"
+    assert tables["usn-rev7-air-ndl"] == "no-stop"
+    d = base()
+    d["policy"]["reference_table"] = "usn-rev7-air-ndl"
+    assert plan_from_dict(d).policy.reference_table == "usn-rev7-air-ndl"
+    f = tmp_path / "own-table.toml"
+    f.write_text("schema = 'supervisor-table/1'\n", encoding="utf-8")
+    d["policy"]["reference_table"] = str(f)
+    assert plan_from_dict(d).policy.reference_table == str(f)  # its content is checked by check
+
+
+def test_unknown_reference_table_names_the_bundled_tables():
+    d = base()
+    d["policy"]["reference_table"] = "usn-rev7-air-decompression"
+    [(path, msg)] = problems(d)
+    assert path == "policy.reference_table"
+    assert msg == (
+        "got 'usn-rev7-air-decompression': no bundled table of that name; expected a bundled "
+        "table name (usn-rev7-air-ndl, zhl16c-gf30-85-air-fsw, zhl16c-gf30-85-air-msw) or the "
+        "path of a table file (.toml)"
+    )
+
+
+def test_reference_table_of_the_wrong_kind_or_missing_file(tmp_path):
+    d = base()
+    d["policy"]["reference_table"] = "noaa-cns-limits"
+    [(path, msg)] = problems(d)
+    assert path == "policy.reference_table"
+    assert msg.startswith("got 'noaa-cns-limits', a bundled limits table; expected a no-stop or "
+                          "decompression table: usn-rev7-air-ndl, ")
+    d["policy"]["reference_table"] = str(tmp_path / "missing.toml")
+    [(path, msg)] = problems(d)
+    assert path == "policy.reference_table" and ": no such file; expected a bundled" in msg
+
+
 def test_compressor_needs_delivery():
     d = base()
     d["gas_supply"]["secondary"]["kind"] = "compressor"
@@ -376,7 +441,7 @@ def test_profile_of_a_no_stop_dive():
     prof = proposed_profile(p, p.dives[0])
     # 60 fsw at 60 fsw/min = 1 min descent, bottom time 40 min from leaving the surface,
     # 60 fsw at 30 fsw/min = 2 min ascent
-    assert [s.label for s in prof.segments] == ["descent", "bottom", "travel"]
+    assert [s.label for s in prof.segments] == ["descent", "bottom", "ascent"]
     assert prof.duration_min == pytest.approx(42.0)
     assert prof.max_depth == 60
 
@@ -400,3 +465,39 @@ def test_profile_of_a_surface_decompression_dive():
     expected = 40 + 2 + 2 + 40 / 30 + 3.5 + 0.5 + 15 + 10 / 30 + 15 + 40 / 30
     assert prof.duration_min == pytest.approx(expected)
     assert prof.segments[-1].gas.name == "air"
+
+
+def _surd(**dive):
+    d = base()
+    d["dives"][0].update(
+        max_depth=100, bottom_time_min=40, descent_rate=60, decompression="surface-oxygen",
+        stops=[{"depth": 40, "minutes": 2},
+               {"depth": 50, "minutes": 15, "gas": "oxygen", "place": "chamber"}],
+    )
+    d["dives"][0].update(dive)
+    return plan_from_dict(d)
+
+
+def test_surface_decompression_times():
+    p = _surd(surface_transfer_min=0)
+    # ascent 40 fsw at 30 fsw/min, no time on deck, compression 50 fsw at 100 fsw/min
+    assert p.chamber_compression_rate == 100
+    assert p.surface_decompression_times(p.dives[0]) == pytest.approx((40 / 30, 0, 0.5, True))
+    prof = proposed_profile(p, p.dives[0])
+    assert "surface" not in [s.place for s in prof.segments]  # no deck segment of 0 min
+    assert prof.duration_min == pytest.approx(40 + 2 + 2 + 40 / 30 + 0.5 + 15 + 50 / 30)
+
+
+def test_surface_decompression_deck_time_assumed_when_not_stated():
+    p = _surd()
+    up, deck, down, stated = p.surface_decompression_times(p.dives[0])
+    assert not stated and up + deck + down == pytest.approx(5.0)  # the plan's 5-min interval
+    notes: list[str] = []
+    proposed_profile(p, p.dives[0], notes)
+    assert notes and "time on deck not stated" in notes[0]
+
+
+def test_chamber_compression_rate_in_msw():
+    p = plan_from_dict(base("msw"))
+    # 100 fsw in msw: 100 x (1.01325 / 33) bar / 0.1 bar per msw
+    assert p.chamber_compression_rate == pytest.approx(100 * 1.01325 / 33 / 0.1)

@@ -17,7 +17,8 @@ DAY_WINDOW_MIN                 24 h                Navy flying rule: highest gro
 OVERRUN_INCREMENT_MIN          10 min              common practice, no source (used only when no
                                                    decompression table gives the next longer time)
 SURD_INTERVAL_MIN              5 min               U.S. Navy Diving Manual Rev 7 ch. 9 SurDO2
-                                                   surface interval (SECONDARY)
+                                                   surface interval (SECONDARY); defined in
+                                                   supervisor.plan
 SURD_CHAMBER_DEPTH_FSW         50 fsw              idem (SECONDARY)
 O2_SWITCH_DEPTH_FSW            30 fsw              in-water oxygen stops at 30 and 20 fsw
                                                    (FROM MEMORY for Rev 7)
@@ -41,6 +42,7 @@ from __future__ import annotations
 
 from supervisor import constants as C
 from supervisor.errors import SupervisorError
+from supervisor.plan import SURD_INTERVAL_MIN
 
 #: Errors a computation may raise on bad or out-of-range input; they become a
 #: recorded error (and a "needs review" finding), never a traceback.
@@ -56,7 +58,6 @@ CABIN_ALTITUDE_M: float = 8000 * C.M_PER_FT
 REPETITIVE_WINDOW_MIN: float = 12 * 60.0
 DAY_WINDOW_MIN: float = 24 * 60.0
 OVERRUN_INCREMENT_MIN: float = 10.0
-SURD_INTERVAL_MIN: float = 5.0
 SURD_CHAMBER_DEPTH_FSW: float = 50.0
 O2_SWITCH_DEPTH_FSW: float = 30.0
 O2_AIR_BREAK: tuple[float, float] = (30.0, 5.0)
@@ -65,3 +66,22 @@ MARGIN_CAP_MIN: int = 120
 ALTITUDE_SEARCH_MAX_MIN: int = 72 * 60
 #: Tolerance when matching a proposed stop with a reference stop, as a share of the stop step.
 STOP_MATCH_FRACTION: float = 0.1
+
+__all__ = [
+    "ALTITUDE_SEARCH_MAX_MIN",
+    "CABIN_ALTITUDE_M",
+    "COMPUTE_ERRORS",
+    "DAY_WINDOW_MIN",
+    "EGS_BOTTOM_MIN",
+    "L_PER_FT3",
+    "MARGIN_CAP_MIN",
+    "O2_AIR_BREAK",
+    "O2_SWITCH_DEPTH_FSW",
+    "OVERRUN_INCREMENT_MIN",
+    "REPETITIVE_WINDOW_MIN",
+    "RMV_LPM",
+    "RMV_SOURCE",
+    "STOP_MATCH_FRACTION",
+    "SURD_CHAMBER_DEPTH_FSW",
+    "SURD_INTERVAL_MIN",
+]

@@ -38,8 +38,8 @@ from supervisor.engine.schedule import (
     evaluate_profile,
 )
 from supervisor.errors import InputError
-from supervisor.gas import AIR, Gas, inspired_po2, parse_gas
-from supervisor.plan import CHAMBER_COMPRESSION_FSW_PER_MIN, Dive, GasSource, Plan
+from supervisor.gas import AIR, inspired_po2, parse_gas
+from supervisor.plan import Dive, GasSource, Plan, proposed_profile
 from supervisor.profile import Profile, Segment
 from supervisor.units import (
     altitude_stop_depth,
@@ -66,15 +66,11 @@ def _step(plan: Plan) -> float:
 def planned_profile(plan: Plan, dive: Dive, notes: list[str] | None = None) -> Profile:
     """Build the planned profile of a dive, labelled for the engine.
 
-    Descent at the dive's descent rate and bottom time counted from leaving the
-    surface; travel to each water stop at the ascent rate on the gas breathed
-    before it, the stop on its own gas (the switch is on arrival); then either the
-    ascent to the surface or, with chamber stops, surface decompression: ascent
-    from the last water stop, time on deck, compression to the first chamber stop
-    at :data:`supervisor.plan.CHAMBER_COMPRESSION_FSW_PER_MIN` (these three labelled
-    ``surface interval`` so the engine reports the deliberate supersaturation apart),
-    the chamber stops and the chamber ascent to the surface on air.  Travel is added
-    to the stop times, never taken out of them.
+    The profile of :func:`supervisor.plan.proposed_profile` (one builder for the
+    plan and the analysis): descent, bottom, water stops, and for surface
+    decompression the ascent, time on deck and compression at
+    :attr:`supervisor.plan.Plan.chamber_compression_rate` (labelled
+    ``surface interval``), the chamber stops and the chamber ascent on air.
 
     Parameters
     ----------
@@ -95,57 +91,7 @@ def planned_profile(plan: Plan, dive: Dive, notes: list[str] | None = None) -> P
     InputError
         If the bottom time is shorter than the descent.
     """
-    notes = notes if notes is not None else []
-    descent = plan.descent_rate(dive)
-    ascent = plan.ascent_rate(dive)
-    t_desc = dive.max_depth / descent
-    if dive.bottom_time_min + 1e-9 < t_desc:
-        raise InputError(
-            f"dives[{dive.id}].bottom_time_min",
-            f"{dive.bottom_time_min:g} min is shorter than the descent ({t_desc:.2f} min at "
-            f"{descent:g} {plan.unit}/min); bottom time counts from leaving the surface",
-        )
-    prof = Profile(unit=plan.unit, p_surface_bar=plan.p_surface_bar, water=plan.site.water)
-    gas = dive.gas_mix
-
-    def add(end: float, minutes: float, g: Gas, place: str, label: str) -> None:
-        if minutes > 1e-12:
-            prof.add(end, minutes, g, place, label)  # type: ignore[arg-type]
-
-    add(dive.max_depth, t_desc, gas, "water", "descent")
-    add(dive.max_depth, dive.bottom_time_min - t_desc, gas, "water", "bottom")
-    depth, cur = dive.max_depth, gas
-    for s in dive.water_stops:
-        add(s.depth, (depth - s.depth) / ascent, cur, "water", "travel")
-        cur = dive.stop_gas(s)
-        add(s.depth, s.minutes, cur, "water", "stop")
-        depth = s.depth
-    chamber = dive.chamber_stops
-    if not chamber:
-        add(0.0, depth / ascent, cur, "water", "ascent")
-        return prof
-    compress = plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
-    up = depth / ascent
-    down = chamber[0].depth / compress
-    deck = dive.surface_transfer_min
-    if deck is None:
-        deck = max(SURD_INTERVAL_MIN - up - down, 0.0)
-        notes.append(
-            f"time on deck not stated: {deck:.2f} min assumed, the rest of a "
-            f"{SURD_INTERVAL_MIN:g}-min surface interval (U.S. Navy Diving Manual Rev 7 ch. 9, "
-            "SECONDARY)"
-        )
-    add(0.0, up, cur, "water", SURFACE_INTERVAL + ": ascent")
-    add(0.0, deck, AIR, "surface", SURFACE_INTERVAL)
-    add(chamber[0].depth, down, AIR, "chamber", SURFACE_INTERVAL + ": compression")
-    depth = chamber[0].depth
-    for s in chamber:
-        if abs(s.depth - depth) > 1e-9:
-            add(s.depth, abs(depth - s.depth) / ascent, dive.stop_gas(s), "chamber", "travel")
-        add(s.depth, s.minutes, dive.stop_gas(s), "chamber", "stop")
-        depth = s.depth
-    add(0.0, depth / ascent, AIR, "chamber", "decompression to surface")
-    return prof
+    return proposed_profile(plan, dive, notes)
 
 
 def _deco_gases(plan: Plan, dive: Dive) -> tuple[tuple[str, float], ...]:
@@ -200,20 +146,31 @@ def schedule_request(
     chamber = dive.chamber_stops
     if chamber or dive.decompression == "surface-oxygen":
         ascent = plan.ascent_rate(dive)
-        compress = plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
+        descent = plan.descent_rate(dive)
+        compress = plan.chamber_compression_rate
         water = dive.water_stops
-        leave = min(s.depth for s in water) if water else math.ceil(dive.max_depth / step) * step
+        leave = min(s.depth for s in water) if water else dive.max_depth
         leave = max(leave, float(pol.last_stop))
         c_depth = chamber[0].depth if chamber else plan.from_fsw(SURD_CHAMBER_DEPTH_FSW)
         c_depth = max(c_depth, float(pol.last_stop))
         c_gases = [dive.stop_gas(s) for s in chamber if dive.stop_gas(s).fo2 > C.FO2_AIR + 1e-9]
         c_gas = c_gases[0].name if c_gases else "oxygen"
-        travel = (min(s.depth for s in water) if water else dive.max_depth) / ascent
-        travel += c_depth / compress
-        if dive.surface_transfer_min is not None:
-            si = travel + dive.surface_transfer_min
+        if chamber:
+            up, deck, _, _ = plan.surface_decompression_times(dive)
         else:
-            si = max(SURD_INTERVAL_MIN, travel)
+            up = (water[-1].depth if water else dive.max_depth) / ascent
+            deck = max(SURD_INTERVAL_MIN - up - c_depth / compress, 0.0)
+        # The engine compresses the chamber at the dive's descent rate; neither the time on
+        # deck nor the whole interval may come out shorter than the plan's (100 fsw/min).
+        up = max(up, leave / ascent)
+        si = up + deck + max(c_depth / compress, c_depth / descent)
+        if abs(descent - compress) > 1e-9:
+            notes.append(
+                f"model schedule: the engine compresses the chamber at the dive's descent rate "
+                f"({descent:g} {plan.unit}/min), the plan at {compress:g} {plan.unit}/min; its "
+                f"surface interval is {si:.2f} min so that neither the {deck:.2f} min on deck "
+                "nor the whole interval is shorter than planned"
+            )
         sd = SurfaceDecompression(
             leave_water_depth=leave,
             surface_interval_min=si + 1e-9,

@@ -95,3 +95,20 @@ def test_schema_out_is_a_folder(capsys, tmp_path):
     code, _, err = run(["plan", "schema", "--out", str(tmp_path), "--force"], capsys)
     assert code == 2
     assert err == f"error: --out: {tmp_path} is a folder; expected a file path\n"
+
+
+def test_validate_bottom_time_shorter_than_descent_and_unknown_table(capsys, tmp_path):
+    text = (EXAMPLES / "demo-job.toml").read_text(encoding="utf-8")
+    text = text.replace("bottom_time_min = 40", "bottom_time_min = 0.5").replace(
+        'reference_table = "zhl16c-gf30-85-air-fsw"', 'reference_table = "navy-air"')
+    p = tmp_path / "p.toml"
+    p.write_text(text, encoding="utf-8")
+    code, out, err = run(["plan", "validate", str(p)], capsys)
+    assert code == 2 and out == ""
+    lines = err.splitlines()
+    assert len(lines) == 2
+    assert lines[0].startswith("error: policy.reference_table: got 'navy-air': no bundled table")
+    # D2: 110 fsw at 60 fsw/min = 1.83 min of descent
+    assert lines[1] == ("error: dives[1].bottom_time_min: got 0.5 min; expected at least the "
+                        "descent time 1.84 min (110 fsw at 60 fsw/min): the bottom time counts "
+                        "from leaving the surface")
