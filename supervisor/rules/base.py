@@ -47,6 +47,10 @@ RuleFunc = Callable[["CheckContext", "Rule"], Iterable[Finding]]
 
 _UNSET: Any = object()
 
+#: Measured values and limit of a yes/no item (:meth:`Rule.need`), and of a missing
+#: person or item (``measured=NONE`` against the item required).
+YES, NO, NOT_STATED, NONE = "yes", "no", "not stated", "none"
+
 
 @dataclass
 class CheckContext:
@@ -311,15 +315,22 @@ class Rule:
             Source status overriding the rule's.
         why : str
             Why the item is required here, appended to the message.
+
+        Returns
+        -------
+        Finding
+            ``measured`` is ``"yes"``, ``"no"`` or ``"not stated"`` against the limit
+            ``"yes"``.
         """
         tail = f" ({why})" if why else ""
+        kw: dict[str, Any] = dict(limit=YES, dive=dive, status=status)
         if value is True:
-            return self.ok(f"{what}: stated{tail}", dive=dive, status=status)
+            return self.ok(f"{what}: stated{tail}", measured=YES, **kw)
         if value is None:
             return self.review(
-                f"needs review: the plan does not state {what}{tail}", dive=dive, status=status
+                f"needs review: the plan does not state {what}{tail}", measured=NOT_STATED, **kw
             )
-        return self.breach(f"missing: {what}{tail}", dive=dive, status=status)
+        return self.breach(f"missing: {what}{tail}", measured=NO, **kw)
 
 
 @dataclass

@@ -27,7 +27,7 @@ from collections.abc import Iterator
 
 from supervisor.findings import Finding
 from supervisor.plan import Dive
-from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.base import NONE, NOT_STATED, CheckContext, Family, Rule
 
 FAMILY = Family("regulatory", "Federal commercial-diving rules")
 
@@ -49,6 +49,25 @@ def mixed_status(dive: Dive, status: str) -> str:
     return NITROX_AS_MIXED_STATUS if dive.mode == "surface-supplied-nitrox" else status
 
 
+#: Limits of the findings about a missing person or item (measured ``"none"``).
+TENDER = "a separate tender (dive.tender)"
+STANDBY = "a standby diver"
+RESERVE = "a diver-carried reserve (gas_supply.bailout)"
+LOCATION_RESERVE = "a dive-location reserve (gas_supply.secondary)"
+READY = "a chamber ready at the site"
+SUPERVISOR = "a team member with the supervisor role"
+
+
+def chamber_state(ctx: CheckContext) -> str:
+    """The plan's chamber as a measured value: ready at the site, or what it lacks."""
+    ch = ctx.plan.chamber
+    if ch.on_site and ch.ready:
+        return "ready at the site"
+    if not ch.on_site:
+        return "not at the site"
+    return "at the site, not ready"
+
+
 def _deco_text(ctx: CheckContext, dive: Dive) -> str:
     return "outside the no-decompression limits" if ctx.outside_ndl(dive) else ""
 
@@ -68,7 +87,9 @@ def no_jurisdiction(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """Warn that no federal rule set was applied."""
     yield r.review(
         "needs review: no jurisdiction chosen, so no regulatory rule was checked; confirm the "
-        "local code and the contractor's manual"
+        "local code and the contractor's manual",
+        measured=ctx.jurisdiction,
+        limit="a rule set (osha-1910-t or uscg-46-197-b)",
     )
 
 
@@ -196,7 +217,10 @@ def osha_scuba_entry(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.ok(f"diver at the entry point: {d.entry_diver}", dive=d.id)
         else:
             yield r.breach(
-                "confined space: no diver named at the underwater entry point", dive=d.id
+                "confined space: no diver named at the underwater entry point",
+                dive=d.id,
+                measured=d.entry_diver or NONE,
+                limit="a diver at the entry point (dive.entry_diver)",
             )
 
 
@@ -215,7 +239,12 @@ def osha_scuba_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 "diver-carried reserve listed (keep its valve closed before the dive)", dive=d.id
             )
         else:
-            yield r.breach(f"no reserve listed for {d.diver} under gas_supply.bailout", dive=d.id)
+            yield r.breach(
+                f"no reserve listed for {d.diver} under gas_supply.bailout",
+                dive=d.id,
+                measured=NONE,
+                limit="a diver-carried reserve (gas_supply.bailout)",
+            )
 
 
 # ---------------------------------------------------------------------------
@@ -302,7 +331,12 @@ def osha_ssa_tended(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     for d in ctx.dives(SS_AIR):
         t = ctx.tender_for(d)
         if t is None or t.name == d.diver:
-            yield r.breach("no tender for this surface-supplied air diver", dive=d.id)
+            yield r.breach(
+                "no tender for this surface-supplied air diver",
+                dive=d.id,
+                measured=t.name if t is not None else NONE,
+                limit="a tender other than the diver",
+            )
         else:
             yield r.ok(f"tended by {t.name}", dive=d.id)
 
@@ -326,10 +360,15 @@ def osha_ssa_deep_team(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if d.tender and d.tender != d.diver:
             yield r.ok(f"separate tender: {d.tender}", dive=d.id)
         else:
-            yield r.breach("no separate tender named for this diver (dive.tender)", dive=d.id)
+            yield r.breach(
+                "no separate tender named for this diver (dive.tender)",
+                dive=d.id,
+                measured=d.tender or NONE,
+                limit=TENDER,
+            )
         sb = ctx.standby_for(d)
         if sb is None:
-            yield r.breach("no standby diver available", dive=d.id)
+            yield r.breach("no standby diver available", dive=d.id, measured=NONE, limit=STANDBY)
         else:
             yield r.ok(f"standby diver: {sb.name}", dive=d.id)
         if d.heavy_gear:
@@ -337,7 +376,12 @@ def osha_ssa_deep_team(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         elif ctx.has_bailout(d):
             yield r.ok("diver-carried reserve listed", dive=d.id)
         else:
-            yield r.breach(f"no diver-carried reserve listed for {d.diver}", dive=d.id)
+            yield r.breach(
+                f"no diver-carried reserve listed for {d.diver}",
+                dive=d.id,
+                measured=NONE,
+                limit=RESERVE,
+            )
 
 
 @FAMILY.rule(
@@ -359,7 +403,12 @@ def osha_ssa_location_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 dive=d.id,
             )
         else:
-            yield r.breach("no dive-location reserve (gas_supply.secondary)", dive=d.id)
+            yield r.breach(
+                "no dive-location reserve (gas_supply.secondary)",
+                dive=d.id,
+                measured=NONE,
+                limit=LOCATION_RESERVE,
+            )
 
 
 @FAMILY.rule(
@@ -396,7 +445,12 @@ def osha_ssa_no_direct_ascent(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if d.heavy_gear or ctx.has_bailout(d):
             yield r.ok("no direct ascent: reserve listed or heavy gear worn", dive=d.id)
         else:
-            yield r.breach("no direct ascent and no diver-carried reserve listed", dive=d.id)
+            yield r.breach(
+                "no direct ascent and no diver-carried reserve listed",
+                dive=d.id,
+                measured=NONE,
+                limit=RESERVE,
+            )
 
 
 # ---------------------------------------------------------------------------
@@ -420,7 +474,11 @@ def osha_mixed_chamber_bell(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.ok("chamber ready at the site for a mixed-gas dive", dive=d.id, status=st)
         else:
             yield r.breach(
-                "mixed-gas dive without a chamber ready at the site", dive=d.id, status=st
+                "mixed-gas dive without a chamber ready at the site",
+                dive=d.id,
+                status=st,
+                measured=chamber_state(ctx),
+                limit=READY,
             )
         fsw, t = ctx.fsw(d.max_depth), d.in_water_stop_min
         if (fsw > 220 or t > 120) and not (d.heavy_gear or confined):
@@ -458,17 +516,29 @@ def osha_mixed_team(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.ok(f"separate tender: {d.tender}", dive=d.id, status=st)
         else:
             yield r.breach(
-                "no separate tender named for this diver (dive.tender)", dive=d.id, status=st
+                "no separate tender named for this diver (dive.tender)",
+                dive=d.id,
+                status=st,
+                measured=d.tender or NONE,
+                limit=TENDER,
             )
         if ctx.standby_for(d) is None:
-            yield r.breach("no standby diver available", dive=d.id, status=st)
+            yield r.breach(
+                "no standby diver available", dive=d.id, status=st, measured=NONE, limit=STANDBY
+            )
         else:
             yield r.ok("standby diver available", dive=d.id, status=st)
         if ctx.plan.site.confined_space:
             if d.entry_diver and d.entry_diver != d.diver:
                 yield r.ok(f"entry-point diver: {d.entry_diver}", dive=d.id, status=st)
             else:
-                yield r.breach("confined space: no diver at the entry point", dive=d.id, status=st)
+                yield r.breach(
+                    "confined space: no diver at the entry point",
+                    dive=d.id,
+                    status=st,
+                    measured=d.entry_diver or NONE,
+                    limit="a diver at the entry point (dive.entry_diver)",
+                )
 
 
 @FAMILY.rule(
@@ -485,7 +555,13 @@ def osha_mixed_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if ctx.plan.gas_supply.secondary is not None:
             yield r.ok("dive-location reserve listed", dive=d.id, status=st)
         else:
-            yield r.breach("no dive-location reserve (gas_supply.secondary)", dive=d.id, status=st)
+            yield r.breach(
+                "no dive-location reserve (gas_supply.secondary)",
+                dive=d.id,
+                status=st,
+                measured=NONE,
+                limit=LOCATION_RESERVE,
+            )
 
 
 @FAMILY.rule(
@@ -526,7 +602,13 @@ def osha_mixed_diver_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         elif ctx.has_bailout(d):
             yield r.ok("diver-carried reserve listed", dive=d.id, status=st)
         else:
-            yield r.breach(f"no diver-carried reserve listed for {d.diver}", dive=d.id, status=st)
+            yield r.breach(
+                f"no diver-carried reserve listed for {d.diver}",
+                dive=d.id,
+                status=st,
+                measured=NONE,
+                limit=RESERVE,
+            )
 
 
 # ---------------------------------------------------------------------------
@@ -561,12 +643,16 @@ def osha_chamber_165(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if not why:
             continue
         reason = "; ".join(why)
-        if not ch.on_site:
-            yield r.breach(f"no chamber at the site ({reason})", dive=d.id)
-            continue
         kw = dict(limit=ctx.limit(165), unit=ctx.unit, dive=d.id)
+        if not ch.on_site:
+            yield r.breach(f"no chamber at the site ({reason})", measured=NONE, **kw)
+            continue
         if ch.depth_capability is None:
-            yield r.review(f"needs review: chamber depth capability not stated ({reason})", **kw)
+            yield r.review(
+                f"needs review: chamber depth capability not stated ({reason})",
+                measured=NOT_STATED,
+                **kw,
+            )
         elif ctx.fsw(ch.depth_capability) < 165:
             yield r.breach(
                 f"chamber reaches {ctx.show(ch.depth_capability)}, less than 165 fsw ({reason})",
@@ -597,7 +683,11 @@ def osha_chamber_deep(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         kw = dict(limit=d.max_depth, unit=ctx.unit, dive=d.id)
         cap = ch.depth_capability if ch.on_site else None
         if cap is None:
-            yield r.breach("deeper than 300 fsw: no chamber depth capability at the site", **kw)
+            yield r.breach(
+                "deeper than 300 fsw: no chamber depth capability at the site",
+                measured=NOT_STATED if ch.on_site else NONE,
+                **kw,
+            )
         elif cap < d.max_depth:
             yield r.breach(
                 f"chamber reaches {ctx.show(cap)}, less than the dive's depth", measured=cap, **kw
@@ -629,7 +719,12 @@ def osha_chamber_kind(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         return
     ch = ctx.plan.chamber
     if ch.locks is None:
-        yield r.review("needs review: number of chamber locks not stated", limit=2.0, unit="locks")
+        yield r.review(
+            "needs review: number of chamber locks not stated",
+            measured=NOT_STATED,
+            limit=2.0,
+            unit="locks",
+        )
     elif ch.locks < 2:
         yield r.breach(
             f"chamber has {ch.locks} lock; a dual-lock chamber is required",
@@ -643,7 +738,12 @@ def osha_chamber_kind(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         )
     yield r.need(ch.multiplace, "a multiplace chamber")
     if ch.travel_time_min is None:
-        yield r.review("needs review: time to the chamber not stated", limit=5.0, unit="min")
+        yield r.review(
+            "needs review: time to the chamber not stated",
+            measured=NOT_STATED,
+            limit=5.0,
+            unit="min",
+        )
     elif ch.travel_time_min > 5:
         yield r.breach(
             f"chamber {ch.travel_time_min:g} min from the dive location",
@@ -681,6 +781,7 @@ def osha_chamber_fittings(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     if eq.bibs_masks is None:
         yield r.review(
             "needs review: number of BIBS masks not stated",
+            measured=NOT_STATED,
             limit=float(BIBS_OCCUPANTS),
             unit="masks",
         )
@@ -780,9 +881,15 @@ def osha_dpic(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     if m is not None and m.has("supervisor"):
         yield r.ok(f"person in charge at the site: {name}")
     elif m is None:
-        yield r.breach(f"job.supervisor {name!r} is not in the team list", measured=name)
+        yield r.breach(
+            f"job.supervisor {name!r} is not in the team list", measured=name, limit=SUPERVISOR
+        )
     else:
-        yield r.breach(f"job.supervisor {name!r} does not hold the supervisor role", measured=name)
+        yield r.breach(
+            f"job.supervisor {name!r} does not hold the supervisor role",
+            measured=name,
+            limit=SUPERVISOR,
+        )
 
 
 # ---------------------------------------------------------------------------

@@ -7,7 +7,9 @@ status of the project's regulation notes for that row.
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
+from _contract import Case
 
 from supervisor.findings import Finding
 from supervisor.rules.regulatory import FAMILY
@@ -621,3 +623,229 @@ def test_base_plan_needs_review_while_rules_rest_on_unconfirmed_rows(base):
     loose = {f.rule for f in found if not f.verified}
     assert loose == {"osha-421-b", "osha-421-c", "osha-425-b1", "osha-425-c1"}
     assert verdict(found) == "needs-review"
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every OSHA rule
+# (the source of each limit is the paragraph in the case's citation)
+
+
+def _b(**dive):
+    return _c.dive(_c.base(), **dive)
+
+
+def _site(**site):
+    d = _c.base()
+    d["site"].update(site)
+    return d
+
+
+def _chamber(d, **ch):
+    d["chamber"].update(ch)
+    return d
+
+
+def _no_bailout(d):
+    d["gas_supply"]["bailout"] = []
+    return d
+
+
+def _no_secondary(d):
+    del d["gas_supply"]["secondary"]
+    return d
+
+
+def _no_standby(d):
+    d["dives"][0]["standby_diver"] = None
+    d["team"][2]["role"] = "diver"
+    return d
+
+
+def _deep(**kw):
+    return _deep_ssa(_c.base, **kw)
+
+
+def _hx(**kw):
+    return _heliox(_c.base, **kw)
+
+
+def _sc(**kw):
+    return _scuba(_c.base, **kw)
+
+
+def _cfr(par):
+    return f"29 CFR 1910.{par}"
+
+
+CASES: dict[str, Case] = {
+    "jurisdiction-none": Case(
+        failing=lambda _: _c.base() | {"job": _c.base()["job"] | {"jurisdiction": "none"}},
+        measured="none", citation="plan job.jurisdiction", severity="warn",
+        no_pass="with no rule set chosen nothing regulatory was checked; the rule only warns"),
+    "osha-424-b1": Case(
+        passing=lambda _: _sc(), failing=lambda _: _sc(max_depth=140),
+        measured=140, limit=130.0, citation=_cfr("424(b)(1)")),
+    "osha-424-b2": Case(
+        passing=lambda _: _sc(max_depth=110),
+        failing=lambda _: _chamber(_sc(max_depth=110), ready=False),
+        measured=110, limit=100.0, citation=_cfr("424(b)(2)")),
+    "osha-424-b3": Case(
+        passing=lambda _: _site_current(_sc(), 1.5),
+        failing=lambda _: _site_current(_sc(line_tended=False, buddy="Stan Standby"), 1.5),
+        measured=1.5, limit=1.0, citation=_cfr("424(b)(3)-(4)")),
+    "osha-424-c1": Case(
+        passing=lambda _: _sc(), failing=lambda _: _no_standby(_sc()),
+        measured="none", limit="1 standby diver", citation=_cfr("424(c)(1)-(2)")),
+    "osha-424-c3": Case(
+        passing=lambda _: _confined(_sc(entry_diver="Stan Standby")),
+        failing=lambda _: _confined(_sc()),
+        measured="none", limit="a diver at the entry point (dive.entry_diver)",
+        citation=_cfr("424(c)(3)")),
+    "osha-424-c4": Case(
+        passing=lambda _: _sc(), failing=lambda _: _no_bailout(_sc()),
+        measured="none", limit="a diver-carried reserve (gas_supply.bailout)",
+        citation=_cfr("424(c)(4)-(5)")),
+    "osha-425-b1": Case(
+        passing=lambda _: _b(), failing=lambda _: _b(max_depth=200),
+        measured=200, limit=190.0, citation=_cfr("425(b)(1)"), severity="warn"),
+    "osha-425-b2": Case(
+        passing=lambda _: _deep(), failing=lambda _: _chamber(_deep(), on_site=False),
+        measured=110, limit=100.0, citation=_cfr("425(b)(2)"), severity="warn"),
+    "osha-425-b3": Case(
+        passing=lambda _: _deep(decompression="in-water", bell="open", stops=_LONG_DECO),
+        failing=lambda _: _deep(decompression="in-water", stops=_LONG_DECO),
+        measured=130.0, limit=120.0, citation=_cfr("425(b)(3)"), severity="warn"),
+    "osha-425-c1": Case(
+        passing=lambda _: _b(), failing=lambda _: _no_tender(_b(tender=None)),
+        measured="none", limit="a tender other than the diver", citation=_cfr("425(c)(1)"),
+        severity="warn"),
+    "osha-425-c3": Case(
+        passing=lambda _: _deep(), failing=lambda _: _deep(tender=None),
+        measured="none", limit="a separate tender (dive.tender)", citation=_cfr("425(c)(3)")),
+    "osha-425-c4": Case(
+        passing=lambda _: _deep(), failing=lambda _: _no_secondary(_deep()),
+        measured="none", limit="a dive-location reserve (gas_supply.secondary)",
+        citation=_cfr("425(c)(4)")),
+    "osha-425-c5": Case(
+        passing=lambda _: _deep(), failing=lambda _: _deep(stage=False),
+        measured="no", limit="yes", citation=_cfr("425(c)(5)")),
+    "osha-425-c6": Case(
+        passing=lambda _: _b(direct_ascent_possible=False),
+        failing=lambda _: _no_bailout(_b(direct_ascent_possible=False)),
+        measured="none", limit="a diver-carried reserve (gas_supply.bailout)",
+        citation=_cfr("425(c)(6)")),
+    "osha-426-b": Case(
+        passing=lambda _: _hx(), failing=lambda _: _chamber(_hx(), on_site=False),
+        measured="not at the site", limit="a chamber ready at the site",
+        citation=_cfr("426(b)")),
+    "osha-426-c1": Case(
+        passing=lambda _: _hx(), failing=lambda _: _hx(tender=None),
+        measured="none", limit="a separate tender (dive.tender)", citation=_cfr("426(c)(1)-(3)")),
+    "osha-426-c4": Case(
+        passing=lambda _: _hx(), failing=lambda _: _no_secondary(_hx()),
+        measured="none", limit="a dive-location reserve (gas_supply.secondary)",
+        citation=_cfr("426(c)(4)-(5)")),
+    "osha-426-c6": Case(
+        passing=lambda _: _hx(heavy_gear=True), failing=lambda _: _hx(heavy_gear=True, stage=False),
+        measured="no", limit="yes", citation=_cfr("426(c)(6)-(7)")),
+    "osha-426-c8": Case(
+        passing=lambda _: _hx(), failing=lambda _: _no_bailout(_hx()),
+        measured="none", limit="a diver-carried reserve (gas_supply.bailout)",
+        citation=_cfr("426(c)(8)-(9)")),
+    "osha-423-c1": Case(
+        passing=lambda _: _deep(), failing=lambda _: _chamber(_deep(), on_site=False),
+        measured="none", limit=165.0, citation=_cfr("423(c)(1)")),
+    "osha-423-c2": Case(
+        passing=lambda _: _chamber(_hx(max_depth=310, bell="closed"), depth_capability=330),
+        failing=lambda _: _chamber(_hx(max_depth=310, bell="closed"), depth_capability=225),
+        measured=225, limit=310, citation=_cfr("423(c)(2)"), severity="warn"),
+    "osha-423-c3": Case(
+        passing=lambda _: _deep(), failing=lambda _: _chamber(_deep(), multiplace=False),
+        measured="no", limit="yes", citation=_cfr("423(c)(3)"), severity="warn"),
+    "osha-423-c4": Case(
+        passing=lambda _: _deep(), failing=lambda _: _equipment(_deep(), voice_comms=False),
+        measured="no", limit="yes", citation=_cfr("423(c)(4)"), severity="warn"),
+    "osha-423-c5": Case(
+        passing=lambda _: _deep(), failing=lambda _: _chamber(_deep(), operator_available=None),
+        measured="not stated", limit="yes", citation=_cfr("423(c)(5)-(6)"), severity="warn"),
+    "osha-410-a3": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _member(_c.base(), 3, first_aid_cpr=False),
+        measured="Tess Tender", limit="all members", citation=_cfr("410(a)(3)")),
+    "osha-410-a4": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _member(_c.base(), 1, physics_physiology=False),
+        measured="Dana Diver", limit="trained", citation=_cfr("410(a)(4)")),
+    "osha-410-c1": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _member(_c.base(), 0, role="tender"),
+        measured="Sam Supervisor", limit="a team member with the supervisor role",
+        citation=_cfr("410(c)(1)")),
+    "osha-420-a": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _site(safe_practices_manual=False),
+        measured="no", limit="yes", citation=_cfr("420(a)")),
+    "osha-421-b": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _contacts(_c.base(), physician=""),
+        measured=3, limit=4, citation=_cfr("421(b)"), severity="warn"),
+    "osha-421-c": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _site(first_aid_handbook=False),
+        measured="no", limit="yes", citation=_cfr("421(c)"), severity="warn"),
+    "osha-421-h": Case(
+        passing=lambda _: _site(from_vessel=False, code_flag_a=True),
+        failing=lambda _: _site(from_vessel=False, code_flag_a=False),
+        measured="no", limit="yes", citation=_cfr("421(h)")),
+    "osha-422-c1": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _site(diver_voice_comms=False),
+        measured="no", limit="yes", citation=_cfr("422(c)(1)")),
+    "osha-422-c2": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _unstated(_c.base(), "emergency_comms"),
+        measured="not stated", limit="yes", citation=_cfr("422(c)(2)"), severity="warn"),
+    "osha-422-d": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _site(tables_on_site=False),
+        measured="no", limit="yes", citation=_cfr("422(d)")),
+}
+
+_LONG_DECO = [{"depth": 20, "minutes": 70}, {"depth": 10, "minutes": 60}]
+
+
+def _site_current(d, kt):
+    d["site"]["current_kt"] = kt
+    return d
+
+
+def _confined(d):
+    d["site"]["confined_space"] = True
+    return d
+
+
+def _no_tender(d):
+    d["team"][3]["role"] = "chamber-operator"
+    return d
+
+
+def _equipment(d, **eq):
+    d["chamber"]["equipment"].update(eq)
+    return d
+
+
+def _member(d, i, **kw):
+    d["team"][i].update(kw)
+    return d
+
+
+def _contacts(d, **kw):
+    d["site"]["emergency_contacts"].update(kw)
+    return d
+
+
+def _unstated(d, field):
+    del d["site"][field]
+    return d
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each OSHA rule passes its passing plan and reports id, measured, limit and citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
