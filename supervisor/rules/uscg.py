@@ -20,12 +20,27 @@ from collections.abc import Iterator
 
 from supervisor.findings import Finding
 from supervisor.plan import Dive
-from supervisor.rules.base import CheckContext, Family, Rule
-from supervisor.rules.regulatory import MIXED, SCUBA, SS_AIR, SURFACE_SUPPLIED, mixed_status
+from supervisor.rules.base import NONE, NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.regulatory import (
+    LOCATION_RESERVE,
+    MIXED,
+    READY,
+    RESERVE,
+    SCUBA,
+    SS_AIR,
+    STANDBY,
+    SUPERVISOR,
+    SURFACE_SUPPLIED,
+    TENDER,
+    chamber_state,
+    mixed_status,
+)
 
 FAMILY = Family("regulatory-uscg", "USCG commercial-diving rules (46 CFR 197 Subpart B)")
 
 USCG = ("uscg-46-197-b",)
+
+STAGE = "a stage or a bell"
 
 
 @FAMILY.rule(
@@ -43,7 +58,9 @@ def uscg_supervisor(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         yield r.ok(f"diving supervisor: {name} (designate in writing to the person-in-charge)")
     else:
         yield r.breach(
-            f"job.supervisor {name!r} is not a team member with the supervisor role", measured=name
+            f"job.supervisor {name!r} is not a team member with the supervisor role",
+            measured=name,
+            limit=SUPERVISOR,
         )
 
 
@@ -79,15 +96,22 @@ def uscg_scuba(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 unit="kt",
             )
         if ctx.standby_for(d) is None:
-            yield r.breach("no standby diver available", dive=d.id)
+            yield r.breach("no standby diver available", dive=d.id, measured=NONE, limit=STANDBY)
         if not (d.line_tended or d.buddy):
             yield r.breach(
                 "SCUBA diver neither line-tended nor buddied (a pickup boat is also "
                 "needed when not line-tended)",
                 dive=d.id,
+                measured=NONE,
+                limit="line or buddy",
             )
         if site.confined_space and not (d.entry_diver and d.entry_diver != d.diver):
-            yield r.breach("confined space: no diver at the entry point", dive=d.id)
+            yield r.breach(
+                "confined space: no diver at the entry point",
+                dive=d.id,
+                measured=d.entry_diver or NONE,
+                limit="a diver at the entry point (dive.entry_diver)",
+            )
 
 
 @FAMILY.rule(
@@ -118,11 +142,27 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         bad = []
         if gs.secondary is None:
-            bad.append(r.breach("no secondary air supply (gas_supply.secondary)", dive=d.id))
+            bad.append(
+                r.breach(
+                    "no secondary air supply (gas_supply.secondary)",
+                    dive=d.id,
+                    measured=NONE,
+                    limit=LOCATION_RESERVE,
+                )
+            )
         if not (ch.on_site and ch.ready):
-            bad.append(r.breach("no chamber ready at the site", dive=d.id))
+            bad.append(
+                r.breach(
+                    "no chamber ready at the site",
+                    dive=d.id,
+                    measured=chamber_state(ctx),
+                    limit=READY,
+                )
+            )
         if not d.stage and d.bell == "none":
-            bad.append(r.breach("neither a stage nor a bell", dive=d.id))
+            bad.append(
+                r.breach("neither a stage nor a bell", dive=d.id, measured=NONE, limit=STAGE)
+            )
         if d.in_water_stop_min > 120 and d.bell == "none":
             bad.append(
                 r.breach(
@@ -134,11 +174,27 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 )
             )
         if not (d.tender and d.tender != d.diver):
-            bad.append(r.breach("no separate tender named for this diver", dive=d.id))
+            bad.append(
+                r.breach(
+                    "no separate tender named for this diver",
+                    dive=d.id,
+                    measured=d.tender or NONE,
+                    limit=TENDER,
+                )
+            )
         if ctx.standby_for(d) is None:
-            bad.append(r.breach("no standby diver available", dive=d.id))
+            bad.append(
+                r.breach("no standby diver available", dive=d.id, measured=NONE, limit=STANDBY)
+            )
         if not (d.heavy_gear or confined or ctx.has_bailout(d)):
-            bad.append(r.breach(f"no diver-carried reserve listed for {d.diver}", dive=d.id))
+            bad.append(
+                r.breach(
+                    f"no diver-carried reserve listed for {d.diver}",
+                    dive=d.id,
+                    measured=NONE,
+                    limit=RESERVE,
+                )
+            )
         yield from bad or [
             r.ok(
                 "secondary supply, chamber, stage or bell, tender, standby and "
@@ -165,10 +221,24 @@ def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         bad = []
         if not ((ch.on_site and ch.ready) or d.bell == "closed"):
             bad.append(
-                r.breach("no chamber ready at the site and no closed bell", dive=d.id, status=st)
+                r.breach(
+                    "no chamber ready at the site and no closed bell",
+                    dive=d.id,
+                    status=st,
+                    measured=chamber_state(ctx),
+                    limit=f"{READY} or a closed bell",
+                )
             )
         if not d.stage and d.bell == "none":
-            bad.append(r.breach("neither a stage nor a bell", dive=d.id, status=st))
+            bad.append(
+                r.breach(
+                    "neither a stage nor a bell",
+                    dive=d.id,
+                    status=st,
+                    measured=NONE,
+                    limit=STAGE,
+                )
+            )
         if (fsw > 220 or d.in_water_stop_min > 120) and d.bell == "none":
             bad.append(
                 r.breach(
@@ -192,9 +262,25 @@ def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 )
             )
         if ctx.standby_for(d) is None:
-            bad.append(r.breach("no standby diver available", dive=d.id, status=st))
+            bad.append(
+                r.breach(
+                    "no standby diver available",
+                    dive=d.id,
+                    status=st,
+                    measured=NONE,
+                    limit=STANDBY,
+                )
+            )
         if gs.secondary is None:
-            bad.append(r.breach("no secondary gas supply", dive=d.id, status=st))
+            bad.append(
+                r.breach(
+                    "no secondary gas supply",
+                    dive=d.id,
+                    status=st,
+                    measured=NONE,
+                    limit=LOCATION_RESERVE,
+                )
+            )
         yield from bad or [
             r.ok(
                 "chamber or closed bell, stage or bell, standby and secondary gas in place",
@@ -218,7 +304,12 @@ def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if not (ctx.fsw(d.max_depth) > 130 or ctx.outside_ndl(d) or d.mode in MIXED):
             continue
         if gs.secondary is None:
-            yield r.breach("only the primary supply on site", dive=d.id)
+            yield r.breach(
+                "only the primary supply on site",
+                dive=d.id,
+                measured="primary only",
+                limit="primary and secondary supply",
+            )
         else:
             yield r.ok("secondary supply on site", dive=d.id)
         yield r.need(ctx.has_bailout(d), f"a diver-carried reserve for {d.diver}", dive=d.id)
@@ -256,7 +347,9 @@ def uscg_chamber_depth(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         need_fsw = 165.0 if ctx.fsw(d.max_depth) <= 300 else ctx.fsw(d.max_depth)
         kw = dict(limit=ctx.limit(need_fsw), unit=ctx.unit, dive=d.id)
         if ch.depth_capability is None:
-            yield r.review("needs review: chamber depth capability not stated", **kw)
+            yield r.review(
+                "needs review: chamber depth capability not stated", measured=NOT_STATED, **kw
+            )
         elif ctx.fsw(ch.depth_capability) < need_fsw:
             yield r.breach(
                 f"chamber reaches {ctx.show(ch.depth_capability)}, less than {need_fsw:g} fsw",
@@ -314,4 +407,9 @@ def uscg_supervisor_duties(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if ops:
             yield r.ok(f"chamber operator not diving: {ops[0].name}", dive=d.id)
         else:
-            yield r.breach("no non-diving team member trained to operate the chamber", dive=d.id)
+            yield r.breach(
+                "no non-diving team member trained to operate the chamber",
+                dive=d.id,
+                measured=NONE,
+                limit="a chamber operator who is not diving",
+            )

@@ -6,7 +6,9 @@ finding's citation (rows VERIFIED in the project's regulation notes).
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
+from _contract import Case
 
 from supervisor.findings import Finding
 from supervisor.rules import regulatory
@@ -160,3 +162,87 @@ def test_uscg_rules_do_not_run_under_osha(base):
 
     ctx = CheckContext(plan_from_dict(base()))
     assert not any(r.applies(ctx) for r in FAMILY.rules)
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every USCG rule
+# (the source of each limit is the section in the case's citation)
+
+
+def _u(**dive):
+    d = _c.dive(_c.base(), **dive)
+    d["job"]["jurisdiction"] = "uscg-46-197-b"
+    return d
+
+
+def _set(d, section, **kw):
+    d[section].update(kw)
+    return d
+
+
+def _hx(**kw):
+    return _u(mode="surface-supplied-heliox", gas="16/84", max_depth=150, bottom_time_min=20,
+              stage=True, **kw)
+
+
+_DECO = dict(decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
+_DEEP = dict(max_depth=140, bottom_time_min=20, stage=True)
+
+
+def _no_bailout(d):
+    d["gas_supply"]["bailout"] = []
+    return d
+
+
+def _no_secondary(d):
+    del d["gas_supply"]["secondary"]
+    return d
+
+
+CASES: dict[str, Case] = {
+    "uscg-210": Case(
+        passing=lambda _: _u(), failing=lambda _: _set(_u(), "job", supervisor="Tess Tender"),
+        measured="Tess Tender", limit="a team member with the supervisor role",
+        citation="46 CFR 197.210"),
+    "uscg-430": Case(
+        passing=lambda _: _u(mode="scuba"), failing=lambda _: _u(mode="scuba", **_DECO),
+        measured="in-water", limit="none", citation="46 CFR 197.430"),
+    "uscg-432": Case(
+        passing=lambda _: _u(**_DEEP), failing=lambda _: _u(**dict(_DEEP, stage=False)),
+        measured="none", limit="a stage or a bell", citation="46 CFR 197.432"),
+    "uscg-434": Case(
+        passing=lambda _: _hx(), failing=lambda _: _no_secondary(_hx()),
+        measured="none", limit="a dive-location reserve (gas_supply.secondary)",
+        citation="46 CFR 197.434"),
+    "uscg-346e": Case(
+        passing=lambda _: _u(**_DECO), failing=lambda _: _no_bailout(_u(**_DECO)),
+        measured="no", limit="yes", citation="46 CFR 197.346(e)-(g)"),
+    "uscg-332": Case(
+        passing=lambda _: _u(**_DEEP),
+        failing=lambda _: _set(_u(**_DEEP), "chamber", depth_capability=150),
+        measured=150, limit=165.0, citation="46 CFR 197.332"),
+    "uscg-314": Case(
+        passing=lambda _: _u(**_DEEP), failing=lambda _: _set(_u(**_DEEP), "site",
+                                                              resuscitator=False),
+        measured="no", limit="yes", citation="46 CFR 197.314"),
+    "uscg-410": Case(
+        passing=lambda _: _u(**_DEEP),
+        failing=lambda _: _no_operator(_u(**_DEEP)),
+        measured="none", limit="a chamber operator who is not diving",
+        citation="46 CFR 197.410"),
+}
+
+
+def _no_operator(d):
+    d["team"][4]["role"] = "tender"
+    return d
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each USCG rule passes its passing plan and reports id, measured, limit and citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
