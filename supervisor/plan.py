@@ -25,7 +25,9 @@ po2_decompression_max   1.6 bar            commercial practice, from memory
 po2_chamber_max         2.8 bar            Navy treatment practice 2.8 ata (U.S. Navy
                                            Diving Manual Rev 4 Change A; OLDER-EDITION)
 density_warn/fail       5.2 / 6.2 g/L      Anthony & Mitchell (2016) recommendation,
-                                           from memory
+                                           FROM MEMORY; CO2 retention rising steeply
+                                           above about 6 g/L (DAN Alert Diver,
+                                           "Performance Under Pressure"; SECONDARY)
 end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY)
 descent_rate_max        75 fsw/min         U.S. Navy Diving Manual ch. 9, from memory
 ascent_rate             30 fsw/min         U.S. Navy Diving Manual Rev 4 Change A ch. 9

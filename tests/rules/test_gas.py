@@ -1,12 +1,15 @@
 """Breathing-gas rules: a passing and a failing plan for every rule.
 
 Outside values: hypoxia below 0.16 ata (U.S. Navy Diving Manual Rev 4 Change A
-ch. 15, OLDER-EDITION); MOD(fsw) = 33 (PO2 / FO2 - 1) with PO2 in atm
-(gas-and-pressure notes §4.2, SECONDARY); END(ft) = (D + 33)(1 - FHe) - 33, oxygen
-narcotic (NOAA convention, SECONDARY); air density at 15 degC and 1.01325 bar +
-d/10 bar: 6.07 g/L at 40 m and 7.29 g/L at 50 m (CoolProp ``PropsSI('D', ...)``,
-LIBRARY, gas-and-pressure notes §4.5); the 5.2 / 6.2 g/L thresholds after
-Anthony and Mitchell (2016), FROM MEMORY.
+ch. 15, OLDER-EDITION); MOD(fsw) = 33 (PO2 / FO2 - 1) with PO2 in atm (the common
+diving formula, as in the encyclopedia article "Maximum operating depth",
+SECONDARY); END(ft) = (D + 33)(1 - FHe) - 33, oxygen narcotic (NOAA convention,
+SECONDARY); air density at 15 degC and 1.01325 bar + d/10 bar: 6.07 g/L at 40 m
+and 7.29 g/L at 50 m (CoolProp
+``PropsSI('D', 'T', 288.15, 'P', (1.01325 + d / 10) * 1e5, 'Air')``, LIBRARY);
+the 5.2 / 6.2 g/L thresholds after Anthony and Mitchell (2016), FROM MEMORY; the
+rise of CO2 retention above about 6 g/L (DAN Alert Diver, "Performance Under
+Pressure"), SECONDARY.
 """
 
 from __future__ import annotations
@@ -15,7 +18,15 @@ import pytest
 from _engine_plans import data, msw, no_bad, only, run
 
 from supervisor import constants as C
-from supervisor.rules.gas import ANTHONY_MITCHELL, END_DEFAULT, FAMILY, NAVY_HYPOXIA
+from supervisor.rules.gas import (
+    ANTHONY_MITCHELL,
+    DAN_DENSITY,
+    DENSITY_DEFAULT_STATUS,
+    DENSITY_POLICY,
+    END_DEFAULT,
+    FAMILY,
+    NAVY_HYPOXIA,
+)
 
 
 def test_hypoxic_pass_needs_review():
@@ -95,23 +106,71 @@ def _dense(depth_m, **policy):
 def test_density_pass_needs_review():
     f = only(run(data(), FAMILY, "gas-density"), "pass")
     assert not f.verified and f.limit == 5.2
+    assert "needs review: set the contractor's own density limits" in f.message
+    assert f.source_status == DENSITY_DEFAULT_STATUS == "FROM MEMORY"
 
 
 def test_density_above_preferred_warns_vs_coolprop():
     f = only(run(_dense(40), FAMILY, "gas-density"), "warn")
     assert f.rule == "gas-density"
     assert f.measured == pytest.approx(6.07, rel=0.01)  # CoolProp, air 40 m 15 degC
-    assert f.limit == 5.2 and f.citation.startswith(ANTHONY_MITCHELL)
-    assert "FROM MEMORY" in f.citation
+    # 5.2 g/L preferred maximum: Anthony & Mitchell (2016), FROM MEMORY
+    assert f.limit == 5.2 and f.citation.startswith(DENSITY_POLICY)
+    assert ANTHONY_MITCHELL in f.citation and "FROM MEMORY" in f.citation
+    assert "policy.density_warn_g_per_l" in f.message
 
 
-def test_density_above_maximum_warns_on_default_thresholds():
-    f = only(run(_dense(50), FAMILY, "gas-density"), "warn")
+def test_density_above_maximum_fails_on_default_thresholds():
+    f = only(run(_dense(50), FAMILY, "gas-density"), "fail")
     assert f.measured == pytest.approx(7.29, rel=0.01)  # CoolProp, air 50 m 15 degC
-    assert f.limit == 6.2
+    # 6.2 g/L maximum: Anthony & Mitchell (2016), FROM MEMORY; the inflection near 6 g/L
+    # (UK test data) reported by DAN Alert Diver, SECONDARY
+    assert f.limit == 6.2 and f.verified
+    assert f.source_status == "FROM MEMORY"
+    assert "policy.density_fail_g_per_l: default after Anthony & Mitchell 2016, FROM MEMORY" \
+        in f.message
+    assert "6 g/L is SECONDARY" in f.message
+    assert DAN_DENSITY in f.citation and "SECONDARY" in f.citation
 
 
 def test_density_policy_limit_fails():
     f = only(run(_dense(50, density_fail_g_per_l=6.2), FAMILY, "gas-density"), "fail")
     assert f.measured == pytest.approx(7.29, rel=0.01) and f.limit == 6.2
-    assert f.citation.startswith("contractor policy")
+    assert f.citation == DENSITY_POLICY and f.source_status is None
+    assert "the contractor's own" in f.message
+
+
+def test_density_own_higher_limit_warns_at_the_default_warning():
+    # the contractor allows 8 g/L; 7.29 g/L (CoolProp, 50 m) is then only above 5.2 g/L
+    f = only(run(_dense(50, density_fail_g_per_l=8), FAMILY, "gas-density"), "warn")
+    assert f.limit == 5.2 and f.source_status == "FROM MEMORY"
+
+
+def test_density_own_thresholds_pass_verified():
+    f = only(run(_own(data()), FAMILY, "gas-density"), "pass")
+    assert f.verified and f.source_status is None and f.citation == DENSITY_POLICY
+
+
+def _own(d):
+    d["policy"].update(density_warn_g_per_l=5.0, density_fail_g_per_l=6.0)
+    return d
+
+
+def test_density_without_water_temperature_needs_review():
+    d = _own(data())
+    del d["site"]["water_temperature_c"]
+    f = only(run(d, FAMILY, "gas-density"), "pass")
+    assert not f.verified and "15 degC assumed" in f.message
+    assert "state the water temperature" in f.message
+
+
+def test_density_fails_in_the_nonconforming_example():
+    from pathlib import Path
+
+    from supervisor.plan import load_plan
+    from supervisor.rules.base import CheckContext
+
+    root = Path(__file__).resolve().parents[2]
+    ctx = CheckContext(load_plan(root / "examples" / "nonconforming-job.toml"))
+    f = only(FAMILY.get("gas-density").run(ctx), "fail")
+    assert f.measured == pytest.approx(6.53, abs=0.01) and f.limit == 6.2

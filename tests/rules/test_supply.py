@@ -1,7 +1,7 @@
 """Gas-supply rules: a passing and a failing plan for every rule.
 
-Outside values (U.S. Navy Diving Manual Rev 4 Change A ch. 8, OLDER-EDITION, as
-in the gas-and-pressure notes §2): demand flow 1.4 acfm per diver; free gas =
+Outside values (U.S. Navy Diving Manual Rev 4 Change A ch. 8, pp. 8-2 to 8-5,
+OLDER-EDITION): demand flow 1.4 acfm per diver; free gas =
 (D + 33) / 33 x acfm x minutes; minimum manifold pressure = 0.445 D (rounded up) +
 90 psig over bottom for 0-60 fsw, so 117 psig at 60 fsw; the EGS charge Vr / FV x
 14.7 + Pm.  Methods from an older edition: a shortfall warns.
