@@ -85,15 +85,18 @@ def roles_distinct(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         bad = []
         if d.tender is not None and d.tender in (d.diver, d.standby_diver):
             who = "the diver" if d.tender == d.diver else "the standby diver"
-            bad.append(f"tender {d.tender} is also {who}")
+            bad.append((f"tender {d.tender} is also {who}", d.tender,
+                        "a tender who is neither the diver nor the standby diver"))
         if d.buddy is not None and d.buddy == d.diver:
-            bad.append(f"buddy {d.buddy} is the diver")
-        for text in bad:
-            yield r.breach(text, dive=d.id)
+            bad.append((f"buddy {d.buddy} is the diver", d.buddy, "a buddy other than the diver"))
+        for text, who, need in bad:
+            yield r.breach(text, dive=d.id, measured=who, limit=need)
         if ctx.plan.job.supervisor == d.diver:
             yield r.breach(
                 f"the supervisor {d.diver} is the diver; nobody is in charge at the surface "
                 "during this dive",
+                measured=d.diver,
+                limit="a supervisor who is not diving",
                 dive=d.id,
                 status="FROM MEMORY",
                 rule="team-supervisor-diving",
@@ -123,6 +126,7 @@ def standby_present(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.breach(
                 f"standby diver {sb.name} holds no diving role",
                 measured=sb.name,
+                limit="a member with a diving role",
                 dive=d.id,
                 status=None,
                 kind="plan",
@@ -193,6 +197,8 @@ def chamber_operator(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 busy.append(d.id)
                 yield r.breach(
                     f"every chamber operator is busy on dive {d.id} (diver, standby or tender)",
+                    measured=", ".join(m.name for m in ops),
+                    limit="a chamber operator who is not diver, standby or tender on the dive",
                     dive=d.id,
                     status=None,
                     kind="plan",

@@ -8,6 +8,10 @@ notes, so a gap warns.
 
 from __future__ import annotations
 
+import _contract as _c
+import pytest
+from _contract import Case
+
 from supervisor.findings import Finding
 from supervisor.rules.team import FAMILY, TEAM_SIZE
 
@@ -149,3 +153,94 @@ def test_msw_depth_trigger(base, run):
     assert _one_bad(run(d, FAMILY, "team-chamber-operator")).severity == "warn"
     d["dives"][0]["max_depth"] = 30  # 97.7 fsw
     assert run(d, FAMILY, "team-chamber-operator") == []
+
+
+def test_a_derived_crew_pass_is_unverified(base, run):
+    """The crew reading is DERIVED: its passes keep the verdict at needs review; the plan's
+    consistency (a plan rule) passes verified."""
+    [f] = run(base(), FAMILY, "team-standby")
+    assert (f.severity, f.source_status, f.verified) == ("pass", "DERIVED", False)
+    [f] = run(base(), FAMILY, "team-supervisor")
+    assert (f.severity, f.source_status, f.verified) == ("pass", None, True)
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every team rule
+
+
+def _member(d, i, **kw):
+    d["team"][i].update(kw)
+    return d
+
+
+def _surd(**kw):
+    return _c.dive(_c.base(), max_depth=100, bottom_time_min=40, decompression="surface-oxygen",
+                   stops=[{"depth": 50, "minutes": 30, "gas": "oxygen", "place": "chamber"}],
+                   **kw)
+
+
+PLAN = "plan consistency"
+CASES: dict[str, Case] = {
+    "team-supervisor": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _member(_c.base(), 0, role="tender"),
+        measured=0, limit=1, citation=f"{PLAN} (job.supervisor and team[].role)"),
+    "team-diver": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _c.dive(_c.base(), diver="Tess Tender", tender="Cal Chamber"),
+        measured="tender", limit="diver", citation=f"{PLAN} (dives[].diver and team[].role)"),
+    "team-roles-distinct": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _c.dive(_c.base(), tender="Dana Diver"),
+        measured="Dana Diver", limit="a tender who is neither the diver nor the standby diver",
+        citation=f"{PLAN} (dives[].diver, standby_diver, tender)"),
+    "team-standby": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _member(_c.dive(_c.base(), standby_diver=None), 2, role="diver"),
+        measured=0, limit=1, citation=TEAM_SIZE, severity="warn"),
+    "team-tender": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _member(_c.dive(_c.base(), tender=None), 3, role="diver"),
+        measured=0, limit=1, citation=TEAM_SIZE, severity="warn"),
+    "team-chamber-operator": Case(
+        passing=lambda _: _c.dive(_c.base(), max_depth=110, bottom_time_min=20),
+        failing=lambda _: _member(_c.dive(_c.base(), max_depth=110, bottom_time_min=20), 4,
+                                  role="tender"),
+        measured=0, limit=1, citation=TEAM_SIZE, severity="warn"),
+}
+
+#: Findings a team rule gives under another id: (rule key, plan, id, severity, measured,
+#: limit, citation).
+OTHER_IDS = [
+    ("team-roles-distinct",
+     lambda: _member(_c.dive(_c.base(), diver="Sam Supervisor"), 0, role=["supervisor", "diver"]),
+     "team-supervisor-diving", "warn", "Sam Supervisor", "a supervisor who is not diving",
+     "common practice, no source"),
+    ("team-standby", lambda: _c.dive(_c.base(), standby_diver="Cal Chamber"),
+     "team-standby-role", "fail", "Cal Chamber", "a member with a diving role",
+     f"{PLAN} (dives[].standby_diver)"),
+    ("team-chamber-operator", lambda: _surd(tender="Cal Chamber"),
+     "team-chamber-operator-busy", "fail", "Cal Chamber",
+     "a chamber operator who is not diver, standby or tender on the dive",
+     f"{PLAN} (surface decompression)"),
+    ("team-chamber-operator", lambda: _member(_surd(), 4, role="tender"),
+     "team-chamber-operator", "fail", 0, 1, f"{PLAN} (surface decompression)"),
+]
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each team rule passes its passing plan and reports id, measured, limit and citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+@pytest.mark.parametrize(("key", "plan", "rule", "severity", "measured", "limit", "citation"),
+                         OTHER_IDS, ids=[x[2] for x in OTHER_IDS])
+def test_contract_other_ids(key, plan, rule, severity, measured, limit, citation):
+    got = [f for f in _c.run_rule(FAMILY, key, plan()) if f.severity in _c.BAD]
+    for f in got:
+        _c.reported(f)
+    f = next(f for f in got if f.rule == rule)
+    assert (f.severity, f.measured, f.limit, f.citation) == (severity, measured, limit, citation)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
