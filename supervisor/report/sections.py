@@ -655,6 +655,18 @@ def contingency_section(dive: Mapping[str, Any], record: Mapping[str, Any],
     return [KeepTogether(out)]
 
 
+def dive_verdict(dive: Mapping[str, Any], record: Mapping[str, Any]) -> Flowable:
+    """The dive's verdict and counts, over its own findings and the job-wide ones."""
+    findings = [f for f in record.get("findings") or [] if isinstance(f, Mapping)
+                and f.get("dive") in (dive.get("id"), None)]
+    counts = count_findings(findings)
+    verdict, _ = effective_verdict(dive.get("verdict"), counts)
+    return rich([("Dive verdict: ", False), (VERDICT_LABEL[verdict], True), (
+        f" ({counts['fail']} fail, {counts['warn']} warn, {counts['info']} info, "
+        f"{counts['pass']} pass, counting this dive's findings and the job-wide ones)", False)],
+        BODY)
+
+
 def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
                  width: float) -> list[Flowable]:
     """Everything about one dive."""
@@ -662,6 +674,8 @@ def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
     status = _text(model.get("coefficient_status"))
     out: list[Flowable] = [
         para(f"Dive {_text(dive.get('id'))}: {_text(dive.get('diver'))}", H2),
+        dive_verdict(dive, record),
+        Spacer(1, 3),
         dive_facts(dive, record, width),
         para("Schedules", H3),
         schedules_side_by_side(dive, record, width),

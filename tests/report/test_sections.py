@@ -244,3 +244,17 @@ def test_signature_section_states_the_signer(check_result: dict[str, Any]) -> No
     text = " ".join(_texts(sections.signature_section(check_result, 500, note)))
     assert "PDF (PAdES) signature by Dana Whitcombe" in text
     assert "AB:CD" in text and "self-signed" in text
+
+
+def test_dive_verdict_counts_its_own_and_job_wide_findings(check_result: dict[str, Any]) -> None:
+    dive = check_result["dives"][0]
+    check_result["findings"].append({"rule": "x", "severity": "fail", "message": "m",
+                                     "dive": "D9", "citation": "c"})
+    check_result["findings"].append({"rule": "y", "severity": "warn", "message": "m",
+                                     "dive": None, "citation": "c"})
+    text = _texts([sections.dive_verdict(dive, check_result)])[0]
+    assert text.startswith("Dive verdict: DOES NOT CONFORM (1 fail, 3 warn, 1 info, 1 pass")
+    check_result["findings"] = [f for f in check_result["findings"] if f["severity"] != "fail"]
+    dive["verdict"] = "conforms"  # the stated verdict is never better than the findings
+    text = _texts([sections.dive_verdict(dive, check_result)])[0]
+    assert text.startswith("Dive verdict: NEEDS REVIEW (0 fail, 3 warn")
