@@ -5,7 +5,10 @@ Exit status
 checklist  0 written (plan conforms or needs review); 1 written, but the plan
            does not conform; 2 unreadable plan, bad key file, wrong
            passphrase, or a signed checklist already in the folder (nothing
-           written).
+           written).  A missing or wrong key file is reported before the
+           passphrase is asked for.  An unsigned checklist of the same job in
+           the folder is replaced (the checklist is regenerated); a signed one
+           never is.
 keys new   0 written; 2 bad name or passphrase, or a file already there.
 verify     0 valid; 1 not signed, changed after signing, or signed with
            another certificate than ``--cert``; 2 unreadable file.
@@ -88,17 +91,24 @@ def _run_check(plan: Path) -> dict[str, Any]:
 def checklist(
     plan: Path = typer.Argument(..., help="Plan file (TOML) to check.", show_default=False),
     out: Path = typer.Option(..., "--out", help="Folder for <job>-checklist.pdf and "
-                             "<job>-checklist.json (created if its parent exists).",
+                             "<job>-checklist.json (created if its parent exists). An "
+                             "unsigned checklist of the same job already there is replaced "
+                             "(regenerated); a signed one is never replaced.",
                              show_default=False),
     sign: Path | None = typer.Option(None, "--sign", help="Key file (.p12 from 'supervisor "
                                      "keys new') to sign the PDF and the JSON with.",
                                      show_default=False),
     paper: Paper = typer.Option(Paper.letter, "--paper", help="Page size."),
 ) -> None:
-    """Check a plan and write the pre-dive checklist (PDF and JSON record), optionally signed."""
+    """Check a plan and write the pre-dive checklist (PDF and JSON record), optionally signed.
+
+    Running it again on the same job and folder replaces an unsigned checklist
+    (it is regenerated from the plan as it is now); a signed checklist is
+    never replaced: move it away or choose another --out folder.
+    """
     from supervisor.report.checklist import make_checklist
     from supervisor.report.formatting import VERDICT_LABEL, count_findings, effective_verdict
-    from supervisor.report.keys import load_identity
+    from supervisor.report.keys import load_identity, read_key_file
 
     _quiet_libraries()
     try:
@@ -108,6 +118,7 @@ def checklist(
                            "(TOML)")
     identity = None
     if sign is not None:
+        read_key_file(sign)  # a missing or wrong file is reported before the prompt
         identity = load_identity(sign, _passphrase(confirm=False))
     result = _run_check(plan)
     files = make_checklist(result, plan_bytes, out, identity=identity, paper=paper.value)

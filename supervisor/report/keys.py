@@ -235,6 +235,51 @@ def new_identity(
     return IdentityFiles(key=out, certificate=cert_out)
 
 
+_EXPECTED_KEY = "expected the .p12 key file written by 'supervisor keys new'"
+
+
+def read_key_file(path: Path, *, field: str = "--sign") -> bytes:
+    """Read a key file and check that it is PKCS#12, without its passphrase.
+
+    Lets the command line report a missing or wrong file before it asks for
+    the passphrase.
+
+    Parameters
+    ----------
+    path : Path
+        The key file.
+    field : str
+        Name of the option the path came from, for messages.
+
+    Returns
+    -------
+    bytes
+        The file's contents.
+
+    Raises
+    ------
+    KeyFileError
+        If the file cannot be read, or is a certificate, another PEM file or
+        anything but PKCS#12.
+    """
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        raise KeyFileError(field, f"cannot read {path} ({exc.strerror or exc}); "
+                                  f"{_EXPECTED_KEY}") from None
+    if b"-----BEGIN CERTIFICATE-----" in data[:4096]:
+        raise KeyFileError(field, f"{path} is a certificate, not a key file; {_EXPECTED_KEY}")
+    if b"-----BEGIN" in data[:4096]:
+        raise KeyFileError(field, f"{path} is a PEM file, not a PKCS#12 key file; "
+                                  f"{_EXPECTED_KEY}")
+    try:
+        asn1_pkcs12.Pfx.load(data, strict=True).native  # noqa: B018 - parse fully
+    except Exception:
+        raise KeyFileError(field, f"{path} is not a PKCS#12 key file; {_EXPECTED_KEY}") \
+            from None
+    return data
+
+
 def load_identity(path: Path, passphrase: str, *, field: str = "--sign") -> SigningIdentity:
     """Open a key file written by :func:`new_identity`.
 
@@ -258,20 +303,8 @@ def load_identity(path: Path, passphrase: str, *, field: str = "--sign") -> Sign
         given by mistake is named as such), the passphrase is wrong, or the
         file holds no private key or certificate.
     """
-    expected = "expected the .p12 key file written by 'supervisor keys new'"
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise KeyFileError(field, f"cannot read {path} ({exc.strerror or exc}); {expected}") \
-            from None
-    if b"-----BEGIN CERTIFICATE-----" in data[:4096]:
-        raise KeyFileError(field, f"{path} is a certificate, not a key file; {expected}")
-    if b"-----BEGIN" in data[:4096]:
-        raise KeyFileError(field, f"{path} is a PEM file, not a PKCS#12 key file; {expected}")
-    try:
-        asn1_pkcs12.Pfx.load(data, strict=True).native  # noqa: B018 - parse fully
-    except Exception:
-        raise KeyFileError(field, f"{path} is not a PKCS#12 key file; {expected}") from None
+    expected = _EXPECTED_KEY
+    data = read_key_file(path, field=field)
     secret = passphrase.encode("utf-8")
     try:
         key, cert, _ = pkcs12.load_key_and_certificates(data, secret)

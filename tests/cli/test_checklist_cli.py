@@ -24,6 +24,15 @@ from pypdf import PdfReader
 from typer.testing import CliRunner
 
 from supervisor.cli import app
+from supervisor.report.document import sanitize
+from supervisor.report.formatting import (
+    VERDICT_LABEL,
+    fmt_gf,
+    fmt_number,
+    fmt_quantity,
+    fmt_stop_depth,
+    fmt_stop_minutes,
+)
 
 pytest.importorskip("supervisor.check")
 
@@ -60,9 +69,45 @@ def _outputs(folder: Path) -> dict[str, bytes]:
     return {p.name: p.read_bytes() for p in sorted(folder.iterdir())} if folder.exists() else {}
 
 
-def test_checklist_on_the_demo_job(runner: CliRunner, tmp_path: Path) -> None:
+# exit status of `supervisor checklist` per verdict (supervisor.cli.checklist docstring)
+EXIT_FOR = {"conforms": 0, "needs-review": 0, "does-not-conform": 1}
+
+HEADINGS = ("Reference tables and model", "Findings, worst first", "Schedules",
+            "Proposed (plan)", "Reference table: ", "Planned depth-time profile and model ceiling",
+            "Compartment loading at surfacing", "Oxygen exposure", "Gas supply against need",
+            "Contingency schedules", "Bottom-time overrun", "Deeper than planned",
+            "Loss of decompression oxygen", "Team and chamber", "Dive team", "Chamber",
+            "Pre-dive checklist: surface-supplied air", "Cautions", "Signatures",
+            "Diving supervisor", "Client's representative", "Diver's acknowledgement")
+
+
+@pytest.fixture(scope="module")
+def demo_check() -> dict[str, Any]:
+    """The check of the demo job, run on its own (the numbers the checklist must print)."""
+    from supervisor.check import run_check
+
+    return run_check(DEMO)
+
+
+def _dive_text(text: str, dives: list[dict[str, Any]], index: int) -> str:
+    """The part of the PDF text about one dive: from its heading to the next one."""
+    start = text.index(f"Dive {dives[index]['id']}: {dives[index]['diver']}")
+    ends = [text.index(f"Dive {d['id']}: {d['diver']}", start + 1) for d in dives[index + 1:]]
+    return text[start:min(ends or [text.index("Team and chamber", start)])]
+
+
+def _stops_text(stops: list[dict[str, Any]], unit: str) -> str:
+    if not stops:
+        return "no decompression stops"
+    return f"stop [{unit}] min gas place " + " ".join(
+        f"{fmt_stop_depth(s['depth'])} {fmt_stop_minutes(s['minutes'])} {s['gas']} {s['place']}"
+        for s in stops)
+
+
+def test_checklist_on_the_demo_job(runner: CliRunner, tmp_path: Path,
+                                   demo_check: dict[str, Any]) -> None:
     res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(tmp_path / "out")])
-    assert res.exit_code in (0, 1), res.stderr
+    assert res.exit_code == EXIT_FOR[demo_check["verdict"]], res.stderr
     slug = "outfall-diffuser-inspection-and-riser-clamp-change-checklist"
     pdf, js = tmp_path / "out" / f"{slug}.pdf", tmp_path / "out" / f"{slug}.json"
     assert f"wrote {pdf}" in res.stdout and f"wrote {js}" in res.stdout
@@ -70,22 +115,64 @@ def test_checklist_on_the_demo_job(runner: CliRunner, tmp_path: Path) -> None:
     plan = DEMO.read_bytes()
     assert record["schema"] == "supervisor.check/1"
     assert record["plan_text"] == plan.decode("utf-8")
-    assert record["plan_sha256"] == hashlib.sha256(plan).hexdigest()
+    assert record["plan_sha256"] == hashlib.sha256(plan).hexdigest() == demo_check["plan_sha256"]
+    for key in ("verdict", "counts", "findings", "dives", "model"):
+        assert record[key] == sanitize(demo_check[key]), key
     digest = hashlib.sha256(js.read_bytes()).hexdigest()
     assert f"document sha256 {digest}" in res.stdout
+    counts = demo_check["counts"]
+    verdict = VERDICT_LABEL[demo_check["verdict"]]
+    assert f"verdict: {verdict} ({counts['fail']} fail, {counts['warn']} warn)" in res.stdout
+
     text = _pdf_text(pdf)
+    for heading in HEADINGS:
+        assert heading in text, heading
+    assert f"Verdict: {verdict} {counts['fail']} fail, {counts['warn']} warn, " \
+        f"{counts['info']} info, {counts['pass']} pass" in text
+    model = demo_check["model"]
+    assert f"Model: {model['name']} GF {fmt_gf(model['gf_low'], model['gf_high'])}" in text
     for fragment in ("Outfall diffuser inspection and riser clamp change", "Mara Okonjo",
-                     "Halden Reach Water Board", "osha-1910-t", digest, record["plan_sha256"],
-                     "Dive D1: Teodor Lind", "Dive D2: Priya Raman",
-                     "Pre-dive checklist: surface-supplied air", "29 CFR 1910.421(b)",
-                     "Signatures", "Cautions"):
+                     "Halden Reach Water Board", "osha-1910-t", digest,
+                     demo_check["plan_sha256"], "29 CFR 1910.421(b)"):
         assert fragment in text, fragment
     pages = len(PdfReader(io.BytesIO(pdf.read_bytes())).pages)
     assert f"page {pages} of {pages}" in text
-    for dive in record["dives"]:
-        assert f"Dive {dive['id']}:" in text
-    for finding in record["findings"]:
+    for finding in demo_check["findings"]:
         assert finding["rule"][:12] in text.replace(" ", "")  # rule ids may wrap
+
+    unit = demo_check["unit"]
+    dives = demo_check["dives"]
+    assert len(dives) == 3
+    for i, dive in enumerate(dives):
+        part = _dive_text(text, dives, i)
+        mine = [f for f in demo_check["findings"] if f["dive"] in (dive["id"], None)]
+        fails = sum(f["severity"] == "fail" for f in mine)
+        warns = sum(f["severity"] == "warn" for f in mine)
+        assert f"Dive verdict: {VERDICT_LABEL[dive['verdict']]} ({fails} fail, {warns} warn, " \
+            in part, dive["id"]
+        model_schedule = dive["model_schedule"]
+        assert _stops_text(model_schedule["stops"], unit) in part, dive["id"]
+        assert f"total stop time: {fmt_number(model_schedule['total_stop_min'])} min" in part
+        assert _stops_text(dive["proposed_stops"], unit) in part, dive["id"]
+        oxygen = dive["oxygen"]
+        assert f"CNS [% of limit] {fmt_number(oxygen['cns_percent'], 1)}" in part, dive["id"]
+        assert f"pulmonary dose [OTU] {fmt_number(oxygen['otu'], 0)}" in part, dive["id"]
+        margin = dive["model_margin"]
+        assert f"margin {fmt_number(margin['margin_min'])} min" in part, dive["id"]
+        supply = dive["gas_supply"]
+        if supply["primary_kind"] == "compressor":
+            assert "primary compressor: delivery against peak flow " \
+                f"{fmt_quantity(supply['primary_delivery_lpm'], 'L/min', 0)} " \
+                f"{fmt_quantity(supply['peak_flow_lpm'], 'L/min', 0)}" in part, dive["id"]
+        ref = dive["reference_schedule"]
+        if ref["reason"] or ref["outside_table"]:
+            assert "No reference schedule — needs review:" in part or \
+                "Partial reference schedule — needs review:" in part, dive["id"]
+            assert ref["reason"] in part, dive["id"]
+        if dive["decompression"] == "surface-oxygen":
+            assert "surface interval: not assessed by the ceiling check" in part or \
+                "surface interval: peak supersaturation" in part, dive["id"]
+            assert "surface interval not in the ceiling check" in part  # the chart's label
 
 
 def test_nonconforming_job_exits_1_with_files_written(runner: CliRunner, tmp_path: Path) -> None:
@@ -95,10 +182,11 @@ def test_nonconforming_job_exits_1_with_files_written(runner: CliRunner, tmp_pat
     assert len(list(tmp_path.glob("*-checklist.pdf"))) == 1
 
 
-def test_sign_and_verify(runner: CliRunner, tmp_path: Path, key: Path) -> None:
+def test_sign_and_verify(runner: CliRunner, tmp_path: Path, key: Path,
+                         demo_check: dict[str, Any]) -> None:
     res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(tmp_path), "--sign", str(key)],
                         env={ENV: PASS})
-    assert res.exit_code in (0, 1), res.stderr
+    assert res.exit_code == EXIT_FOR[demo_check["verdict"]], res.stderr
     assert "signed by Mara Okonjo" in res.stdout
     pdf = next(tmp_path.glob("*-checklist.pdf"))
     js = next(tmp_path.glob("*-checklist.json"))
@@ -119,9 +207,11 @@ def test_sign_and_verify(runner: CliRunner, tmp_path: Path, key: Path) -> None:
 
 
 def test_wrong_passphrase_exits_2_and_changes_nothing(runner: CliRunner, tmp_path: Path,
-                                                      key: Path) -> None:
+                                                      key: Path,
+                                                      demo_check: dict[str, Any]) -> None:
     out = tmp_path / "out"
-    assert runner.invoke(app, ["checklist", str(DEMO), "--out", str(out)]).exit_code in (0, 1)
+    assert runner.invoke(app, ["checklist", str(DEMO), "--out", str(out)]).exit_code \
+        == EXIT_FOR[demo_check["verdict"]]
     before = _outputs(out)
     res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(out), "--sign", str(key)],
                         env={ENV: "not-the-passphrase"})
@@ -132,7 +222,8 @@ def test_wrong_passphrase_exits_2_and_changes_nothing(runner: CliRunner, tmp_pat
     assert _outputs(out) == before
 
 
-def test_passphrase_from_prompt(runner: CliRunner, tmp_path: Path) -> None:
+def test_passphrase_from_prompt(runner: CliRunner, tmp_path: Path,
+                                demo_check: dict[str, Any]) -> None:
     res = runner.invoke(app, ["keys", "new", "--name", "Łukasz Ørsted", "--out",
                               str(tmp_path / "l.p12")], input="prompted-pass\nprompted-pass\n")
     assert res.exit_code == 0, res.stderr
@@ -140,7 +231,7 @@ def test_passphrase_from_prompt(runner: CliRunner, tmp_path: Path) -> None:
     assert "SHA-256 fingerprint" in res.stdout and "prompted-pass" not in res.stdout
     res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(tmp_path / "o"), "--sign",
                               str(tmp_path / "l.p12")], input="prompted-pass\n")
-    assert res.exit_code in (0, 1), res.stderr
+    assert res.exit_code == EXIT_FOR[demo_check["verdict"]], res.stderr
     assert "signed by Łukasz Ørsted" in res.stdout
 
 
@@ -151,6 +242,50 @@ def test_no_passphrase_given(runner: CliRunner, tmp_path: Path) -> None:
     assert res.stderr.strip().endswith(f"error: passphrase: none given; type it at the prompt "
                                        f"or set {ENV}")
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("name", ["none.p12", "k.cert.pem"])
+def test_bad_key_file_is_reported_before_the_passphrase_prompt(
+        runner: CliRunner, folder_with_key: Path, tmp_path: Path, name: str) -> None:
+    key_file = folder_with_key / name
+    res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(tmp_path / "o"), "--sign",
+                              str(key_file)], input="")
+    assert res.exit_code == 2
+    assert "passphrase" not in res.stdout.lower()  # no prompt was shown
+    lines = res.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("error: --sign: ")
+    assert str(key_file) in lines[0] and "expected the .p12 key file" in lines[0]
+    assert not (tmp_path / "o").exists()
+
+
+def test_help_says_unsigned_checklists_are_regenerated(runner: CliRunner) -> None:
+    res = runner.invoke(app, ["checklist", "--help"], env={"COLUMNS": "200"})
+    assert res.exit_code == 0
+    text = " ".join(res.stdout.split())
+    assert "replaces an unsigned checklist" in text
+    assert "a signed checklist is never replaced" in text
+
+
+def test_unsigned_checklist_is_regenerated_but_a_signed_one_is_kept(
+        runner: CliRunner, tmp_path: Path, key: Path, demo_check: dict[str, Any]) -> None:
+    expected = EXIT_FOR[demo_check["verdict"]]
+    argv = ["checklist", str(DEMO), "--out", str(tmp_path)]
+    assert runner.invoke(app, argv).exit_code == expected
+    first = _outputs(tmp_path)
+    for name in first:
+        (tmp_path / name).write_bytes(b"an older unsigned checklist")
+    assert runner.invoke(app, argv).exit_code == expected
+    second = _outputs(tmp_path)
+    assert second.keys() == first.keys()
+    assert b"an older unsigned checklist" not in second.values()  # regenerated
+    assert all(json.loads(v)["schema"] == "supervisor.check/1"
+               for k, v in second.items() if k.endswith(".json"))
+    assert runner.invoke(app, [*argv, "--sign", str(key)], env={ENV: PASS}).exit_code == expected
+    signed = _outputs(tmp_path)
+    res = runner.invoke(app, argv)
+    assert res.exit_code == 2
+    assert "is a signed checklist and is never replaced" in res.stderr
+    assert _outputs(tmp_path) == signed
 
 
 @pytest.fixture(scope="module")
@@ -200,7 +335,8 @@ def _replace_strings(value: Any, old: str, new: str) -> Any:
     return value.replace(old, new) if isinstance(value, str) else value
 
 
-def test_markup_and_non_latin_names_print_literally(runner: CliRunner, tmp_path: Path) -> None:
+def test_markup_and_non_latin_names_print_literally(runner: CliRunner, tmp_path: Path,
+                                                    demo_check: dict[str, Any]) -> None:
     plan = tomllib.loads(DEMO.read_text(encoding="utf-8"))
     plan = _replace_strings(plan, "Teodor Lind", HOSTILE)
     plan["job"]["title"] = f"Clamp change {HOSTILE}"
@@ -208,8 +344,9 @@ def test_markup_and_non_latin_names_print_literally(runner: CliRunner, tmp_path:
     path = tmp_path / "hostile.toml"
     path.write_text(tomli_w.dumps(plan), encoding="utf-8")
     res = runner.invoke(app, ["checklist", str(path), "--out", str(tmp_path / "o")])
-    assert res.exit_code in (0, 1), res.stderr
-    pdf = next((tmp_path / "o").glob("clamp-change-b-zoe-bronte-b-*-checklist.pdf"))
+    assert res.exit_code == EXIT_FOR[demo_check["verdict"]], res.stderr  # only names changed
+    # letters are spelt out in the file name (Ł, Ø), the Chinese name is left out
+    pdf = next((tmp_path / "o").glob("clamp-change-b-zoe-bronte-b-lukasz-*-orsted-*checklist.pdf"))
     text = _pdf_text(pdf)
     assert f"Clamp change {HOSTILE}" in text
     assert f"Dive D1: {HOSTILE}" in text
