@@ -106,6 +106,55 @@ def _match(ctx: CheckContext, dive: Dive, depth: float, place: str) -> list[Any]
     return [s for s in dive.stops if s.place == place and abs(s.depth - depth) <= tol + 1e-9]
 
 
+def stop_checks(ctx: CheckContext, dive: Dive, look: Any, table: Any) -> list[StopCheck]:
+    """Each required stop of a schedule look-up against the dive's proposed stops.
+
+    Parameters
+    ----------
+    ctx : CheckContext
+        The rules' context.
+    dive : Dive
+        The dive.
+    look : LookupResult
+        A schedule look-up (``look.schedule`` not None) in ``table``.
+    table : Table
+        The decompression table looked up.
+
+    Returns
+    -------
+    list of StopCheck
+        One per stop of the schedule (at the site's depth, same place, same gas), and
+        for surface decompression one for the chamber oxygen time of its periods.
+    """
+    t_unit = table.model.conventions.depth_unit
+    checks: list[StopCheck] = []
+    for s in look.schedule.stops:
+        depth = an.from_table_depth(ctx.plan, float(s.depth), t_unit)
+        gas = parse_gas(s.gas)
+        found = [x for x in _match(ctx, dive, depth, s.place) if dive.stop_gas(x) == gas]
+        mins = sum(x.minutes for x in found) if found else None
+        checks.append(StopCheck(depth, s.place, gas.name, float(s.minutes), mins))
+    periods = look.schedule.chamber_o2_periods
+    conv = table.model.conventions
+    if periods:
+        per = float(getattr(conv, "chamber_o2_period_min", None) or an.O2_AIR_BREAK[0])
+        o2 = [x for x in dive.chamber_stops if dive.stop_gas(x).fo2 >= 0.99]
+        got = sum(x.minutes for x in o2) if o2 else None
+        checks.append(StopCheck(0.0, "chamber", "oxygen", float(periods) * per, got))
+    return checks
+
+
+def shortfall(ctx: CheckContext, checks: list[StopCheck]) -> str:
+    """The stops of ``checks`` that are missing or too short, as one phrase."""
+    return "; ".join(
+        f"{c.place} {'oxygen time' if c.depth == 0 else f'stop {c.depth:g} {ctx.unit}'} "
+        f"on {c.gas}: "
+        + (f"{c.proposed_min:g} of {c.required_min:g} min" if c.proposed_min is not None
+           else f"missing ({c.required_min:g} min required)")
+        for c in checks if not c.ok
+    )
+
+
 def table_check(ctx: CheckContext, a: an.DiveAnalysis) -> TableCheck:
     """Compare one dive's proposed stops with the reference table (module docstring).
 
@@ -148,21 +197,7 @@ def table_check(ctx: CheckContext, a: an.DiveAnalysis) -> TableCheck:
         return TableCheck("beyond-no-stop", look=look)
     if not look.permitted:
         return TableCheck("not-permitted", look=look)
-    t_unit = table.model.conventions.depth_unit
-    checks: list[StopCheck] = []
-    for s in look.schedule.stops:
-        depth = an.from_table_depth(ctx.plan, float(s.depth), t_unit)
-        gas = parse_gas(s.gas)
-        found = [x for x in _match(ctx, dive, depth, s.place) if dive.stop_gas(x) == gas]
-        mins = sum(x.minutes for x in found) if found else None
-        checks.append(StopCheck(depth, s.place, gas.name, float(s.minutes), mins))
-    periods = look.schedule.chamber_o2_periods
-    conv = table.model.conventions
-    if periods:
-        per = float(getattr(conv, "chamber_o2_period_min", None) or an.O2_AIR_BREAK[0])
-        o2 = [x for x in dive.chamber_stops if dive.stop_gas(x).fo2 >= 0.99]
-        got = sum(x.minutes for x in o2) if o2 else None
-        checks.append(StopCheck(0.0, "chamber", "oxygen", float(periods) * per, got))
+    checks = stop_checks(ctx, dive, look, table)
     ok = all(c.ok for c in checks)
     return TableCheck(
         "conforms" if ok else "short", trusted=ok and not look.needs_review, look=look,
@@ -205,10 +240,16 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         tc = table_check(ctx, a)
         look = tc.look
         if tc.state in ("no-table", "error", "not-applicable"):
+            measured, limit = {
+                "no-table": ("none", None),
+                "error": ("not loaded", None),
+                "not-applicable": (d.gas_mix.name, a.table.model.conventions.gas
+                                   if a.table is not None else None),
+            }[tc.state]
             yield r.review(
                 f"needs review: {tc.reason}; the proposed stops were checked against the model "
                 "only, which cannot stand in for a verified table",
-                dive=d.id, status=None,
+                dive=d.id, status=None, measured=measured, limit=limit,
             )
             continue
         if tc.state == "outside":
@@ -218,7 +259,7 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if tc.state == "no-schedule" and look.outside_table:
             yield r.review(
                 f"needs review: reference schedule not available: {look.reason} in {look.table}",
-                dive=d.id, status=status,
+                dive=d.id, status=status, measured="no schedule",
             )
         elif tc.state == "no-schedule":
             yield r.review(
@@ -239,18 +280,11 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         elif tc.state == "not-permitted":
             yield _breach(
                 r, look, f"the source marks the {look.mode} schedule of {where} as not to be used",
-                dive=d.id,
+                dive=d.id, measured=look.mode, limit="a schedule the source permits",
             )
         elif tc.state == "short":
-            bad = [c for c in tc.stops if not c.ok]
-            worst = bad[0]
-            text = "; ".join(
-                f"{c.place} {'oxygen time' if c.depth == 0 else f'stop {c.depth:g} {ctx.unit}'} "
-                f"on {c.gas}: "
-                + (f"{c.proposed_min:g} of {c.required_min:g} min" if c.proposed_min is not None
-                   else f"missing ({c.required_min:g} min required)")
-                for c in bad
-            )
+            worst = next(c for c in tc.stops if not c.ok)
+            text = shortfall(ctx, tc.stops)
             yield _breach(
                 r, look, f"the proposed stops do not cover {where} ({_row_state(look)}): {text}",
                 measured=worst.proposed_min if worst.proposed_min is not None else 0.0,
@@ -268,12 +302,13 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review(
                 f"needs review: the proposed stops cover {where}, but the row is "
                 f"{look.verification} and its source {look.source_status}; {what}",
-                dive=d.id, status=status,
+                dive=d.id, status=status, measured=f"{look.verification}, {look.source_status}",
+                limit="verified, VERIFIED",
             )
         if look.exceptional_exposure:
             yield r.review(
                 f"needs review: {where} is an exceptional-exposure schedule",
-                dive=d.id, status=status,
+                dive=d.id, status=status, measured="exceptional exposure",
             )
         if a.repetitive:
             yield r.review(
@@ -281,7 +316,8 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 f"{a.previous}; the table was entered with the dive's own bottom time, without "
                 "the residual nitrogen time of the repetitive group, which the reference does "
                 "not give here",
-                dive=d.id, status=status,
+                dive=d.id, status=status, measured=round(a.surface_interval_min or 0.0, 1),
+                unit="min",
             )
 
 

@@ -8,6 +8,9 @@ MEMORY): rules resting on it can only warn.
 
 from __future__ import annotations
 
+import _contract as _c
+import pytest
+from _contract import Case
 from _engine_plans import TABLE, data, only, run, second_dive, trusted_table
 
 from supervisor.rules.tables import FAMILY, NAVY_TABLE_USE
@@ -134,3 +137,52 @@ def test_unloadable_table_needs_review(tmp_path):
     bad.write_text('schema = "supervisor-table/1"\n', encoding="utf-8")
     f = only(run(_with(bad), FAMILY, "table-conformance"), "warn")
     assert "needs review" in f.message
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every rule (the fictional
+# table's rows: 60 fsw / 50 min: 10 fsw 5 min; 60 fsw / 60 min: 20 fsw 2 min, 10 fsw 12 min)
+
+CASES: dict[str, Case] = {
+    "table-conformance": Case(
+        passing=lambda tmp: _with(trusted_table(tmp), **ROW_60_50),
+        failing=lambda tmp: _with(trusted_table(tmp), bottom_time_min=55,
+                                  decompression="in-water", stops=[{"depth": 10, "minutes": 12}]),
+        measured=0.0, limit=2, citation=NAVY_TABLE_USE),
+    "table-outside": Case(
+        passing=lambda _: _with(TABLE, **ROW_60_50),
+        failing=lambda _: _with(TABLE, max_depth=100, bottom_time_min=20,
+                                decompression="in-water", stops=[{"depth": 10, "minutes": 10}]),
+        measured=100.0, limit=70.0, citation="contractor policy (policy.reference_table)"),
+}
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each table rule passes its passing plan and reports id, measured, limit and citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
+
+
+@pytest.mark.parametrize("plan", [
+    lambda: data(),
+    lambda: _with(TABLE, **ROW_60_50),
+    lambda: _with(TABLE, mode="surface-supplied-nitrox", gas="32/0"),
+    lambda: _with(TABLE, max_depth=70, bottom_time_min=40, decompression="in-water-oxygen",
+                  stops=[{"depth": 10, "minutes": 7, "gas": "oxygen"}]),
+    lambda: _with(NDL, bottom_time_min=70, decompression="in-water",
+                  stops=[{"depth": 10, "minutes": 20}]),
+    lambda: second_dive(_with(TABLE, **ROW_60_50), max_depth=60, bottom_time_min=50,
+                        descent_rate=60, decompression="in-water",
+                        stops=[{"depth": 10, "minutes": 5}], surface_interval_min=120,
+                        previous_dive="D1"),
+], ids=["no-table", "unverified-row", "other-gas", "no-mode", "no-stop-table", "repetitive"])
+def test_every_review_reports_measured_and_reason(plan):
+    """The reviews of table-conformance name a measured value and their reason."""
+    got = [f for f in run(plan(), FAMILY, "table-conformance") if f.severity in _c.BAD]
+    assert got
+    for f in got:
+        _c.reported(f)
