@@ -6,15 +6,45 @@ model, the gradient factors, the rates and the status of the coefficients, and
 records no date, so that a build is reproducible byte for byte.
 
 Every schedule comes from :func:`supervisor.engine.schedule.plan_schedules`,
-the same code path as ``supervisor schedule``, in one vectorised batch over all
-rows of a table.  Each depth gets a row at its no-stop limit (no stops), then
-one row per bottom time of :data:`BOTTOM_TIMES` beyond the limit, up to and
-including the first bottom time whose total stop time exceeds the
-``max_stop_time`` of the build (a choice of this build, not a published limit).
+the same code path as ``supervisor schedule``, in vectorised batches (one per
+pass and mode, never schedule by schedule).  Each depth gets a row at its
+no-stop limit (no stops), then one row per bottom time of :data:`BOTTOM_TIMES`
+beyond the limit, up to and including the first bottom time whose total
+in-water air stop time exceeds the ``max_stop_time`` of the build (a choice of
+this build, not a published limit).
+
+Every row carries up to three decompression modes (``schema.MODES``), each the
+engine's schedule for the same dive under the build's settings:
+
+``air``
+    in-water stops on air.
+``air_o2``
+    in-water stops on air deeper than ``o2_switch``, on oxygen from it (the
+    diver changes on arriving there, also where no stop is needed, and travels
+    on oxygen above it), with ``o2_air_break`` (oxygen minutes, air minutes)
+    cycles; the air breaks count in the stop minutes (the engine's convention),
+    the cycle starts on the change to oxygen and runs on across the oxygen stops.
+``surd_o2``
+    in-water stops at and deeper than ``surd_leave_water`` only, then the
+    surface interval (``surd_interval`` minutes from leaving the water stop to
+    arriving at ``chamber_depth`` in the chamber: ascent, time on deck,
+    compression at the descent rate), then chamber stops on oxygen on the
+    table's stop grid from ``chamber_depth`` up to the last stop with
+    ``chamber_air_break`` cycles counted in the stop minutes (the cycle starts on
+    arrival in the chamber), then the chamber's ascent to the surface.  Chamber
+    stops are listed with ``place = "chamber"``; ``chamber_o2_periods`` is the
+    chamber oxygen time (stop minutes less air breaks) in oxygen periods,
+    rounded up to the next half period.  Only for depths at or deeper than the
+    chamber depth (the engine puts the first chamber stop no deeper than the
+    dive).  The row gives no ``total_ascent`` for this mode: the file format's
+    total-ascent check counts chamber time in whole and half periods, which a
+    minute-by-minute chamber schedule does not fill; the total from leaving the
+    bottom to leaving the chamber is in the row's ``note``.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -22,11 +52,16 @@ from typing import Any
 import numpy as np
 
 from supervisor.engine.buhlmann import load_coefficients
-from supervisor.engine.schedule import ScheduleRequest, ScheduleResult, plan_schedules
+from supervisor.engine.schedule import (
+    ScheduleRequest,
+    ScheduleResult,
+    SurfaceDecompression,
+    plan_schedules,
+)
 from supervisor.errors import InputError
 from supervisor.references.canonical import atomic_write_text, dumps_table
 from supervisor.references.loader import InvalidTableError, inspect_document
-from supervisor.references.schema import SCHEMA_ID
+from supervisor.references.schema import MODE_TITLES, MODES, SCHEMA_ID
 
 #: Bottom times tried at every depth beyond its no-stop limit [min].
 BOTTOM_TIMES: tuple[int, ...] = (
@@ -54,8 +89,23 @@ class BuildSpec:
     model : str
         Coefficient set.
     max_stop_time : float
-        The rows of a depth end with the first bottom time whose total stop
-        time exceeds this [min].
+        The rows of a depth end with the first bottom time whose total
+        in-water air stop time exceeds this [min].
+    o2_switch : float or None
+        In-water air/oxygen: oxygen from this stop depth up [unit]; None builds
+        no ``air_o2`` mode.
+    o2_air_break : tuple of float
+        In-water (oxygen minutes, air minutes) cycle.
+    surd_leave_water : float or None
+        Surface decompression: in-water stops at and deeper than this depth,
+        then leave the water [unit]; None builds no ``surd_o2`` mode.
+    surd_interval : float
+        Surface interval from leaving the water stop to arriving at the chamber
+        depth [min].
+    chamber_depth : float
+        First chamber stop [unit].
+    chamber_air_break : tuple of float
+        Chamber (oxygen minutes, air minutes) cycle.
     """
 
     unit: str
@@ -68,6 +118,19 @@ class BuildSpec:
     gf_high: float = 0.85
     model: str = "zhl16c"
     max_stop_time: float = 180.0
+    o2_switch: float | None = None
+    o2_air_break: tuple[float, float] = (30.0, 5.0)
+    surd_leave_water: float | None = None
+    surd_interval: float = 5.0
+    chamber_depth: float = 50.0
+    chamber_air_break: tuple[float, float] = (30.0, 5.0)
+
+    @property
+    def modes(self) -> tuple[str, ...]:
+        """The decompression modes this build computes, in ``schema.MODES`` order."""
+        have = {"air": True, "air_o2": self.o2_switch is not None,
+                "surd_o2": self.surd_leave_water is not None}
+        return tuple(m for m in MODES if have[m])
 
     @property
     def name(self) -> str:
@@ -78,9 +141,13 @@ class BuildSpec:
 
 #: The two bundled computed tables: 30-190 fsw with stops every 10 fsw, and the
 #: metric variant 9-57 msw with stops every 3 msw.  Rates and stop grids are the
-#: defaults of ``supervisor schedule``.
-FSW_SPEC = BuildSpec("fsw", tuple(float(d) for d in range(30, 200, 10)), 75.0, 30.0, 10.0, 10.0)
-MSW_SPEC = BuildSpec("msw", tuple(float(d) for d in range(9, 60, 3)), 23.0, 9.0, 3.0, 3.0)
+#: defaults of ``supervisor schedule``; in-water oxygen from 30 fsw / 9 msw;
+#: surface decompression leaves the water after the 40 fsw / 12 msw stop and
+#: starts in the chamber at 50 fsw / 15 msw (choices of this build).
+FSW_SPEC = BuildSpec("fsw", tuple(float(d) for d in range(30, 200, 10)), 75.0, 30.0, 10.0, 10.0,
+                     o2_switch=30.0, surd_leave_water=40.0, chamber_depth=50.0)
+MSW_SPEC = BuildSpec("msw", tuple(float(d) for d in range(9, 60, 3)), 23.0, 9.0, 3.0, 3.0,
+                     o2_switch=9.0, surd_leave_water=12.0, chamber_depth=15.0)
 
 
 def model_title(model: str) -> str:
@@ -88,12 +155,43 @@ def model_title(model: str) -> str:
     return f"ZH-L16{model[-1].upper()}" if model.startswith("zhl16") else model
 
 
-def _request(spec: BuildSpec, depth: float, bottom_time: float) -> ScheduleRequest:
+def _request(spec: BuildSpec, depth: float, bottom_time: float,
+             mode: str = "air") -> ScheduleRequest:
+    """The engine request of one row in one mode (the options of ``supervisor schedule``)."""
+    extra: dict[str, Any] = {}
+    if mode == "air_o2":
+        extra = {"deco_gases": (("oxygen", float(spec.o2_switch)),),  # type: ignore[arg-type]
+                 "o2_air_break": tuple(spec.o2_air_break)}
+    elif mode == "surd_o2":
+        extra = {"surface_decompression": SurfaceDecompression(
+            leave_water_depth=float(spec.surd_leave_water),  # type: ignore[arg-type]
+            surface_interval_min=spec.surd_interval, chamber_depth=spec.chamber_depth,
+            chamber_gas="oxygen", air_break=tuple(spec.chamber_air_break))}
     return ScheduleRequest(
         depth=depth, bottom_time_min=bottom_time, unit=spec.unit, gas="air", model=spec.model,
         gf_low=spec.gf_low, gf_high=spec.gf_high, descent_rate=spec.descent_rate,
         ascent_rate=spec.ascent_rate, stop_step=spec.stop_step, last_stop=spec.last_stop,
+        **extra,
     )
+
+
+def oxygen_minutes(stop_minutes: float, air_break: tuple[float, float]) -> float:
+    """Oxygen minutes in ``stop_minutes`` of stops that count their air breaks.
+
+    The (oxygen, air) cycle starts with oxygen and runs on across the stops
+    (the engine's convention): every full cycle gives its oxygen minutes, and a
+    part cycle gives up to one oxygen period.
+    """
+    o2, air = air_break
+    full, rest = divmod(float(stop_minutes), o2 + air)
+    return full * o2 + min(rest, o2)
+
+
+def chamber_periods(o2_minutes: float, period: float) -> float:
+    """Chamber oxygen minutes in oxygen periods, rounded up to the next half period."""
+    if o2_minutes <= 0:
+        return 0.0
+    return math.ceil(o2_minutes / (period / 2) - 1e-9) / 2
 
 
 def _num(x: float) -> int | float:
@@ -101,19 +199,47 @@ def _num(x: float) -> int | float:
     return int(r) if r.is_integer() else r
 
 
-def _row(spec: BuildSpec, res: ScheduleResult) -> dict[str, Any]:
+def _stops(res: ScheduleResult) -> list[dict[str, Any]]:
+    return [{"depth": _num(s.depth), "minutes": int(s.minutes), "gas": s.gas,
+             "place": s.place} for s in res.stops]
+
+
+def _surd_chamber_o2(spec: BuildSpec, res: ScheduleResult) -> float:
+    chamber = sum(s.minutes for s in res.stops if s.place == "chamber")
+    return oxygen_minutes(chamber, spec.chamber_air_break)
+
+
+_LABEL = {"air": "air", "air_o2": "air/oxygen", "surd_o2": "surface decompression"}
+
+
+def _row(spec: BuildSpec, by_mode: dict[str, ScheduleResult]) -> dict[str, Any]:
+    res = by_mode["air"]
     req = res.request
-    stops = [{"depth": _num(s.depth), "minutes": int(s.minutes), "gas": "air",
-              "place": "water"} for s in res.stops]
     row: dict[str, Any] = {"depth": _num(req.depth), "bottom_time": _num(req.bottom_time_min)}
     if res.stops:
         row["time_to_first_stop"] = _num((req.depth - res.stops[0].depth) / spec.ascent_rate)
+    gf = [f"{_LABEL[m]} {100 * r.surfacing_gf:.0f} % (compartment "
+          f"{r.controlling_compartment})" for m, r in by_mode.items()]
+    note = ("model surfacing supersaturation, share of the M-value gradient: " + ", ".join(gf))
+    surd = by_mode.get("surd_o2")
+    if surd is not None and surd.surface_interval_max_gf is not None:
+        # the engine went through the surface interval and the chamber (even where no
+        # chamber stop needs time, the chamber ascent is still on oxygen)
+        o2 = _surd_chamber_o2(spec, surd)
+        note += (f"; surface decompression: {_num(surd.total_ascent_min)} min from leaving the "
+                 f"bottom to leaving the chamber, chamber oxygen stops {_num(o2)} min, "
+                 f"supersaturation peaks at {100 * surd.surface_interval_max_gf:.0f} % of the "
+                 "M-value gradient during the surface interval")
+    row.update({"repetitive_group": "", "exceptional_exposure": False, "note": note})
+    for mode, r in by_mode.items():
+        sched: dict[str, Any] = {"stops": _stops(r)}
+        if mode == "surd_o2":
+            sched["chamber_o2_periods"] = _num(
+                chamber_periods(_surd_chamber_o2(spec, r), spec.chamber_air_break[0]))
+        else:
+            sched["total_ascent"] = _num(r.total_ascent_min)
+        row[mode] = sched
     row.update({
-        "repetitive_group": "",
-        "exceptional_exposure": False,
-        "note": f"model surfacing supersaturation {100 * res.surfacing_gf:.0f} % of the M-value "
-                f"gradient (compartment {res.controlling_compartment})",
-        "air": {"stops": stops, "total_ascent": _num(res.total_ascent_min)},
         "source_status": "COMPUTED",
         "verification": "unverified", "verified_by": "", "verified_on": "",
         "verification_method": "", "row_hash": "",
@@ -121,11 +247,13 @@ def _row(spec: BuildSpec, res: ScheduleResult) -> dict[str, Any]:
     return row
 
 
+
 def build_rows(spec: BuildSpec) -> tuple[list[dict[str, Any]], list[ScheduleResult]]:
     """Compute the rows of one table.
 
-    Two vectorised passes of :func:`plan_schedules`: one for the no-stop limit
-    at every depth, one for every (depth, bottom time) beyond it.
+    Vectorised passes of :func:`plan_schedules`: one for the no-stop limit at
+    every depth, one for every (depth, bottom time) beyond it in air (which
+    fixes the rows), then one per further mode over the rows kept.
 
     Parameters
     ----------
@@ -134,7 +262,8 @@ def build_rows(spec: BuildSpec) -> tuple[list[dict[str, Any]], list[ScheduleResu
     Returns
     -------
     tuple
-        (raw rows in depth then bottom-time order, the engine results behind them).
+        (raw rows in depth then bottom-time order, the in-water air engine
+        results behind them).
     """
     depths = np.asarray(spec.depths, dtype=float)
     first = [max(1.0, float(np.ceil(d / spec.descent_rate))) for d in depths]
@@ -158,7 +287,62 @@ def build_rows(spec: BuildSpec) -> tuple[list[dict[str, Any]], list[ScheduleResu
         if over.size:
             keep[idx[idx > over[0]]] = False  # keep the first row beyond the cap, drop the rest
     kept = [r for r, k in zip(results, keep, strict=True) if k]
-    return [_row(spec, r) for r in kept], kept
+    by_row: list[dict[str, ScheduleResult]] = [{"air": r} for r in kept]
+    for mode in spec.modes[1:]:
+        # surface decompression needs the chamber depth within the dive (engine rule)
+        idx = [k for k, r in enumerate(kept)
+               if mode != "surd_o2" or r.request.depth >= spec.chamber_depth - 1e-9]
+        reqs = [_request(spec, kept[k].request.depth, kept[k].request.bottom_time_min, mode)
+                for k in idx]
+        for k, res in zip(idx, plan_schedules(reqs) if reqs else [], strict=True):
+            by_row[k][mode] = res
+    return [_row(spec, m) for m in by_row], kept
+
+
+def _mode_conventions(spec: BuildSpec) -> tuple[dict[str, Any], list[str]]:
+    """The conventions keys and the convention notes of the modes beyond in-water air."""
+    u = spec.unit
+    conv: dict[str, Any] = {}
+    notes: list[str] = []
+    if "air_o2" in spec.modes:
+        o2, air = spec.o2_air_break
+        conv.update({"o2_period_min": float(o2), "air_break_min": float(air),
+                     "air_breaks_in_stop_time": True})
+        notes.append(
+            f"In-water air/oxygen (air_o2): air at the stops deeper than {spec.o2_switch:g} {u}, "
+            f"oxygen from the {spec.o2_switch:g} {u} stop up: the diver changes to oxygen on "
+            f"arriving at {spec.o2_switch:g} {u} (from a bottom at or above it, at the first "
+            "stop depth above the bottom), also where no stop is needed there, and travels and "
+            f"ascends on oxygen above it; cycles of {o2:g} min oxygen and {air:g} min air start "
+            "on the change to oxygen and run on across the oxygen stops; the air breaks count "
+            "in the stop minutes (a stop may end, and the next begin, within an air break). "
+            f"Oxygen at {spec.o2_switch:g} {u} is above a PO2 of 1.6 atm (the top of the NOAA "
+            "CNS table): the engine warns for every such schedule.")
+    if "surd_o2" in spec.modes:
+        o2, air = spec.chamber_air_break
+        conv.update({"chamber_o2_period_min": float(o2), "chamber_air_break_min": float(air),
+                     "surface_interval_min": float(spec.surd_interval),
+                     "chamber_travel_min": _num(spec.chamber_depth / spec.ascent_rate)})
+        notes.append(
+            f"Surface decompression on oxygen (surd_o2): the in-water air stops at and deeper "
+            f"than {spec.surd_leave_water:g} {u}, then a surface interval of "
+            f"{spec.surd_interval:g} min from leaving the water stop (or, with no stop that "
+            "deep, the depth of the first stop) to arriving at "
+            f"{spec.chamber_depth:g} {u} in the chamber (ascent at {spec.ascent_rate:g} "
+            f"{u}/min, air on deck, compression on air at {spec.descent_rate:g} {u}/min), then "
+            f"chamber stops on oxygen every {spec.stop_step:g} {u} from {spec.chamber_depth:g} "
+            f"to {spec.last_stop:g} {u} (those needing no time left out) in cycles of {o2:g} "
+            f"min oxygen and {air:g} min air counted in the stop minutes, starting on arrival "
+            f"in the chamber; chamber travel at {spec.ascent_rate:g} {u}/min "
+            f"(chamber_travel_min, {spec.chamber_depth:g} {u} to the surface). Chamber stops "
+            "are listed with place = chamber; chamber_o2_periods is the chamber oxygen time "
+            f"(stop minutes less air breaks) in {o2:g}-min periods, rounded up to the next "
+            "half period. No total_ascent is given for this mode (the file format's check "
+            "counts chamber time in whole and half periods, which these minute-by-minute "
+            "chamber stops do not fill); the row note gives the total and the peak "
+            "supersaturation of the surface interval. Only depths at or deeper than "
+            f"{spec.chamber_depth:g} {u} have this mode.")
+    return conv, notes
 
 
 def build_document(spec: BuildSpec) -> dict[str, Any]:
@@ -170,11 +354,20 @@ def build_document(spec: BuildSpec) -> dict[str, Any]:
     mt = model_title(spec.model)
     u = spec.unit
     depths = f"{spec.depths[0]:g}-{spec.depths[-1]:g} {u}"
+    modes = ", ".join(MODE_TITLES[m] for m in spec.modes)
+    mode_conv, mode_notes = _mode_conventions(spec)
+    options = {"air_o2": f"--deco-gas oxygen@{spec.o2_switch:g} --o2-air-break "
+                         f"{spec.o2_air_break[0]:g}/{spec.o2_air_break[1]:g}",
+               "surd_o2": f"--surface-decompression {spec.surd_leave_water:g} "
+                          f"--surface-interval {spec.surd_interval:g} --chamber-depth "
+                          f"{spec.chamber_depth:g} --chamber-air-break "
+                          f"{spec.chamber_air_break[0]:g}/{spec.chamber_air_break[1]:g}"}
+    same = "; ".join(f"{m}: {options[m]}" for m in spec.modes if m in options)
     return {
         "schema": SCHEMA_ID,
         "name": spec.name,
         "kind": "decompression",
-        "title": f"Air decompression schedules computed by this project from {mt} "
+        "title": f"Air decompression schedules ({modes}) computed by this project from {mt} "
                  f"with gradient factors {gf} ({depths}): model output, not a published table",
         "provenance": {
             "source_document": f"Computed by this project (supervisor tables build) from the "
@@ -182,18 +375,19 @@ def build_document(spec: BuildSpec) -> dict[str, Any]:
                                "not a published table",
             "issuing_body": "this project (computed; not issued by any diving authority)",
             "edition": f"model {spec.model}, gradient factors {gf}, coefficients {status}",
-            "table": f"air, in-water air stops every {spec.stop_step:g} {u}, {depths}",
+            "table": f"air; {modes}; stops every {spec.stop_step:g} {u}, {depths}",
             "date": "not recorded: computed, so that the build is reproducible byte for byte",
             "licence": "output of this project's software (MIT licence); no published table "
                        "is reproduced",
             "source_status": "COMPUTED",
             "transcribed_by": "supervisor tables build",
             "transcribed_on": "",
-            "notes": f"Every schedule is the engine's (the same as `supervisor schedule` with "
-                     f"the same options). The {spec.model} coefficients used have source "
-                     f"status {status}; the schedules are no more certain than that. Model "
-                     "output for planning review, not a table issued by any authority. "
-                     "Regenerate with `supervisor tables build`.",
+            "notes": "Every schedule is the engine's (the same as `supervisor schedule` with "
+                     "the same options" + (f"; {same}" if same else "") + f"). The "
+                     f"{spec.model} coefficients used have source status {status}; the "
+                     "schedules are no more certain than that. Model output for planning "
+                     "review, not a table issued by any authority. Regenerate with "
+                     "`supervisor tables build`.",
         },
         "conventions": {
             "depth_unit": u,
@@ -216,13 +410,16 @@ def build_document(spec: BuildSpec) -> dict[str, Any]:
                 "max_stop_time": float(spec.max_stop_time),
                 "bottom_times": [float(t) for t in BOTTOM_TIMES],
             },
-            "notes": f"Stops whole minutes, travel at {spec.ascent_rate:g} {u}/min excluded; "
-                     f"descent at {spec.descent_rate:g} {u}/min. Each depth starts at its "
-                     "model no-stop limit; its rows end with the first bottom time whose total "
-                     f"stop time exceeds {spec.max_stop_time:g} min (a choice of this build).",
+            "notes": " ".join([
+                f"Stops whole minutes, travel at {spec.ascent_rate:g} {u}/min excluded; descent "
+                f"at {spec.descent_rate:g} {u}/min. Each depth starts at its model no-stop "
+                "limit; its rows end with the first bottom time whose total in-water air stop "
+                f"time exceeds {spec.max_stop_time:g} min (a choice of this build).",
+                *mode_notes]),
             "stop_step": float(spec.stop_step),
             "last_stop": float(spec.last_stop),
             "stop_time_includes_travel": False,
+            **mode_conv,
         },
         "rows": rows,
     }

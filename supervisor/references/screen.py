@@ -15,8 +15,10 @@ interpolation between the two neighbours on each axis.  A flag is a prompt to
 re-read the row in the source, not a finding about the schedule: the model is
 not the table's model, and its coefficients carry their own source status.
 
-Surface-decompression schedules (chamber periods) and unlimited no-stop rows
-are listed as not screened.
+In-water air and in-water air/oxygen schedules are screened (air breaks as the
+file's conventions place them).  Surface-decompression schedules (surface
+interval and chamber phase) and unlimited no-stop rows are listed as not
+screened.
 """
 
 from __future__ import annotations
@@ -127,8 +129,21 @@ def _is_oxygen(gas: str) -> bool:
     return parse_gas(gas).fo2 >= 1.0 - 1e-9
 
 
+def oxygen_switch_depth(table: Table) -> float | None:
+    """Depth from which a table's in-water air/oxygen schedules breathe oxygen [unit].
+
+    The file format has no column for it, so it is read off the table: the
+    deepest in-water oxygen stop of any ``air_o2`` schedule (None when there is
+    none).  Above it the diver is taken to breathe oxygen also while travelling
+    and where no oxygen stop is needed, as in the schedules this project computes.
+    """
+    depths = [x.depth for r in table.rows if getattr(r, "air_o2", None) is not None
+              for x in r.air_o2.stops if x.place == "water" and _is_oxygen(x.gas)]
+    return max(depths) if depths else None
+
+
 def schedule_profile(table: Table, row: DecompressionRow, mode: str,
-                     descent_rate: float) -> Profile:
+                     descent_rate: float, o2_switch: float | None = None) -> Profile:
     """Build the dive profile of one in-water schedule under the file's conventions.
 
     Parameters
@@ -141,12 +156,20 @@ def schedule_profile(table: Table, row: DecompressionRow, mode: str,
         An in-water mode present in the row.
     descent_rate : float
         Descent rate [unit/min]; the descent counts in the bottom time.
+    o2_switch : float, optional
+        Depth from which the diver breathes oxygen while travelling, also where
+        no oxygen stop is needed (:func:`oxygen_switch_depth`); by default the
+        gas changes only at the stops.
 
     Returns
     -------
     Profile
         Descent, bottom, travel and stops (with air breaks on oxygen where the
-        conventions give a period), ascent to the surface.
+        conventions give a period), ascent to the surface.  With
+        ``air_breaks_in_stop_time`` the breaks are taken out of the stop minutes
+        and the oxygen/air cycle runs on across the oxygen stops (a stop may end
+        within a break; the cycle restarts when oxygen follows another gas);
+        otherwise a break follows each full oxygen period except at the end.
     """
     c = table.model.conventions
     s: Schedule = getattr(row, mode)
@@ -157,17 +180,50 @@ def schedule_profile(table: Table, row: DecompressionRow, mode: str,
     if row.bottom_time - t_desc > 0:
         p.add(row.depth, row.bottom_time - t_desc, label="bottom")
     cur, gas = row.depth, bottom_gas
+    if o2_switch is not None and row.depth <= o2_switch + _EPS:
+        # the gas changes on arrival at a stop depth: from a bottom at or above the
+        # switch depth, at the first stop depth above the bottom
+        k = math.ceil((row.depth - c.last_stop) / c.stop_step - _EPS) - 1
+        o2_switch = c.last_stop + max(k, 0) * c.stop_step
     period, brk = c.o2_period_min, c.air_break_min
     o2_run = 0.0
     o2_left = sum(x.minutes for x in s.stops if _is_oxygen(x.gas))
+
+    def travel_to(depth: float, place: str, label: str) -> None:
+        nonlocal cur, gas, o2_run
+        if o2_switch is not None and not _is_oxygen(gas) and depth < o2_switch - _EPS \
+                and cur > o2_switch + _EPS:
+            # on air to the switch depth, on oxygen from there (a new oxygen cycle)
+            p.add(o2_switch, (cur - o2_switch) / c.ascent_rate, gas=gas, place=place,
+                  label=label)
+            cur, gas, o2_run = o2_switch, "oxygen", 0.0
+        if cur > depth:
+            p.add(depth, (cur - depth) / c.ascent_rate, gas=gas, place=place, label=label)
+
     for k, stop in enumerate(s.stops):
         travel = (cur - stop.depth) / c.ascent_rate
-        if travel > 0:
-            p.add(stop.depth, travel, gas=gas, place=stop.place, label="travel")
+        travel_to(stop.depth, stop.place, "travel")
         hold = stop.minutes - (travel if c.stop_time_includes_travel and k > 0 else 0.0)
         hold = max(hold, 0.0)
+        if _is_oxygen(stop.gas) and not _is_oxygen(gas):
+            o2_run = 0.0  # a new oxygen phase starts a new cycle
         gas = stop.gas
-        if _is_oxygen(gas) and period and brk:
+        if _is_oxygen(gas) and period and brk and c.air_breaks_in_stop_time:
+            # the breaks are part of the stop minutes: the oxygen/air cycle runs on over the
+            # oxygen stops, and a stop may end (and the next begin) within a break
+            remaining = hold
+            while remaining > _EPS:
+                on_o2 = o2_run < period - _EPS
+                chunk = min(remaining, (period if on_o2 else period + brk) - o2_run)
+                p.add(stop.depth, chunk, gas=gas if on_o2 else "air", place=stop.place,
+                      label="stop" if on_o2 else "air break")
+                o2_run += chunk
+                remaining -= chunk
+                if o2_run >= period + brk - _EPS:
+                    o2_run = 0.0
+        elif _is_oxygen(gas) and period and brk:
+            # the breaks come on top of the stop minutes: one after each full period,
+            # none after the last oxygen minute
             remaining = hold
             while remaining > _EPS:
                 chunk = min(remaining, period - o2_run)
@@ -177,15 +233,12 @@ def schedule_profile(table: Table, row: DecompressionRow, mode: str,
                 o2_left -= chunk
                 if o2_run >= period - _EPS and o2_left > _EPS:
                     p.add(stop.depth, brk, gas="air", place=stop.place, label="air break")
-                    if c.air_breaks_in_stop_time:
-                        remaining -= brk
-                        o2_left -= brk
                     o2_run = 0.0
         elif hold > 0:
             p.add(stop.depth, hold, gas=gas, place=stop.place, label="stop")
         cur = stop.depth
     if cur > 0:
-        p.add(0.0, cur / c.ascent_rate, gas=gas, label="ascent")
+        travel_to(0.0, "water", "ascent")
     return p
 
 
@@ -289,6 +342,7 @@ def screen_table(table: Table, model: str = "zhl16c", descent_rate: float | None
         raise InputError("--descent-rate", f"got {descent_rate!r}; expected a rate > 0 "
                          f"{c.depth_unit}/min")
     coeff = load_coefficients(model)
+    o2_switch = oxygen_switch_depth(table) if table.kind == "decompression" else None
     entries: list[dict[str, Any]] = []
     for i, r in enumerate(table.rows):
         if table.kind == "no-stop":
@@ -308,9 +362,16 @@ def screen_table(table: Table, model: str = "zhl16c", descent_rate: float | None
                  "time": r.bottom_time, "line": 0, "gf": None, "note": "", "flagged": False,
                  "nearest": None}
             if mode == "surd_o2":
-                e["note"] = "surface decompression: not screened"
+                e["note"] = ("surface decompression: not screened (the surface interval and "
+                             "chamber phase are not modelled by screening)")
+            elif mode != "air" and not getattr(r, mode).stops and r.air is not None \
+                    and not r.air.stops:
+                # no stops: the same dive as in-water air, screened there; its figure is not
+                # a neighbour of the schedules that ascend on oxygen
+                e["note"] = "no stops: the same dive as in-water air (screened there)"
             else:
-                e["profile"] = schedule_profile(table, r, mode, descent_rate)
+                e["profile"] = schedule_profile(table, r, mode, descent_rate,
+                                                o2_switch if mode == "air_o2" else None)
             entries.append(e)
     # every row through the model in one vectorised batch, not schedule by schedule
     todo = [e for e in entries if e.get("profile") is not None]

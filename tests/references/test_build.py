@@ -1,4 +1,5 @@
-"""Tables computed by this project from ZH-L16C: one code path with `supervisor schedule`,
+"""Tables computed by this project from ZH-L16C: one code path with `supervisor schedule`
+in every mode (in-water air, in-water air/oxygen, surface decompression on oxygen),
 vectorised, byte-for-byte reproducible, labelled as model output."""
 
 from __future__ import annotations
@@ -16,7 +17,14 @@ from supervisor.engine.schedule import ScheduleRequest, plan_schedule
 from supervisor.errors import InputError
 from supervisor.references import build as build_mod
 from supervisor.references import load_table
-from supervisor.references.build import FSW_SPEC, MSW_SPEC, build_document, build_tables
+from supervisor.references.build import (
+    FSW_SPEC,
+    MSW_SPEC,
+    build_document,
+    build_tables,
+    chamber_periods,
+    oxygen_minutes,
+)
 from supervisor.resources import tables_dir
 
 
@@ -38,29 +46,58 @@ def test_build_is_byte_reproducible_and_matches_bundled(built, tmp_path):
             "`supervisor tables build --out-dir tables/decompression --force`")
 
 
-@pytest.mark.parametrize(("spec", "depth", "bt"), [
-    (FSW_SPEC, 100.0, 40.0),
-    (FSW_SPEC, 150.0, 30.0),
-    (FSW_SPEC, 60.0, 90.0),
-    (MSW_SPEC, 30.0, 40.0),
+def _options(spec, mode):
+    """`supervisor schedule` options of a build mode (the conventions of the file)."""
+    if mode == "air_o2":
+        return ["--deco-gas", f"oxygen@{spec.o2_switch:g}", "--o2-air-break",
+                f"{spec.o2_air_break[0]:g}/{spec.o2_air_break[1]:g}"]
+    if mode == "surd_o2":
+        return ["--surface-decompression", f"{spec.surd_leave_water:g}", "--surface-interval",
+                f"{spec.surd_interval:g}", "--chamber-depth", f"{spec.chamber_depth:g}",
+                "--chamber-air-break",
+                f"{spec.chamber_air_break[0]:g}/{spec.chamber_air_break[1]:g}"]
+    return []
+
+
+@pytest.mark.parametrize(("spec", "depth", "bt", "mode"), [
+    (FSW_SPEC, 100.0, 40.0, "air"),
+    (FSW_SPEC, 150.0, 30.0, "air"),
+    (FSW_SPEC, 60.0, 90.0, "air"),
+    (MSW_SPEC, 30.0, 40.0, "air"),
+    (FSW_SPEC, 110.0, 40.0, "air_o2"),
+    (FSW_SPEC, 190.0, 40.0, "air_o2"),
+    (MSW_SPEC, 30.0, 40.0, "air_o2"),
+    (FSW_SPEC, 110.0, 40.0, "surd_o2"),
+    (FSW_SPEC, 190.0, 40.0, "surd_o2"),
+    (MSW_SPEC, 30.0, 40.0, "surd_o2"),
 ])
-def test_built_row_equals_schedule_command(built, spec, depth, bt):
+def test_built_row_equals_schedule_command(built, spec, depth, bt, mode):
     t = load_table(built / f"{spec.name}.toml")
     row = next(r for r in t.rows if r.depth == depth and r.bottom_time == bt)
+    sched = getattr(row, mode)
     res = CliRunner().invoke(app, [
         "schedule", "--depth", f"{depth:g}", "--bottom-time", f"{bt:g}", "--unit", spec.unit,
         "--gf", "30/85", "--descent-rate", f"{spec.descent_rate:g}",
         "--ascent-rate", f"{spec.ascent_rate:g}", "--stop-step", f"{spec.stop_step:g}",
-        "--last-stop", f"{spec.last_stop:g}", "--json"])
+        "--last-stop", f"{spec.last_stop:g}", *_options(spec, mode), "--json"])
     assert res.exit_code == 0, res.output
     js = json.loads(res.stdout)
-    assert [(s["depth"], s["minutes"], s["gas"]) for s in js["stops"]] == \
-        [(s.depth, s.minutes, s.gas) for s in row.air.stops]
-    assert row.air.total_ascent == pytest.approx(js["total_ascent_min"], abs=0.006)
-    assert row.air.stops  # these rows are decompression dives
+    assert [(s["depth"], s["minutes"], s["gas"], s["place"]) for s in js["stops"]] == \
+        [(s.depth, s.minutes, s.gas, s.place) for s in sched.stops]
+    assert sched.stops  # these rows are decompression dives
+    if mode == "surd_o2":
+        # no total_ascent in this mode (see the conventions); the note carries the total
+        assert sched.total_ascent is None
+        assert f"{js['total_ascent_min']:g} min from leaving the bottom" in row.note
+        chamber = sum(s["minutes"] for s in js["stops"] if s["place"] == "chamber")
+        assert sched.chamber_o2_periods == chamber_periods(
+            oxygen_minutes(chamber, spec.chamber_air_break), spec.chamber_air_break[0])
+        assert {s.place for s in sched.stops} == {"water", "chamber"}
+    else:
+        assert sched.total_ascent == pytest.approx(js["total_ascent_min"], abs=0.006)
 
 
-def test_build_is_one_batch_per_pass(monkeypatch):
+def test_build_is_one_batch_per_pass_and_mode(monkeypatch):
     calls = []
     real = build_mod.plan_schedules
 
@@ -69,27 +106,62 @@ def test_build_is_one_batch_per_pass(monkeypatch):
         return real(requests)
 
     monkeypatch.setattr(build_mod, "plan_schedules", counting)
-    spec = replace(FSW_SPEC, depths=(60.0, 100.0, 150.0))
+    spec = replace(FSW_SPEC, depths=(40.0, 60.0, 100.0, 150.0))
     rows, _ = build_mod.build_rows(spec)
-    assert calls[0] == 3 and len(calls) == 2 and calls[1] >= len(rows) > 10
+    # no-stop probe, in-water air, then one batch per further mode over the rows kept
+    assert calls[0] == 4 and len(calls) == 4 and calls[1] >= len(rows) > 10
+    assert calls[2] == len(rows)
+    assert calls[3] == sum(r["depth"] >= spec.chamber_depth for r in rows) < len(rows)
+
+
+def test_oxygen_minutes_and_chamber_periods():
+    # 30 min oxygen / 5 min air, breaks counted in the stop minutes, cycle run on
+    assert oxygen_minutes(12, (30, 5)) == 12
+    assert oxygen_minutes(33, (30, 5)) == 30  # left within the first break
+    assert oxygen_minutes(82, (30, 5)) == 72  # two full cycles and 12 min
+    assert [chamber_periods(m, 30) for m in (0, 1, 15, 15.5, 30, 31, 72)] == \
+        [0, 0.5, 0.5, 1.0, 1.0, 1.5, 2.5]
 
 
 def test_build_layout_and_labels(built):
     for spec in (FSW_SPEC, MSW_SPEC):
         t = load_table(built / f"{spec.name}.toml")
         p = t.model.provenance
+        c = t.model.conventions
         assert p.source_status == "COMPUTED" and p.transcribed_on == ""
         assert "not a published table" in t.model.title and "not a published table" in \
             p.source_document
-        assert t.model.conventions.model.name == "zhl16c"
-        assert t.model.conventions.model.coefficient_status in p.edition
+        assert "computed by this project" in t.model.title
+        assert c.model.name == "zhl16c"
+        assert c.model.coefficient_status in p.edition
         assert {s.source_status for s in t.row_states} == {"COMPUTED"}
         assert t.n_verified == 0
         assert sorted({r.depth for r in t.rows}) == list(spec.depths)
+        # the conventions of the oxygen modes are recorded
+        assert (c.o2_period_min, c.air_break_min, c.air_breaks_in_stop_time) == (30, 5, True)
+        assert (c.chamber_o2_period_min, c.chamber_air_break_min, c.surface_interval_min) == \
+            (30, 5, 5)
+        assert f"oxygen from the {spec.o2_switch:g} {spec.unit} stop" in c.notes
+        assert f"arriving at {spec.chamber_depth:g} {spec.unit} in the chamber" in c.notes
         for r in t.rows:
             assert all(s.depth % spec.stop_step == 0 and s.gas == "air" for s in r.air.stops)
+            assert r.air_o2 is not None
+            for s in r.air_o2.stops:
+                assert s.place == "water"
+                assert s.gas == ("oxygen" if s.depth <= spec.o2_switch else "air")
+            if r.depth < spec.chamber_depth:
+                assert r.surd_o2 is None  # the first chamber stop is within the dive only
+                continue
+            water = [s for s in r.surd_o2.stops if s.place == "water"]
+            chamber = [s for s in r.surd_o2.stops if s.place == "chamber"]
+            assert r.surd_o2.stops == water + chamber
+            assert all(s.depth >= spec.surd_leave_water and s.gas == "air" for s in water)
+            assert all(s.depth <= spec.chamber_depth and s.gas == "oxygen" and
+                       s.depth % spec.stop_step == 0 for s in chamber)
+            assert r.surd_o2.total_ascent is None and r.surd_o2.chamber_o2_periods is not None
         first = [next(r for r in t.rows if r.depth == d) for d in spec.depths]
-        assert all(not r.air.stops for r in first)  # each depth opens with its no-stop limit
+        # each depth opens with its no-stop limit: no stops in any mode
+        assert all(not s.stops for r in first for s in r.schedules().values())
 
 
 def test_build_first_row_is_engine_no_stop_limit(built):
