@@ -129,6 +129,38 @@ def test_schedule_mode_missing_is_outside(deco):
     assert not r.outside_table and r.schedule.chamber_o2_periods == 1.5
 
 
+@pytest.mark.parametrize("name", ["zhl16c-gf30-85-air-fsw", "zhl16c-gf30-85-air-msw"])
+def test_computed_tables_give_every_mode(name):
+    t = load_table(name)
+    unit = t.model.conventions.depth_unit
+    depth, bt = (105, 38) if unit == "fsw" else (32, 38)   # entered at 110 fsw / 33 msw, 40 min
+    looks = {m: lookup_schedule(t, depth, bt, mode=m) for m in ("air", "air_o2", "surd_o2")}
+    for mode, r in looks.items():
+        assert not r.outside_table and r.mode == mode, r.reason
+        assert r.bottom_time == 40 and r.depth == (110 if unit == "fsw" else 33)
+        # computed rows are unverified model output: never more than "needs review"
+        assert r.source_status == "COMPUTED" and r.verification == "unverified"
+        assert r.needs_review
+    air_o2 = looks["air_o2"].schedule.stops
+    assert {s.gas for s in air_o2} == {"air", "oxygen"}
+    assert all(s.place == "water" for s in air_o2)
+    surd = looks["surd_o2"]
+    assert {s.place for s in surd.schedule.stops} == {"water", "chamber"}
+    assert all(s.gas == "oxygen" for s in surd.schedule.stops if s.place == "chamber")
+    assert surd.schedule.chamber_o2_periods >= 0.5
+    assert surd.to_dict()["chamber_o2_periods"] == surd.schedule.chamber_o2_periods
+    assert surd.to_dict()["total_ascent_min"] is None  # the row note carries the total
+
+
+def test_computed_table_has_no_surface_decompression_shallower_than_the_chamber():
+    t = load_table("zhl16c-gf30-85-air-fsw")
+    r = lookup_schedule(t, 40, 120, mode="surd_o2")
+    assert r.outside_table and r.row is not None
+    assert "no surface decompression on oxygen schedule" in r.reason
+    assert "in-water air/oxygen" in r.reason
+    assert not lookup_schedule(t, 40, 120, mode="air_o2").outside_table
+
+
 def test_schedule_not_permitted_needs_review(tmp_path):
     doc = fixture_doc("decompression")
     doc["rows"][2]["air"]["permitted"] = False
