@@ -23,9 +23,14 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 
+from supervisor import analysis as an
 from supervisor.findings import Finding
+from supervisor.gas import parse_gas
 from supervisor.plan import CHAMBER_COMPRESSION_FSW_PER_MIN, Dive, Stop
-from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.references import LookupResult, lookup_schedule
+from supervisor.rules.base import NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.regulatory import READY, chamber_state
+from supervisor.rules.tables import shortfall, stop_checks
 
 FAMILY = Family("procedure", "Decompression procedure")
 
@@ -36,6 +41,8 @@ NAVY_REV4 = "U.S. Navy Diving Manual, Rev 4 Change A"
 NAVY_DESCENT_MAX_FSW_MIN = 75.0  # ch. 9 descent rate, from memory
 NAVY_ASCENT_MIN_FSW_MIN = 20.0  # ch. 14 tolerance, OLDER-EDITION (Rev 4 Change A)
 NAVY_ASCENT_MAX_FSW_MIN = 40.0  # idem
+NAVY_ASCENT_FSW_MIN = 30.0  # ascent rate the tables assume, Rev 4 Change A ch. 9, OLDER-EDITION
+FIRST_STOP_DELAY_MAX_MIN = 1.0  # delay reaching the first stop that changes the schedule, SECONDARY
 SURD_INTERVAL_MAX_MIN = 5.0  # ch. 9 SurDO2, SECONDARY; Rev 4 Change A ch. 14 OLDER-EDITION
 SURD_LATE_MAX_MIN = 7.0  # SurDO2 late-arrival band, from memory
 O2_PERIOD_MIN = 30.0  # SurDO2 chamber period and in-water O2 run, SECONDARY
@@ -210,17 +217,19 @@ def last_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 
 @FAMILY.rule(
     "proc-time-to-first-stop",
-    title="Travel time to the first stop",
+    title="Travel time to the first stop: no delay over 1 min",
     citation=f"{NAVY_REV7} (delay in reaching the first stop)",
     source_status="SECONDARY",
     kind="reference",
 )
 def time_to_first_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Report the planned travel time from the bottom to the first water stop.
+    """The planned travel from the bottom to the first water stop against the table's.
 
-    A delay of more than 1 min reaching the first stop changes the schedule
-    (deeper than 50 fsw: added to bottom time; shallower: added to the first
-    stop), SECONDARY.
+    The tables assume an ascent at 30 fsw/min (Rev 4 Change A, OLDER-EDITION); a
+    delay of more than 1 min reaching the first stop changes the schedule (deeper
+    than 50 fsw: added to the bottom time; shallower: added to the first stop),
+    SECONDARY.  The planned travel at the dive's ascent rate is compared with the
+    travel at 30 fsw/min plus 1 min.
     """
     for d in ctx.dives():
         ws = d.water_stops
@@ -228,13 +237,19 @@ def time_to_first_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         rate = ctx.plan.ascent_rate(d)
         t = (d.max_depth - ws[0].depth) / rate
-        yield r.note(
-            f"travel to the first stop at {ws[0].depth:g} {ctx.unit}: {t:.1f} min at {rate:g} "
-            f"{ctx.unit}/min; a delay over 1 min changes the schedule",
-            measured=round(t, 2),
-            unit="min",
-            dive=d.id,
-        )
+        t_table = (ctx.fsw(d.max_depth) - ctx.fsw(ws[0].depth)) / NAVY_ASCENT_FSW_MIN
+        limit = round(t_table + FIRST_STOP_DELAY_MAX_MIN, 2)
+        kw = dict(measured=round(t, 2), limit=limit, unit="min", dive=d.id)
+        head = (f"travel to the first stop at {ws[0].depth:g} {ctx.unit}: {t:.1f} min at "
+                f"{rate:g} {ctx.unit}/min against {t_table:.1f} min at 30 fsw/min")
+        if t > limit + _TOL:
+            yield r.breach(
+                f"{head}: a delay of {t - t_table:.1f} min changes the schedule (deeper than "
+                "50 fsw add it to the bottom time, shallower to the first stop)",
+                **kw,
+            )
+        else:
+            yield r.ok(f"{head}: no delay over 1 min", **kw)
 
 
 @FAMILY.rule(
@@ -250,21 +265,24 @@ def decompression_declared(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         o2_water = any(_is_oxygen(d, s) for s in ws)
         o2_chamber = any(_is_oxygen(d, s) for s in cs)
         k = d.decompression
-        bad = None
+        bad = need = None
         if k == "none" and cs:
-            bad = "declared no decompression but plans chamber stops"
+            bad, need = "declared no decompression but plans chamber stops", "no chamber stops"
         elif k in ("in-water", "in-water-oxygen") and not ws:
-            bad = f"declared {k} decompression but plans no water stops"
+            bad, need = f"declared {k} decompression but plans no water stops", "water stops"
         elif k in ("in-water", "in-water-oxygen") and cs:
-            bad = f"declared {k} decompression but plans chamber stops"
+            bad, need = f"declared {k} decompression but plans chamber stops", "no chamber stops"
         elif k == "in-water-oxygen" and not o2_water:
             bad = "declared in-water oxygen decompression but no water stop is on oxygen"
+            need = "a water stop on oxygen"
         elif k == "surface-oxygen" and not cs:
             bad = "declared surface decompression on oxygen but plans no chamber stops"
+            need = "chamber stops"
         elif k == "surface-oxygen" and not o2_chamber:
             bad = "declared surface decompression on oxygen but no chamber stop is on oxygen"
+            need = "a chamber stop on oxygen"
         if bad:
-            yield r.breach(bad, measured=k, dive=d.id)
+            yield r.breach(bad, measured=k, limit=need, dive=d.id)
         elif k == "none" and ws:
             yield r.note(
                 "stops planned on a no-decompression dive are taken as precautionary",
@@ -297,7 +315,10 @@ def surd_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.ok("chamber ready at the site for surface decompression", dive=d.id)
         else:
             yield r.breach(
-                "surface decompression planned without a ready chamber at the site", dive=d.id
+                "surface decompression planned without a ready chamber at the site",
+                measured=chamber_state(ctx),
+                limit=READY,
+                dive=d.id,
             )
 
 
@@ -338,6 +359,7 @@ def surd_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review(
                 "needs review: surface decompression without surface_transfer_min; "
                 "the surface interval cannot be checked",
+                measured=NOT_STATED,
                 limit=SURD_INTERVAL_MAX_MIN,
                 unit="min",
                 dive=d.id,
@@ -491,31 +513,127 @@ def exceptional_exposure(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 unit=unit,
                 dive=d.id,
             )
+        if not hits:
+            yield r.ok(
+                f"not an exceptional exposure: {ctx.show(d.max_depth)} within 190 fsw, "
+                f"{d.in_water_stop_min:g} min in-water decompression within 90 min"
+                + (f", {surd_periods(d):g} chamber oxygen periods within 4"
+                   if d.decompression == "surface-oxygen" else ""),
+                measured=d.max_depth,
+                limit=ctx.limit(EE_DEPTH_FSW),
+                unit=ctx.unit,
+                dive=d.id,
+            )
+
+
+NAVY_COLD = (
+    "U.S. Navy Diving Manual, pre-2008 air tables (cold or strenuous dives: decompress on the "
+    "next longer bottom-time schedule)"
+)
+
+
+def next_longer(ctx: CheckContext, a: an.DiveAnalysis) -> tuple[LookupResult | None, str]:
+    """The next longer schedule of the reference table for a dive, or why there is none.
+
+    The dive enters the table at the next deeper depth and the next longer bottom
+    time (:mod:`supervisor.references.lookup`); the next longer schedule is the row
+    with the next longer bottom time at that same table depth, in the dive's mode.
+
+    Parameters
+    ----------
+    ctx : CheckContext
+        The rules' context.
+    a : DiveAnalysis
+        The dive's analysis (the policy's table and the dive's look-up).
+
+    Returns
+    -------
+    (LookupResult or None, str)
+        The look-up of the next longer row and ``""``; or ``None`` and the reason
+        no such schedule is available.
+    """
+    table, look, dive = a.table, a.reference, a.dive
+    if not ctx.policy.reference_table:
+        return None, "the policy names no reference table"
+    if table is None:
+        return None, a.errors.get("reference") or "the reference table was not loaded"
+    if table.kind != "decompression":
+        return None, f"{table.name} is a {table.kind} table, without decompression schedules"
+    t_gas = parse_gas(table.model.conventions.gas)
+    if t_gas != dive.gas_mix:
+        return None, f"{table.name} is for {t_gas.name}; the dive breathes {dive.gas_mix.name}"
+    if look is None:
+        return None, a.errors.get("reference", "the table look-up failed")
+    if look.depth is None or look.bottom_time is None:
+        return None, look.reason
+    unit = table.model.conventions.depth_unit
+    longer = sorted(
+        float(x.bottom_time) for x in table.rows
+        if x.depth == look.depth and x.bottom_time > look.bottom_time + _TOL
+    )
+    if not longer:
+        return None, (f"{look.bottom_time:g} min is the longest bottom time at {look.depth:g} "
+                      f"{unit} in {table.name}")
+    nxt = lookup_schedule(table, float(look.depth), longer[0], look.mode or "air")  # type: ignore[arg-type]
+    if nxt.outside_table:
+        return None, nxt.reason
+    if not nxt.permitted:
+        return None, nxt.reason
+    return nxt, ""
 
 
 @FAMILY.rule(
     "proc-cold-strenuous",
-    title="Cold or strenuous work: consider the next longer schedule",
-    citation="U.S. Navy Diving Manual, pre-2008 air tables (cold or arduous dives)",
+    title="Cold or strenuous work: the proposed stops cover the next longer schedule",
+    citation=NAVY_COLD,
     source_status="OLDER-EDITION",
     kind="reference",
 )
 def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Flag cold or strenuous dives: older Navy practice used the next longer schedule.
+    """A cold or strenuous dive decompresses on the next longer bottom-time schedule.
 
-    The Rev 6 tables are reported to allow for such conditions already
-    (partly VERIFIED comparison report); the supervisor decides.
+    The rule of the pre-2008 Navy air tables (OLDER-EDITION): the proposed stops
+    must cover the schedule of the next longer bottom time at the same table depth
+    (every stop present, on the same gas, at least as long).  The measured value is
+    the proposed total stop time against the total of that schedule.  Later tables
+    are reported to allow for such conditions already (the comparison is only
+    partly confirmed), so the status stays OLDER-EDITION: a shortfall warns and a
+    pass needs review.  Without a decompression table row the rule cannot be
+    checked: needs review.
     """
+    pa = an.for_context(ctx)
     for d in ctx.dives():
-        why = [w for w, on in (("cold", d.cold), ("strenuous work", d.strenuous)) if on]
-        if why:
-            yield r.breach(
-                f"{' and '.join(why)}: older Navy practice decompresses on the next longer "
-                "bottom-time schedule; current tables may already allow for it; decide per the "
-                "contractor's manual",
-                measured=d.bottom_time_min,
+        why = " and ".join(w for w, on in (("cold", d.cold), ("strenuous work", d.strenuous))
+                           if on)
+        if not why:
+            continue
+        a = pa.dives[d.id]
+        have = float(sum(s.minutes for s in d.stops))
+        nxt, reason = next_longer(ctx, a)
+        if nxt is None:
+            yield r.review(
+                f"needs review: {why}: the next longer bottom-time schedule is not available "
+                f"({reason}); decompress per the contractor's manual",
+                measured=have,
                 unit="min",
                 dive=d.id,
+            )
+            continue
+        checks = stop_checks(ctx, d, nxt, a.table)
+        need = float(sum(c.required_min for c in checks))
+        where = (f"{nxt.table} at {nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min (row "
+                 f"{nxt.row}: {nxt.verification}, {nxt.source_status})")
+        kw = dict(measured=have, limit=need, unit="min", dive=d.id)
+        tail = ("; later tables may already allow for these conditions: decide per the "
+                "contractor's manual")
+        if all(c.ok for c in checks):
+            yield r.ok(f"{why}: the proposed stops cover the next longer schedule, {where}"
+                       + tail, **kw)
+        else:
+            yield r.breach(
+                f"{why}: the proposed stops do not cover the next longer schedule, {where}: "
+                + shortfall(ctx, checks) + tail,
+                **kw,
             )
 
 

@@ -11,10 +11,14 @@ tables, OLDER-EDITION).
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
+from _contract import Case
+from _engine_plans import TABLE, data, trusted_table
+from _engine_plans import run as run_engine
 
-from supervisor.findings import Finding
-from supervisor.rules.procedure import FAMILY
+from supervisor.findings import Finding, verdict
+from supervisor.rules.procedure import FAMILY, NAVY_COLD
 
 O2 = "oxygen"
 
@@ -129,14 +133,29 @@ def test_last_stop(base, run):
     _all_pass(run(d, FAMILY, "proc-last-stop"))
 
 
-def test_time_to_first_stop_is_information(base, run):
-    """Travel 100 -> 40 fsw at 30 fsw/min takes 2 min (arithmetic)."""
+def test_time_to_first_stop_at_the_table_rate_passes(base, run):
+    """Travel 100 -> 40 fsw at 30 fsw/min takes 2 min (arithmetic), the table's own travel."""
     d = base()
     d["dives"][0].update(max_depth=100, bottom_time_min=30, decompression="in-water",
                          stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
     [f] = run(d, FAMILY, "proc-time-to-first-stop")
-    assert (f.rule, f.severity, f.measured, f.unit) == (
-        "proc-time-to-first-stop", "info", 2.0, "min")
+    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.verified) == (
+        "proc-time-to-first-stop", "pass", 2.0, 3.0, "min", False)
+
+
+def test_time_to_first_stop_delayed_over_1_min_warns(base, run):
+    """Rev 7 ch. 9 (SECONDARY): a delay over 1 min reaching the first stop changes the
+    schedule.  150 -> 40 fsw: 110/20 = 5.5 min at 20 fsw/min against 110/30 = 3.67 min at
+    the 30 fsw/min the tables assume (Rev 4 Change A, OLDER-EDITION), plus 1 min = 4.67."""
+    d = base()
+    d["dives"][0].update(max_depth=150, bottom_time_min=20, ascent_rate=20,
+                         decompression="in-water",
+                         stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
+    f = _one_bad(run(d, FAMILY, "proc-time-to-first-stop"))
+    assert (f.rule, f.severity, f.measured, f.limit) == (
+        "proc-time-to-first-stop", "warn", 5.5, 4.67)
+    assert f.citation == "U.S. Navy Diving Manual, Rev 7, ch. 9 (delay in reaching the first stop)"
+    assert "1.8 min changes the schedule" in f.message
 
 
 @pytest.mark.parametrize(
@@ -251,7 +270,8 @@ def test_exceptional_exposure(base, run, change, measured, limit, unit):
     f = _one_bad(run(d, FAMILY, "proc-exceptional-exposure"))
     assert (f.rule, f.severity, f.measured, f.limit, f.unit) == (
         "proc-exceptional-exposure", "warn", measured, limit, unit)
-    assert run(base(), FAMILY, "proc-exceptional-exposure") == []
+    [f] = run(base(), FAMILY, "proc-exceptional-exposure")
+    assert (f.severity, f.measured, f.limit, f.verified) == ("pass", 60, 190.0, False)
 
 
 def test_exceptional_exposure_surd_periods(base, run):
@@ -266,18 +286,8 @@ def test_exceptional_exposure_surd_periods(base, run):
     f = _one_bad(run(d, FAMILY, "proc-exceptional-exposure"))
     assert (f.rule, f.measured, f.limit, f.unit) == (
         "proc-exceptional-exposure", 5.0, 4.0, "periods")
-    assert run(_surd(base), FAMILY, "proc-exceptional-exposure") == []
-
-
-def test_cold_or_strenuous_flags_next_longer_schedule(base, run):
-    """U.S. Navy Diving Manual, pre-2008 air tables (OLDER-EDITION): next longer schedule."""
-    d = base()
-    d["dives"][0]["cold"] = True
-    f = _one_bad(run(d, FAMILY, "proc-cold-strenuous"))
-    assert (f.rule, f.severity, f.measured, f.source_status) == (
-        "proc-cold-strenuous", "warn", 40, "OLDER-EDITION")
-    assert "next longer" in f.message
-    assert run(base(), FAMILY, "proc-cold-strenuous") == []
+    [f] = run(_surd(base), FAMILY, "proc-exceptional-exposure")
+    assert f.severity == "pass" and "2 chamber oxygen periods within 4" in f.message
 
 
 def test_short_surface_interval(base, run):
@@ -289,3 +299,230 @@ def test_short_surface_interval(base, run):
         "proc-short-surface-interval", "warn", 8, 10.0, "D2")
     d["dives"][1]["surface_interval_min"] = 90
     _all_pass(run(d, FAMILY, "proc-short-surface-interval"))
+
+
+# ---------------------------------------------------------------------------
+# cold or strenuous work: the next longer schedule of the reference table
+# (U.S. Navy Diving Manual, pre-2008 air tables, OLDER-EDITION).  The table is the
+# fictional test table: 60 fsw / 50 min: 10 fsw 5 min air (air/O2: 10 fsw 3 min O2);
+# 60 fsw / 60 min: 20 fsw 2 min, 10 fsw 12 min air (air/O2: 20 fsw 2 min air, 10 fsw
+# 8 min O2); 70 fsw / 40 min.
+
+NEXT_60 = [{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 12}]
+
+
+def _cold(table=TABLE, **dive):
+    d = data(cold=True, **dive)
+    if table is not None:
+        d["policy"]["reference_table"] = str(table)
+    return d
+
+
+def _cold_one(d):
+    got = run_engine(d, FAMILY, "proc-cold-strenuous")
+    assert len(got) == 1, [f.message for f in got]
+    return got[0]
+
+
+def test_cold_dive_short_of_the_next_longer_schedule_warns():
+    """60 fsw / 40 min enters the 60/50 row; cold work takes the 60/60 schedule: 14 min."""
+    f = _cold_one(_cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]))
+    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.source_status) == (
+        "proc-cold-strenuous", "warn", 5.0, 14.0, "min", "OLDER-EDITION")
+    assert f.citation == NAVY_COLD
+    assert "60 fsw/60 min" in f.message and "stop 20 fsw on air: missing" in f.message
+    assert "stop 10 fsw on air: 5 of 12 min" in f.message
+
+
+def test_cold_no_stop_dive_without_the_next_longer_stops_warns():
+    """A dive planned without stops is short of every stop of the next longer schedule."""
+    f = _cold_one(_cold())
+    assert (f.severity, f.measured, f.limit) == ("warn", 0.0, 14.0)
+
+
+def test_cold_dive_covering_the_next_longer_schedule_passes_for_review():
+    """Every stop present and at least as long: a pass, unverified (OLDER-EDITION rule)."""
+    f = _cold_one(_cold(decompression="in-water", stops=NEXT_60))
+    assert (f.severity, f.measured, f.limit, f.verified) == ("pass", 14.0, 14.0, False)
+    assert verdict([f]) == "needs-review"
+
+
+def test_cold_on_a_verified_row_still_only_warns(tmp_path):
+    """The rule itself is OLDER-EDITION: even a verified row cannot make it fail."""
+    f = _cold_one(_cold(trusted_table(tmp_path), decompression="in-water",
+                        stops=[{"depth": 10, "minutes": 5}]))
+    assert (f.severity, f.verified) == ("warn", False)
+    assert "verified, VERIFIED" in f.message
+
+
+def test_strenuous_in_water_oxygen_takes_the_air_o2_schedule():
+    """Strenuous work on an in-water oxygen dive: the 60/60 air/O2 schedule (2 + 8 min)."""
+    d = _cold(decompression="in-water-oxygen",
+              stops=[{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 8, "gas": "oxygen"}])
+    d["dives"][0].update(cold=False, strenuous=True)
+    f = _cold_one(d)
+    assert (f.severity, f.measured, f.limit) == ("pass", 10.0, 10.0)
+    assert f.message.startswith("strenuous work:")
+
+
+def test_a_longer_stop_on_the_wrong_gas_does_not_cover():
+    """10 fsw on air is not the 10 fsw oxygen stop of the air/O2 schedule."""
+    d = _cold(decompression="in-water-oxygen", strenuous=True,
+              stops=[{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 20},
+                     {"depth": 10, "minutes": 1, "gas": "oxygen"}])
+    f = _cold_one(d)
+    assert f.severity == "warn" and "cold and strenuous work" in f.message
+    assert "stop 10 fsw on oxygen: 1 of 8 min" in f.message
+
+
+@pytest.mark.parametrize(("table", "dive", "reason"), [
+    (None, {}, "names no reference table"),
+    ("usn-rev7-air-ndl", {}, "a no-stop table"),
+    (TABLE, dict(bottom_time_min=55, decompression="in-water", stops=NEXT_60),
+     "60 min is the longest bottom time at 60 fsw"),
+    (TABLE, dict(max_depth=100, bottom_time_min=20, decompression="in-water",
+                 stops=[{"depth": 10, "minutes": 20}]), "deeper than the deepest depth"),
+    (TABLE, dict(mode="surface-supplied-nitrox", gas="32/0"), "is for air"),
+])
+def test_cold_without_a_next_longer_row_needs_review(table, dive, reason):
+    """No table row to take: the rule cannot be checked, so it warns for review."""
+    f = _cold_one(_cold(table, **dive))
+    assert (f.rule, f.severity, f.verified, f.limit) == ("proc-cold-strenuous", "warn", False,
+                                                         None)
+    assert f.message.startswith("needs review: cold:") and reason in f.message
+    assert f.measured == sum(s["minutes"] for s in dive.get("stops", []))
+    _c.reported(f)
+
+
+def test_no_cold_or_strenuous_flag_no_finding():
+    assert run_engine(data(), FAMILY, "proc-cold-strenuous") == []
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every procedure rule
+
+
+def _p(**dive):
+    return _c.dive(_c.base(), **dive)
+
+
+def _policy(d, **kw):
+    d["policy"].update(kw)
+    return d
+
+
+def _surd_c(**kw):
+    return _surd(_c.base, **kw)
+
+
+def _chamber(d, **kw):
+    d["chamber"].update(kw)
+    return d
+
+
+def _second(si):
+    d = _c.base()
+    d["dives"].append(dict(d["dives"][0], id="D2", previous_dive="D1", surface_interval_min=si))
+    return d
+
+
+_NAVY7 = "U.S. Navy Diving Manual, Rev 7, ch. 9"
+_W = dict(max_depth=100, bottom_time_min=40, decompression="in-water-oxygen")
+CASES: dict[str, Case] = {
+    "proc-descent-rate": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _policy(_c.base(), descent_rate_max=50),
+        measured=60, limit=50, citation="contractor policy (policy.descent_rate_max)"),
+    "proc-ascent-rate": Case(
+        passing=lambda _: _c.base(),
+        failing=lambda _: _policy(_p(ascent_rate=25), ascent_rate_min=28),
+        measured=25, limit=28,
+        citation="contractor policy (policy.ascent_rate_min, policy.ascent_rate_max)"),
+    "proc-stop-step": Case(
+        passing=lambda _: _p(decompression="in-water", stops=[{"depth": 20, "minutes": 3}]),
+        failing=lambda _: _p(decompression="in-water", stops=[{"depth": 25, "minutes": 3}]),
+        measured=25, limit=10.0, citation="contractor policy (policy.stop_step)"),
+    "proc-last-stop": Case(
+        passing=lambda _: _p(decompression="in-water", stops=[{"depth": 10, "minutes": 3}]),
+        failing=lambda _: _policy(_p(decompression="in-water",
+                                     stops=[{"depth": 10, "minutes": 3}]), last_stop=20),
+        measured=10, limit=20, citation="contractor policy (policy.last_stop)"),
+    "proc-time-to-first-stop": Case(
+        passing=lambda _: _p(max_depth=100, bottom_time_min=30, decompression="in-water",
+                             stops=[{"depth": 40, "minutes": 2}]),
+        failing=lambda _: _p(max_depth=150, bottom_time_min=20, ascent_rate=20,
+                             decompression="in-water", stops=[{"depth": 40, "minutes": 2}]),
+        measured=5.5, limit=4.67, severity="warn",
+        citation=f"{_NAVY7} (delay in reaching the first stop)"),
+    "proc-decompression-declared": Case(
+        passing=lambda _: _surd_c(), failing=lambda _: _p(decompression="in-water"),
+        measured="in-water", limit="water stops",
+        citation="plan consistency (dives[].decompression and dives[].stops)"),
+    "proc-surd-chamber": Case(
+        passing=lambda _: _surd_c(), failing=lambda _: _chamber(_surd_c(), ready=False),
+        measured="at the site, not ready", limit="a chamber ready at the site",
+        citation="plan consistency (surface decompression is completed in a chamber)"),
+    "proc-surd-interval": Case(
+        passing=lambda _: _surd_c(), failing=lambda _: _surd_c(transfer=4.0),
+        measured=5.83, limit=5.0, severity="warn",  # 40/30 + 4 + 50/100 min, to 0.01
+        citation=f"{_NAVY7} (surface decompression on oxygen, surface interval)"),
+    "proc-o2-air-breaks": Case(
+        passing=lambda _: _p(**_W, stops=[{"depth": 30, "minutes": 10, "gas": O2},
+                                          {"depth": 20, "minutes": 24, "gas": O2}]),
+        failing=lambda _: _p(**_W, stops=[{"depth": 30, "minutes": 20, "gas": O2},
+                                          {"depth": 20, "minutes": 20, "gas": O2},
+                                          {"depth": 20, "minutes": 5, "gas": "air"},
+                                          {"depth": 20, "minutes": 10, "gas": O2}]),
+        measured=40, limit=30.0, severity="warn",
+        citation=f"{_NAVY7} (in-water air/oxygen decompression, air breaks)"),
+    "proc-o2-chamber-periods": Case(
+        passing=lambda _: _surd_c(),
+        failing=lambda _: _c.dive(_surd_c(), stops=[
+            {"depth": 40, "minutes": 2}, {"depth": 50, "minutes": 15, "gas": O2,
+                                          "place": "chamber"},
+            {"depth": 40, "minutes": 25, "gas": O2, "place": "chamber"},
+            {"depth": 40, "minutes": 5, "gas": "air", "place": "chamber"},
+            {"depth": 40, "minutes": 30, "gas": O2, "place": "chamber"}]),
+        measured=40, limit=30.0, severity="warn",
+        citation=f"{_NAVY7} (surface decompression on oxygen, chamber periods)"),
+    "proc-exceptional-exposure": Case(
+        passing=lambda _: _c.base(), failing=lambda _: _p(max_depth=200, bottom_time_min=10),
+        measured=200, limit=190.0, severity="warn", citation=f"{_NAVY7} (exceptional exposure)"),
+    "proc-cold-strenuous": Case(
+        passing=lambda _: _cold(decompression="in-water", stops=NEXT_60),
+        failing=lambda _: _cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]),
+        measured=5.0, limit=14.0, severity="warn", citation=NAVY_COLD),
+    "proc-short-surface-interval": Case(
+        passing=lambda _: _second(90), failing=lambda _: _second(8),
+        measured=8, limit=10.0, severity="warn",
+        citation="U.S. Navy Diving Manual, pre-2008 air tables (surface interval under 10 min)"),
+}
+
+#: Findings a procedure rule gives under another id (Navy conventions beside the policy).
+OTHER_IDS = [
+    ("proc-descent-rate", lambda: _policy(_p(descent_rate=90), descent_rate_max=100),
+     "proc-descent-rate-table", "warn", 90, 75.0,
+     "U.S. Navy Diving Manual, Rev 7, ch. 9 (descent rate)"),
+    ("proc-ascent-rate", lambda: _p(ascent_rate=15), "proc-ascent-rate-table", "warn", 15,
+     "20-40", "U.S. Navy Diving Manual, Rev 4 Change A, ch. 14 (ascent rate)"),
+]
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each procedure rule passes its passing plan and reports id, measured, limit, citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+@pytest.mark.parametrize(("key", "plan", "rule", "severity", "measured", "limit", "citation"),
+                         OTHER_IDS, ids=[x[2] for x in OTHER_IDS])
+def test_contract_other_ids(key, plan, rule, severity, measured, limit, citation):
+    got = [f for f in _c.run_rule(FAMILY, key, plan()) if f.severity in _c.BAD]
+    for f in got:
+        _c.reported(f)
+    f = next(f for f in got if f.rule == rule)
+    assert (f.severity, f.measured, f.limit, f.citation) == (severity, measured, limit, citation)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
