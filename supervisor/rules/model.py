@@ -34,6 +34,7 @@ from supervisor.rules.tables import table_check
 
 FAMILY = Family("model-margin", "Decompression model margin")
 
+NOT_COMPUTED = "not computed"
 POLICY_MODEL = "contractor policy (policy.model, policy.gf_low, policy.gf_high)"
 BUHLMANN = "Bühlmann, Tauchmedizin (2002), ZH-L16; Baker, Understanding M-values (1998)"
 
@@ -62,9 +63,11 @@ def _unknown(r: Rule, a: an.DiveAnalysis, what: str) -> Finding | None:
     """A review finding when the model figures of a dive are missing or rest on guesses."""
     why = a.errors.get("evaluation") or a.errors.get("profile")
     if why:
-        return r.review(f"needs review: {what} could not be computed ({why})", dive=a.id)
+        return r.review(f"needs review: {what} could not be computed ({why})", dive=a.id,
+                        measured=NOT_COMPUTED)
     if "tissues" in a.errors:
-        return r.review(f"needs review: {a.errors['tissues']}", dive=a.id)
+        return r.review(f"needs review: {a.errors['tissues']}", dive=a.id,
+                        measured=NOT_COMPUTED)
     return None
 
 
@@ -146,14 +149,15 @@ def margin(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         m = a.margin
         if m is None:
             why = a.errors.get("model_schedule", "not computed")
-            yield r.review(f"needs review: the margin could not be computed ({why})", dive=d.id)
+            yield r.review(f"needs review: the margin could not be computed ({why})", dive=d.id,
+                           measured=NOT_COMPUTED, unit="min")
             continue
         kw = dict(unit="min", limit=0.0, dive=d.id)
         if m.uncoverable:
             yield r.breach(
                 f"the proposed stops do not cover even the shortest bottom time (the descent) "
                 f"under {_gf(ctx)} ({_status(a)})",
-                measured=None, **kw,
+                measured="no bottom time covered", **kw,
             )
         elif m.minutes is not None and m.minutes < 0:
             yield r.breach(
@@ -190,7 +194,7 @@ def schedule(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if res is None:
             why = a.errors.get("model_schedule", "not computed")
             yield r.review(f"needs review: the model schedule could not be computed ({why})",
-                           dive=d.id)
+                           dive=d.id, measured=NOT_COMPUTED, unit="min")
             continue
         need = float(res.total_stop_min)
         have = float(sum(s.minutes for s in d.stops))
@@ -249,5 +253,5 @@ def coefficients(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 f"needs review: the model figures rest on {model} coefficients whose status is "
                 f"{status}; confirm them against the published set or check the dive against a "
                 "verified table row",
-                dive=d.id, status=status,
+                dive=d.id, status=status, measured=status, limit="VERIFIED",
             )

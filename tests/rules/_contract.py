@@ -49,8 +49,10 @@ class Case:
     ----------
     failing : callable
         ``failing(tmp_path) -> plan dict`` on which the rule fails or warns.
-    measured : object
-        The measured value the failing finding must report (floats compared to 1e-3).
+    measured : object or callable
+        The measured value the failing finding must report (floats compared to 1e-3), or
+        ``measured(ctx) -> value`` computing it from the failing plan's check context
+        (for figures of the engine, which the engine's own tests check).
     citation : str
         The citation it must carry, exactly.
     passing : callable or None
@@ -60,8 +62,9 @@ class Case:
         Severity of the failing finding.
     rule : str or None
         Id of the failing finding, when it is not the rule's own.
-    limit : object
-        The limit the failing finding must report, when given.
+    limit : object or callable
+        The limit the failing finding must report, when given (a callable as for
+        ``measured``).
     no_pass : str
         Why the rule has no passing plan.
     """
@@ -76,9 +79,9 @@ class Case:
     no_pass: str = ""
 
 
-def run_rule(family: Family, key: str, d: dict[str, Any]) -> list[Finding]:
-    """Run the rule ``key`` of ``family`` on the plan ``d`` (it must apply)."""
-    ctx = CheckContext(plan_from_dict(d))
+def run_rule(family: Family, key: str, d: dict[str, Any] | CheckContext) -> list[Finding]:
+    """Run the rule ``key`` of ``family`` on the plan ``d`` or a context (it must apply)."""
+    ctx = d if isinstance(d, CheckContext) else CheckContext(plan_from_dict(d))
     rule = family.get(key)
     assert rule.applies(ctx), f"{key} does not apply to {ctx.jurisdiction}"
     return rule.run(ctx)
@@ -110,7 +113,9 @@ def check_case(family: Family, key: str, case: Case, tmp: Path) -> None:
     * passing plan: findings, none failing or warning; a pass resting on a source that is
       not confirmed (SECONDARY, FROM MEMORY, OLDER-EDITION, DERIVED) is unverified.
     """
-    got = run_rule(family, key, case.failing(tmp))
+    ctx = CheckContext(plan_from_dict(case.failing(tmp)))
+    got = run_rule(family, key, ctx)
+    want = case.measured(ctx) if callable(case.measured) else case.measured
     bad = [f for f in got if f.severity in BAD]
     assert bad, f"{key}: the failing plan gave no fail or warning: {[f.message for f in got]}"
     for f in bad:
@@ -118,11 +123,12 @@ def check_case(family: Family, key: str, case: Case, tmp: Path) -> None:
     rid = case.rule or family.get(key).id
     hit = [f for f in bad if f.rule == rid and f.severity == case.severity]
     assert hit, f"{key}: no {case.severity} {rid}: {[(f.rule, f.severity) for f in bad]}"
-    assert any(_same(f.measured, case.measured) for f in hit), (
-        f"{key}: measured {[f.measured for f in hit]}, expected {case.measured!r}")
-    f = next(f for f in hit if _same(f.measured, case.measured))
+    assert any(_same(f.measured, want) for f in hit), (
+        f"{key}: measured {[f.measured for f in hit]}, expected {want!r}")
+    f = next(f for f in hit if _same(f.measured, want))
     if case.limit is not _ANY:
-        assert _same(f.limit, case.limit), f"{key}: limit {f.limit!r}, expected {case.limit!r}"
+        lim = case.limit(ctx) if callable(case.limit) else case.limit
+        assert _same(f.limit, lim), f"{key}: limit {f.limit!r}, expected {lim!r}"
     assert f.citation == case.citation, f"{key}: citation {f.citation!r}"
     if case.passing is None:
         assert case.no_pass, f"{key}: no passing plan and no reason given"

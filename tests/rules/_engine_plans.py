@@ -47,6 +47,19 @@ def context(d: dict[str, Any]) -> CheckContext:
     return CheckContext(plan_from_dict(d))
 
 
+def uncomputed(d: dict[str, Any], *sections: str, why: str = "forced by the test") -> CheckContext:
+    """A context for ``d`` whose analysis lost ``sections`` of every dive, as a failed
+    computation leaves them (the section ``None``, the reason in ``errors``)."""
+    from supervisor import analysis as an
+
+    ctx = context(d)
+    for a in an.for_context(ctx).dives.values():
+        for name in sections:
+            a.errors[name] = why
+            setattr(a, name, None)
+    return ctx
+
+
 def run(d: dict[str, Any], family: Family, key: str) -> list[Finding]:
     """Run one rule of ``family`` on the plan ``d``."""
     return family.get(key).run(context(d))

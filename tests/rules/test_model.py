@@ -8,12 +8,14 @@ tested against outside values in tests/engine).
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
-from _engine_plans import context, data, only, run, trusted_table
+from _contract import Case
+from _engine_plans import context, data, only, run, trusted_table, uncomputed
 
 from supervisor import analysis as an
 from supervisor.rules.base import CheckContext
-from supervisor.rules.model import FAMILY, model_name
+from supervisor.rules.model import BUHLMANN, FAMILY, model_name
 
 SHORT = dict(bottom_time_min=70, decompression="in-water", stops=[{"depth": 10, "minutes": 1}])
 
@@ -94,10 +96,76 @@ def test_coefficients_info_when_a_trusted_row_carries_the_dive(tmp_path):
     assert "verified row 1" in f.message
 
 
-def test_uncomputable_profile_needs_review():
-    for key in ("model-ceiling", "model-surfacing-gf", "model-margin", "model-schedule"):
-        f = only(run(data(max_depth=120, bottom_time_min=1), FAMILY, key), "warn")
-        assert "needs review" in f.message and not f.verified, key
+@pytest.mark.parametrize(("key", "sections"), [
+    ("model-ceiling", ("evaluation",)),
+    ("model-surfacing-gf", ("evaluation",)),
+    ("model-margin", ("evaluation", "margin")),
+    ("model-margin", ("model_schedule", "margin")),
+    ("model-schedule", ("model_schedule",)),
+])
+def test_uncomputable_figures_need_review(key, sections):
+    """Figures the engine could not compute are never a pass: a review naming the reason."""
+    f = only(FAMILY.get(key).run(uncomputed(data(), *sections)), "warn")
+    assert f.message.startswith("needs review:") and "forced by the test" in f.message
+    assert f.measured == "not computed" and not f.verified
+    _c.reported(f)
+
+
+def test_coefficients_warning_reports_the_status():
+    """The coefficient warning names the status found against the status required."""
+    f = only(run(data(), FAMILY, "model-coefficients"), "warn")
+    assert (f.measured, f.limit) == ("FROM MEMORY", "VERIFIED")
+    _c.reported(f)
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every model rule
+
+
+def _a(ctx):
+    return _analysis(ctx)
+
+
+CITE = "contractor policy (policy.model, policy.gf_low, policy.gf_high)"
+CASES: dict[str, Case] = {
+    "model-ceiling": Case(
+        passing=lambda _: data(), failing=lambda _: data(**SHORT),
+        measured=lambda ctx: round(_a(ctx).evaluation.worst_excess_bar / an.bar_per_unit("fsw"),
+                                   2),
+        limit=0.0, citation=f"{CITE}; {BUHLMANN}"),
+    "model-surfacing-gf": Case(
+        passing=lambda _: data(), failing=lambda _: data(**SHORT),
+        measured=lambda ctx: round(100 * _a(ctx).evaluation.surfacing_gf, 1), limit=85,
+        citation=f"{CITE}; {BUHLMANN}"),
+    "model-margin": Case(
+        passing=lambda _: data(), failing=lambda _: data(**SHORT),
+        measured=lambda ctx: float(_a(ctx).margin.minutes), limit=0.0,
+        citation=f"{CITE}; margin as defined in supervisor.analysis"),
+    "model-schedule": Case(
+        passing=lambda _: data(), failing=lambda _: data(bottom_time_min=50),
+        measured=0.0, limit=lambda ctx: float(_a(ctx).model_schedule.total_stop_min),
+        citation=f"{CITE}; schedule conventions of supervisor.engine.schedule"),
+    "model-coefficients": Case(
+        passing=lambda tmp: _trusted(tmp), failing=lambda _: data(),
+        measured="FROM MEMORY", limit="VERIFIED", severity="warn",
+        citation="Bühlmann ZH-L16 coefficients as bundled in tables/models (per-value status)"),
+}
+
+
+def _trusted(tmp):
+    d = data(bottom_time_min=50, decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
+    d["policy"]["reference_table"] = str(trusted_table(tmp))
+    return d
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each model rule passes its passing plan and reports id, measured, limit, citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
 
 
 @pytest.mark.parametrize("key", ["model-ceiling", "model-margin"])
