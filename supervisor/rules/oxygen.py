@@ -38,6 +38,7 @@ FAMILY = Family("oxygen", "Oxygen exposure")
 NOAA_CNS = "NOAA Diving Manual, CNS oxygen exposure limits (normal exposures)"
 REPEX = "Hamilton, Kenyon & Peterson, REPEX, NOAA OUR Technical Report 88-1B (1988)"
 CNS_LIMIT_PERCENT = 100.0
+NOT_COMPUTED = "not computed"
 
 _PHASES: dict[str, tuple[str, str]] = {
     "bottom": ("po2_bottom_max", "bottom"),
@@ -77,7 +78,8 @@ def _po2_rule(phase: str) -> Any:
             if "oxygen" in a.errors:
                 yield r.review(
                     f"needs review: {what} PO2 could not be computed ({a.errors['oxygen']})",
-                    dive=d.id,
+                    dive=d.id, measured=NOT_COMPUTED, limit=limit,
+                    unit="bar",
                 )
                 continue
             po2 = a.po2_max.get(phase)
@@ -142,7 +144,8 @@ def cns_dive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     for d in ctx.dives():
         e = pa.dives[d.id].exposure
         if e is None:
-            yield r.review("needs review: the CNS exposure could not be computed", dive=d.id)
+            yield r.review("needs review: the CNS exposure could not be computed", dive=d.id,
+                           measured=NOT_COMPUTED, limit=CNS_LIMIT_PERCENT, unit="%")
             continue
         bound = " (lower bound)" if e.out_of_range else ""
         yield _limit_finding(
@@ -172,7 +175,7 @@ def cns_day(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review(
                 f"needs review: {day.diver}'s 24-hour oxygen exposure could not be computed "
                 f"({day.errors.get('daily', 'no exposure')})",
-                dive=_day_dive(day),
+                dive=_day_dive(day), measured=NOT_COMPUTED, limit=CNS_LIMIT_PERCENT, unit="%",
             )
             continue
         yield _limit_finding(
@@ -199,7 +202,8 @@ def otu_dive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         e = a.exposure
         day = pa.divers[d.diver].daily
         if e is None or day is None:
-            yield r.review("needs review: the pulmonary dose could not be computed", dive=d.id)
+            yield r.review("needs review: the pulmonary dose could not be computed", dive=d.id,
+                           measured=NOT_COMPUTED, unit="OTU")
             continue
         allow = day.otu_allowance_24h
         yield _limit_finding(
@@ -224,7 +228,7 @@ def otu_day(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if dd is None:
             yield r.review(
                 f"needs review: {day.diver}'s daily pulmonary dose could not be computed",
-                dive=_day_dive(day),
+                dive=_day_dive(day), measured=NOT_COMPUTED, unit="OTU",
             )
             continue
         text = (f"{day.diver}: highest pulmonary dose in any 24 hours {dd.max_otu_24h:.0f} OTU "

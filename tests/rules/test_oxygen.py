@@ -10,9 +10,12 @@ same notes §3.2).  Limits held FROM MEMORY make a breach a warning.
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
+from _contract import Case
 from _engine_plans import data, no_bad, only, run, second_dive
 
+from supervisor import analysis as an
 from supervisor import constants as C
 from supervisor.rules.oxygen import FAMILY, NOAA_CNS, REPEX
 
@@ -118,3 +121,89 @@ def test_otu_over_allowance_warns(key):
     assert f.rule == key
     assert f.measured >= 250 * 3.59  # the chamber stop alone: 3.59 OTU/min at 60 fsw
     assert f.limit == 850 and f.citation.startswith(REPEX)  # REPEX single day (FROM MEMORY)
+
+
+@pytest.mark.parametrize("key", ["oxygen-po2-bottom", "oxygen-cns-dive", "oxygen-otu-dive"])
+def test_uncomputed_exposure_needs_review(key):
+    """An exposure the engine could not compute is never a pass: a review with its reason."""
+    from _engine_plans import uncomputed
+
+    ctx = uncomputed(data(), "exposure")
+    pa = an.for_context(ctx)
+    pa.dives["D1"].errors["oxygen"] = "forced by the test"
+    f = only(FAMILY.get(key).run(ctx), "warn")
+    assert f.measured == "not computed" and f.message.startswith("needs review:")
+    _c.reported(f)
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every oxygen rule
+# (PO2 by Dalton's law; CNS and OTU figures are the engine's, tested in tests/engine)
+
+
+def _exp(ctx):
+    return an.for_context(ctx).dives["D1"].exposure
+
+
+def _day(ctx):
+    return an.for_context(ctx).divers["Dana Diver"].daily
+
+
+def _policy(d, **kw):
+    d["policy"].update(kw)
+    return d
+
+
+def _two_nitrox():
+    return second_dive(_nitrox(bottom_time_min=80), mode="surface-supplied-nitrox", gas="40/0",
+                       max_depth=95, bottom_time_min=80, descent_rate=60,
+                       surface_interval_min=60, previous_dive="D1", decompression="in-water",
+                       stops=[{"depth": 10, "minutes": 10}])
+
+
+_O2_30 = dict(bottom_time_min=50, decompression="in-water-oxygen",
+              stops=[{"depth": 30, "minutes": 10, "gas": "oxygen"}])
+_LONG_O2 = dict(chamber_depth=60, minutes=250)
+CASES: dict[str, Case] = {
+    "oxygen-po2-bottom": Case(
+        passing=lambda _: data(), failing=lambda _: _policy(data(), po2_bottom_max=0.5),
+        measured=round(0.21 * ATM * (1 + 60 / 33), 3), limit=0.5,
+        citation="contractor policy (policy.po2_bottom_max)"),
+    "oxygen-po2-decompression": Case(
+        passing=lambda _: data(), failing=lambda _: data(**_O2_30),
+        measured=round(ATM * (1 + 30 / 33), 3), limit=1.6,
+        citation="contractor policy (policy.po2_decompression_max)"),
+    "oxygen-po2-chamber": Case(
+        passing=lambda _: _surd(), failing=lambda _: _policy(_surd(), po2_chamber_max=2.4),
+        measured=round(ATM * (1 + 50 / 33), 3), limit=2.4,
+        citation="contractor policy (policy.po2_chamber_max)"),
+    "oxygen-po2-range": Case(
+        passing=lambda _: data(), failing=lambda _: _surd(),
+        measured=round(1 + 50 / 33, 3), limit=1.6, severity="warn", citation=NOAA_CNS),
+    "oxygen-cns-dive": Case(
+        passing=lambda _: data(), failing=lambda _: _nitrox(),
+        measured=lambda ctx: round(_exp(ctx).cns_percent, 1), limit=100.0, severity="warn",
+        citation=f"{NOAA_CNS}, single-exposure column"),
+    "oxygen-cns-day": Case(
+        passing=lambda _: data(), failing=lambda _: _two_nitrox(),
+        measured=lambda ctx: round(_day(ctx).max_cns_24h_percent, 1), limit=100.0,
+        severity="warn", citation=f"{NOAA_CNS}, 24-hour column"),
+    "oxygen-otu-dive": Case(
+        passing=lambda _: data(), failing=lambda _: _surd(**_LONG_O2),
+        measured=lambda ctx: round(_exp(ctx).otu, 1), limit=850, severity="warn",
+        citation=f"{REPEX}, single-day allowance"),
+    "oxygen-otu-day": Case(
+        passing=lambda _: data(), failing=lambda _: _surd(**_LONG_O2),
+        measured=lambda ctx: round(_day(ctx).max_otu_24h, 1), limit=850, severity="warn",
+        citation=f"{REPEX}, daily and series allowances"),
+}
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each oxygen rule passes its passing plan and reports id, measured, limit, citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
