@@ -41,6 +41,7 @@ FAMILY = Family("repetitive-altitude", "Repetitive diving, altitude and flying")
 
 NAVY_CH9 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 9"
 TOPSIDE = "NOAA Diving Center, Topside 2(9), 1999 (Navy flying-after-diving table)"
+NOT_COMPUTED = "not computed"
 NO_CORRECTION_M = 300 * 0.3048  # 300 ft [m]
 NAVY_ALTITUDE_MAX_M = 10000 * 0.3048  # 10,000 ft [m]
 
@@ -59,11 +60,13 @@ def repetitive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         a = pa.dives[d.id]
         for note in a.notes:
             if "no earlier dive" in note:
-                yield r.review(f"needs review: {note}", dive=d.id)
+                yield r.review(f"needs review: {note}", dive=d.id,
+                               measured=d.surface_interval_min, unit="min")
         if a.previous is None:
             continue
         if "tissues" in a.errors:
-            yield r.review(f"needs review: {a.errors['tissues']}", dive=d.id)
+            yield r.review(f"needs review: {a.errors['tissues']}", dive=d.id,
+                           measured=NOT_COMPUTED)
             continue
         si = a.surface_interval_min or 0.0
         load = f"; highest compartment at {a.start_loading_percent:.0f} % of its GF-high " \
@@ -97,18 +100,35 @@ def repetitive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     source_status="OLDER-EDITION",
 )
 def window(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Count each diver's dives and bottom time ending within 12 and 24 hours of the last."""
+    """Count each diver's dives and bottom time ending within 12 and 24 hours of the last.
+
+    The counts rest on the dives' places on the diver's time line; where a surface
+    interval is not stated, none is assumed (every dive inside the windows), which
+    needs review.
+    """
     pa = an.for_context(ctx)
     for day in pa.divers.values():
         dives = [pa.dives[i] for i in day.dive_ids]
         end = dives[-1].end_min
         parts = []
+        n24 = 0
         for hours, length in ((12, an.REPETITIVE_WINDOW_MIN), (24, an.DAY_WINDOW_MIN)):
             inside = [x for x in dives if x.end_min > end - length - 1e-9]
             bt = sum(x.dive.bottom_time_min for x in inside)
             parts.append(f"{len(inside)} dive(s), {bt:g} min bottom time in the last {hours} h")
-        yield r.note(f"{day.diver}: " + "; ".join(parts), measured=float(len(dives)),
-                     unit="dives", dive=day.dive_ids[-1])
+            n24 = len(inside)
+        text = f"{day.diver}: " + "; ".join(parts)
+        kw = dict(measured=float(n24), unit="dives", dive=day.dive_ids[-1])
+        assumed = [x.id for x in dives if x.interval_assumed]
+        if assumed:
+            yield r.review(
+                f"needs review: {text}; no surface interval is stated before "
+                f"{', '.join(assumed)}, so none was assumed and the counts may include dives "
+                "that lie outside the windows",
+                **kw,
+            )
+        else:
+            yield r.note(text, **kw)
 
 
 @FAMILY.rule(
@@ -128,7 +148,7 @@ def altitude(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         yield r.ok(
             f"site at {alt:g} m: no altitude correction needed up to 300 ft; surface pressure "
             f"{ps:.4f} bar used in the model",
-            limit=round(NO_CORRECTION_M, 1), verified=False, **kw,
+            limit=round(NO_CORRECTION_M, 1), **kw,
         )
         return
     sled = ", ".join(
@@ -186,7 +206,7 @@ def flying(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review(
                 f"needs review: {day.diver}: the model's time before flying could not be given "
                 f"({why}); take the interval from the current table",
-                dive=last,
+                dive=last, measured=NOT_COMPUTED, unit="min",
             )
             continue
         h, m = divmod(int(t), 60)

@@ -9,7 +9,9 @@ atmosphere for the site pressure.
 
 from __future__ import annotations
 
+import _contract as _c
 import pytest
+from _contract import Case
 from _engine_plans import context, data, only, run, second_dive
 
 from supervisor import analysis as an
@@ -107,3 +109,53 @@ def test_flying_from_a_site_above_the_cabin_is_information():
     f = only(run(d, FAMILY, "exposure-flying"), "info")
     assert "at or above 8,000 ft" in f.message
     assert float(altitude_pressure(2500)) < float(altitude_pressure(an.CABIN_ALTITUDE_M))
+
+
+def test_window_with_an_assumed_interval_needs_review():
+    """No surface interval stated: none assumed, so the counts need review."""
+    f = only(run(_two(), FAMILY, "exposure-window"), "warn")
+    assert (f.rule, f.measured, f.unit, f.verified) == ("exposure-window", 2.0, "dives", False)
+    assert "no surface interval is stated before D2" in f.message
+    _c.reported(f)
+
+
+def test_altitude_pass_is_unverified():
+    """The 300 ft threshold is OLDER-EDITION: the pass keeps the verdict at needs review."""
+    f = only(run(data(), FAMILY, "exposure-altitude"), "pass")
+    assert (f.source_status, f.verified) == ("OLDER-EDITION", False)
+
+
+# ---------------------------------------------------------------------------
+# the findings contract: a passing and a failing plan for every rule
+
+
+def _flying(ctx):
+    return an.for_context(ctx).divers["Dana Diver"].time_to_altitude_min[an.CABIN_ALTITUDE_M]
+
+
+CASES: dict[str, Case] = {
+    "exposure-repetitive": Case(
+        passing=lambda _: _two(surface_interval_min=120, previous_dive="D1"),
+        failing=lambda _: _two(), measured=0.0, limit=720, severity="warn",
+        citation=f"{NAVY_CH9} (repetitive dive within 12 h)"),
+    "exposure-window": Case(
+        passing=lambda _: _two(surface_interval_min=120, previous_dive="D1"),
+        failing=lambda _: _two(), measured=2.0, severity="warn",
+        citation=f"{NAVY_CH9} (12-h repetitive window; 24 h before ascent to altitude)"),
+    "exposure-altitude": Case(
+        passing=lambda _: data(), failing=lambda _: _alt(1524), measured=1524.0,
+        severity="warn", citation=f"{NAVY_CH9} 9-12 (diving at altitude)"),
+    "exposure-flying": Case(
+        passing=lambda _: _alt(2500), failing=lambda _: data(), measured=_flying,
+        severity="warn", citation=TOPSIDE),
+}
+
+
+@pytest.mark.parametrize("key", sorted(CASES))
+def test_contract(key, tmp_path):
+    """Each exposure rule passes its passing plan and reports id, measured, limit, citation."""
+    _c.check_case(FAMILY, key, CASES[key], tmp_path)
+
+
+def test_contract_covers_every_rule():
+    _c.check_covers(FAMILY, CASES)
