@@ -754,6 +754,11 @@ class _Batch:
                     pn = np.where(short[:, None], pn2, pn)
                     ph = np.where(short[:, None], ph2, ph)
                     mins = np.where(short, 1, mins)
+                    ab = r0.o2_air_break
+                    if ab is not None:
+                        # the forced minute counts in the oxygen / air-break cycle
+                        o2 = short & np.array([g.fo2 > 0.5 for g in cur_gas])
+                        cycle = np.where(o2, (cycle + 1) % (ab[0] + ab[1]), cycle)
                 self.record(stopping & (mins > 0), s, s, mins, cur_gas, "water", "stop")
                 for b in np.flatnonzero(stopping & (mins > 0)):
                     stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))
