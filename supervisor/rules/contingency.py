@@ -30,6 +30,7 @@ from supervisor.rules.base import CheckContext, Family, Rule
 
 FAMILY = Family("contingency", "Contingency schedules")
 
+NOT_COMPUTED = "not computed"
 _TITLES = {"overrun": "bottom-time overrun", "deeper": "deeper than planned",
            "oxygen_failure": "oxygen failure"}
 
@@ -60,7 +61,7 @@ def schedules(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if a.request is None:
             why = a.errors.get("model_schedule") or a.errors.get("profile", "not computed")
             yield r.review(f"needs review: no contingency schedule could be computed ({why})",
-                           dive=d.id)
+                           dive=d.id, measured=NOT_COMPUTED, unit="min")
             continue
         for kind, c in a.contingencies.items():
             if c is None:
@@ -69,7 +70,7 @@ def schedules(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             head = f"{title} ({c.basis}; {ctx.show(c.depth)}, {c.bottom_time_min:g} min)"
             if c.schedule is None:
                 yield r.review(f"needs review: {head}: the model schedule could not be computed "
-                               f"({c.error})", dive=d.id)
+                               f"({c.error})", dive=d.id, measured=NOT_COMPUTED, unit="min")
                 continue
             s = c.schedule
             text = (f"{head}: model {_stops(c, ctx.unit)}; {s.total_stop_min} min of stops, "
