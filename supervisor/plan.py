@@ -333,8 +333,21 @@ class ChamberEquipment(_Section):
     treatment_gas: bool | None = Field(None, description="Treatment gas on site")
 
 
+class ChamberAirSupply(_Section):
+    """The chamber's own gas: its flasks' total water volume and charge pressure."""
+
+    gas: GasText = Field("air", description="Gas such as air")
+    water_volume_l: float = Field(gt=0, le=100000, description="Total water volume [L]")
+    pressure_bar: float = Field(gt=0, le=450, description="Charge pressure [bar gauge]")
+
+
 class Chamber(_Section):
-    """The recompression chamber (state ``on_site = false`` when there is none)."""
+    """The recompression chamber (state ``on_site = false`` when there is none).
+
+    The optional sizing fields (``lock_volumes_l`` to ``air_supply``) let the check
+    size the chamber's own gas (:mod:`supervisor.analysis.chamber`); without them
+    that check needs review.
+    """
 
     on_site: bool = Field(description="A chamber is at the dive location")
     ready: bool = Field(description="The chamber is ready for use during the dives")
@@ -350,6 +363,64 @@ class Chamber(_Section):
     equipment: ChamberEquipment = Field(
         default_factory=ChamberEquipment, description="Chamber fittings"
     )
+    lock_volumes_l: list[Annotated[float, Field(gt=0, le=200000)]] | None = Field(
+        None,
+        min_length=1,
+        max_length=4,
+        description="Internal volume of each lock, the treatment (inner) lock first [L]",
+    )
+    treatment_depth: Depth | None = _depth_field(
+        "Depth of the treatment the chamber gas is sized for (default 60 fsw, 18.3 msw)", None
+    )
+    treatment_min: float | None = Field(
+        None,
+        ge=60,
+        le=2880,
+        description="Duration of that treatment (default 285), at least the hour after the "
+        "dive [min]",
+    )
+    treatment_occupants: int | None = Field(
+        None, ge=1, le=20, description="People in the treatment lock, patient included "
+        "(default 2) [count]"
+    )
+    bibs_overboard_dump: bool | None = Field(
+        None, description="The BIBS masks exhaust overboard (not stated: taken as no dump)"
+    )
+    ventilation_lpm: float | None = Field(
+        None, gt=0, le=100000,
+        description="Ventilation of the treatment lock at chamber pressure, the chamber's own "
+        "figure (replaces the per-person rates) [L/min]",
+    )
+    treatment_gas_l: float | None = Field(
+        None, gt=0, le=10_000_000,
+        description="Free gas for one treatment (pressurising and ventilation) from the "
+        "chamber's manual [L]",
+    )
+    air_supply: ChamberAirSupply | None = Field(
+        None, description="The chamber's own gas supply (flasks)"
+    )
+
+    @model_validator(mode="after")
+    def _consistent(self, info: ValidationInfo) -> Chamber:
+        unit = _ctx_unit(info)
+        problems: list[tuple[str, str]] = []
+        vols = self.lock_volumes_l
+        if vols is not None and self.locks is not None and len(vols) != self.locks:
+            problems.append(
+                ("lock_volumes_l", f"got {len(vols)} volume(s); expected one per lock "
+                 f"(locks = {self.locks})")
+            )
+        cap, td = self.depth_capability, self.treatment_depth
+        if cap is not None and td is not None and td > cap:
+            problems.append(
+                ("treatment_depth", f"got {td:g}; expected a depth <= the chamber's "
+                 f"depth_capability ({cap:g} {unit})")
+            )
+        if td is not None and td <= 0:
+            problems.append(("treatment_depth", f"got {td:g}; expected a depth > 0 {unit}"))
+        if problems:
+            raise Problems(problems)
+        return self
 
 
 class Member(_Section):
@@ -378,11 +449,30 @@ class GasSource(_Section):
         None, gt=0, le=100000, description="Total water volume of the bank or cylinders [L]"
     )
     pressure_bar: float | None = Field(
-        None, gt=0, le=450, description="Charge pressure [bar gauge]"
+        None,
+        gt=0,
+        le=450,
+        description="Charge pressure of a bank or cylinders; on a compressor without "
+        "delivery_pressure_bar, read as its delivery pressure [bar gauge]",
     )
     delivery_lpm: float | None = Field(
         None, gt=0, le=100000, description="Compressor free-gas delivery [L/min]"
     )
+    delivery_pressure_bar: float | None = Field(
+        None,
+        gt=0,
+        le=450,
+        description="Compressor: the supply pressure it holds at the dive manifold [bar gauge]",
+    )
+
+    @property
+    def supply_pressure_bar(self) -> float | None:
+        """Pressure the source supplies [bar gauge]: a bank's or cylinders' charge, a
+        compressor's delivery pressure (``delivery_pressure_bar``, else ``pressure_bar``);
+        ``None`` when not stated."""
+        if self.kind == "compressor" and self.delivery_pressure_bar is not None:
+            return self.delivery_pressure_bar
+        return self.pressure_bar
 
     @model_validator(mode="after")
     def _complete(self) -> GasSource:
@@ -392,7 +482,19 @@ class GasSource(_Section):
                 problems.append(
                     ("delivery_lpm", "missing; a compressor needs its delivery [L/min]")
                 )
+            a, b = self.delivery_pressure_bar, self.pressure_bar
+            if a is not None and b is not None and abs(a - b) > 1e-9:
+                problems.append(
+                    ("pressure_bar", f"got {b:g} and delivery_pressure_bar {a:g}; a compressor's "
+                     "pressure_bar is read as its delivery pressure: give one of the two")
+                )
         else:
+            if self.delivery_pressure_bar is not None:
+                problems.append(
+                    ("delivery_pressure_bar", f"got {self.delivery_pressure_bar:g} on a "
+                     f"{self.kind} source; expected it only on a compressor (a {self.kind} "
+                     "gives its charge in pressure_bar [bar gauge])")
+                )
             for name, what in (("water_volume_l", "[L]"), ("pressure_bar", "[bar gauge]")):
                 if getattr(self, name) is None:
                     problems.append((name, f"missing; a {self.kind} source needs it {what}"))

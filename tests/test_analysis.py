@@ -439,3 +439,39 @@ def test_demo_job_end_to_end():
     assert by_id["D1"]["contingency"]["oxygen_failure"] is None
     names = {ref["name"] for ref in r["references"]}
     assert {"zhl16c", "noaa-cns-limits", "pulmonary-daily-limits"} <= names
+
+
+# --------------------------------------------------------------------------- chamber gas
+
+
+def test_chamber_gas_of_a_surface_decompression_dive():
+    d = _data()
+    d["chamber"].update(lock_volumes_l=[4000, 2000], ventilation_lpm=100, treatment_depth=60,
+                        treatment_min=120,
+                        air_supply={"water_volume_l": 1000, "pressure_bar": 200})
+    plan = _plan(d, max_depth=100, bottom_time_min=40, decompression="surface-oxygen",
+                 surface_transfer_min=2,
+                 stops=[{"depth": 40, "minutes": 2},
+                        {"depth": 50, "minutes": 30, "gas": "oxygen", "place": "chamber"}])
+    g = an.analyse_plan(plan).dives["D1"].supply.chamber
+    # Boyle's law, 33 fsw = 1 atm: the inner lock to 50 fsw; ventilation at the mean
+    # pressure of each chamber segment: compression 0.5 min (0 -> 50 fsw at 100 fsw/min),
+    # 30 min at 50 fsw, 50/30 min back to the surface
+    assert g.parts["surface decompression: pressurising"] == pytest.approx(4000 * 50 / 33)
+    vent = 100 * (0.5 * (1 + 25 / 33) + 30 * (1 + 50 / 33) + 50 / 30 * (1 + 25 / 33))
+    assert g.parts["surface decompression: ventilation"] == pytest.approx(vent)
+    assert g.parts["treatment: pressurising"] == pytest.approx(6000 * 60 / 33)
+    assert g.parts["treatment: ventilation"] == pytest.approx(100 * 120 * (1 + 60 / 33))
+    assert g.need_l == pytest.approx(sum(g.parts.values()))
+    assert g.status is None and g.p_min_bar == pytest.approx(60 * C.BAR_PER_FSW)
+    j = an.analyse_plan(plan).dives["D1"].to_json()["chamber_gas"]
+    assert j["need_l"] == round(g.need_l) and j["missing"] == []
+
+
+def test_chamber_gas_missing_fields_listed():
+    plan = _plan(bottom_time_min=50, decompression="in-water",
+                 stops=[{"depth": 10, "minutes": 10}])
+    g = an.analyse_plan(plan).dives["D1"].supply.chamber
+    assert g.need_l is None
+    assert g.missing == ["chamber.air_supply (water_volume_l, pressure_bar)",
+                         "chamber.lock_volumes_l"]

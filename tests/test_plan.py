@@ -363,6 +363,53 @@ def test_compressor_needs_delivery():
     assert fields(d) == ["gas_supply.secondary.delivery_lpm"]
 
 
+def test_delivery_pressure_only_on_a_compressor():
+    d = base()
+    d["gas_supply"]["secondary"]["delivery_pressure_bar"] = 12  # an hp-bank
+    [(path, msg)] = problems(d)
+    assert path == "gas_supply.secondary.delivery_pressure_bar"
+    assert msg.startswith("got 12 on a hp-bank source; expected it only on a compressor")
+
+
+def test_compressor_pressure_bar_is_its_delivery_pressure():
+    d = base()
+    d["gas_supply"]["secondary"] = {"kind": "compressor", "delivery_lpm": 500, "pressure_bar": 12}
+    assert plan_from_dict(d).gas_supply.secondary.supply_pressure_bar == 12
+    d["gas_supply"]["secondary"]["delivery_pressure_bar"] = 13
+    [(path, msg)] = problems(d)
+    assert path == "gas_supply.secondary.pressure_bar" and "give one of the two" in msg
+    d["gas_supply"]["secondary"]["pressure_bar"] = 13  # the same figure twice is accepted
+    assert plan_from_dict(d).gas_supply.secondary.supply_pressure_bar == 13
+
+
+def test_chamber_sizing_fields():
+    d = base()
+    d["chamber"].update(locks=2, lock_volumes_l=[4000, 2000], treatment_depth=60,
+                        treatment_min=285, treatment_occupants=2, bibs_overboard_dump=True,
+                        ventilation_lpm=300, treatment_gas_l=150000,
+                        air_supply={"water_volume_l": 800, "pressure_bar": 300})
+    c = plan_from_dict(d).chamber
+    assert c.lock_volumes_l == [4000, 2000] and c.air_supply.gas == "air"
+
+
+def test_chamber_sizing_field_problems():
+    d = base()
+    d["chamber"].update(locks=2, depth_capability=165, lock_volumes_l=[4000],
+                        treatment_depth=200, treatment_min=30,
+                        air_supply={"water_volume_l": 800})
+    got = dict(problems(d))
+    assert got["chamber.treatment_min"] == "got 30; expected >= 60 [min]"
+    assert got["chamber.air_supply.pressure_bar"].startswith("missing; expected a number")
+    d["chamber"].update(treatment_min=120, air_supply={"water_volume_l": 800, "pressure_bar": 200})
+    assert dict(problems(d)) == {
+        "chamber.lock_volumes_l": "got 1 volume(s); expected one per lock (locks = 2)",
+        "chamber.treatment_depth": "got 200; expected a depth <= the chamber's "
+                                   "depth_capability (165 fsw)",
+    }
+    d["chamber"].update(lock_volumes_l=[4000, -1], treatment_depth=60)
+    assert fields(d) == ["chamber.lock_volumes_l[1]"]
+
+
 def test_duplicate_team_name():
     d = base()
     d["team"].append(copy.deepcopy(d["team"][0]))

@@ -12,7 +12,8 @@ For every dive of a plan this module
   (:func:`supervisor.engine.schedule.plan_schedule`) and three contingencies;
 * finds the margin of the proposed stops in minutes of bottom time;
 * computes oxygen figures (:mod:`supervisor.engine.oxygen`), gas-supply figures
-  (:mod:`supervisor.supply`) and the reference-table look-up;
+  (:mod:`supervisor.supply`), the chamber's own gas
+  (:mod:`supervisor.analysis.chamber`) and the reference-table look-up;
 
 and for every diver the oxygen exposure across the day and the time before an
 ascent to altitude (flying or driving over a pass).
@@ -82,6 +83,7 @@ from supervisor.analysis.assumptions import (
     SURD_CHAMBER_DEPTH_FSW,
     SURD_INTERVAL_MIN,
 )
+from supervisor.analysis.chamber import CHAMBER_SOURCES, ChamberGas, chamber_gas
 from supervisor.analysis.figures import (
     _anchor,
     _evaluate,
@@ -117,7 +119,9 @@ from supervisor.units import altitude_pressure
 __all__ = [
     "ALTITUDE_SEARCH_MAX_MIN",
     "CABIN_ALTITUDE_M",
+    "CHAMBER_SOURCES",
     "COMPUTE_ERRORS",
+    "ChamberGas",
     "Contingency",
     "DAY_WINDOW_MIN",
     "DiveAnalysis",
@@ -140,6 +144,7 @@ __all__ = [
     "analyse_dive",
     "analyse_plan",
     "bar_per_unit",
+    "chamber_gas",
     "for_context",
     "from_table_depth",
     "margin_minutes",
@@ -509,6 +514,7 @@ def provide(ctx: Any) -> list[Any]:
     After it runs, ``ctx.dive_data[dive_id]`` holds the dive object's
     ``reference_schedule``, ``model_schedule``, ``model_margin``, ``oxygen``,
     ``gas_supply``, ``contingency``, ``chart`` and ``compartments`` (plus
+    ``chamber_gas``, the chamber's own gas of :mod:`supervisor.analysis.chamber`,
     ``repetitive``, ``analysis_notes`` and ``analysis_errors``), and
     ``ctx.shared["references"]`` lists the reference and limit tables used.
 

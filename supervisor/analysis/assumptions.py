@@ -26,6 +26,18 @@ O2_AIR_BREAK                   30 min O2 / 5 air   Rev 7 ch. 9 (SECONDARY)
 EGS_BOTTOM_MIN                 5 min               Navy ch. 8 EGS sample problem states five
                                                    minutes (its arithmetic uses three); the larger
                                                    is used (OLDER-EDITION)
+NAVY_VENT_O2_ACFM              12.5 acfm           per person on oxygen from BIBS with no overboard
+                                                   dump, U.S. Navy Diving Manual Rev 4 Change A
+                                                   §22-5.4 (OLDER-EDITION)
+NAVY_VENT_AIR_REST_ACFM,       2 / 4 acfm          per person breathing chamber air at rest / not
+NAVY_VENT_AIR_WORK_ACFM                            at rest, idem (OLDER-EDITION); used for an
+                                                   overboard dump (FROM MEMORY)
+TREATMENT_DEPTH_FSW            60 fsw              U.S. Navy Treatment Table 6 oxygen depth,
+                                                   Rev 4 Change A ch. 21 (OLDER-EDITION)
+TREATMENT_MIN                  285 min             Treatment Table 6, 4 h 45 min (steps FROM
+                                                   MEMORY)
+CHAMBER_OCCUPANTS              2                   patient and one inside tender (common practice,
+                                                   no source)
 =============================  ==================  ===============================================
 
 References
@@ -36,6 +48,8 @@ References
        secondary sources (surface decompression on oxygen, in-water oxygen).
 .. [3] 46 CFR 197.340, breathing gas supply (primary, secondary, diver-carried
        reserve; chamber for the dive plus one hour).
+.. [4] U.S. Navy Diving Manual, Revision 4 Change A (2001), ch. 21 (treatment
+       tables) and §22-5.4 (chamber ventilation).
 """
 
 from __future__ import annotations
@@ -64,17 +78,27 @@ O2_AIR_BREAK: tuple[float, float] = (30.0, 5.0)
 EGS_BOTTOM_MIN: float = 5.0
 MARGIN_CAP_MIN: int = 120
 ALTITUDE_SEARCH_MAX_MIN: int = 72 * 60
+NAVY_VENT_O2_ACFM: float = 12.5
+NAVY_VENT_AIR_REST_ACFM: float = 2.0
+NAVY_VENT_AIR_WORK_ACFM: float = 4.0
+TREATMENT_DEPTH_FSW: float = 60.0
+TREATMENT_MIN: float = 285.0
+CHAMBER_OCCUPANTS: int = 2
 #: Tolerance when matching a proposed stop with a reference stop, as a share of the stop step.
 STOP_MATCH_FRACTION: float = 0.1
 
 __all__ = [
     "ALTITUDE_SEARCH_MAX_MIN",
     "CABIN_ALTITUDE_M",
+    "CHAMBER_OCCUPANTS",
     "COMPUTE_ERRORS",
     "DAY_WINDOW_MIN",
     "EGS_BOTTOM_MIN",
     "L_PER_FT3",
     "MARGIN_CAP_MIN",
+    "NAVY_VENT_AIR_REST_ACFM",
+    "NAVY_VENT_AIR_WORK_ACFM",
+    "NAVY_VENT_O2_ACFM",
     "O2_AIR_BREAK",
     "O2_SWITCH_DEPTH_FSW",
     "OVERRUN_INCREMENT_MIN",
@@ -84,4 +108,6 @@ __all__ = [
     "STOP_MATCH_FRACTION",
     "SURD_CHAMBER_DEPTH_FSW",
     "SURD_INTERVAL_MIN",
+    "TREATMENT_DEPTH_FSW",
+    "TREATMENT_MIN",
 ]

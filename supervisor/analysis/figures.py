@@ -26,6 +26,7 @@ from supervisor.analysis.assumptions import (
     SURD_CHAMBER_DEPTH_FSW,
     SURD_INTERVAL_MIN,
 )
+from supervisor.analysis.chamber import ChamberGas, chamber_gas
 from supervisor.analysis.results import Margin, Supply, _err
 from supervisor.engine import buhlmann as bm
 from supervisor.engine.kinetics import inspired_pressure, rate_constant, schreiner
@@ -478,11 +479,12 @@ def supply_figures(plan: Plan, dive: Dive, profile: Profile) -> Supply:
     peak = people * float(
         sp.consumption_at_depth(RMV_LPM, dive.max_depth, plan.unit, plan.p_surface_bar)
     )
-    ob = mmp = None
+    ob = mmp = bottom_psig = None
     mmp_error = None
     if dive.mode == "scuba":
         mmp_error = "scuba: no manifold; the cylinder regulator's own minimum applies"
     else:
+        bottom_psig = depth_fsw * sp.NAVY_PSI_PER_FSW
         try:
             ob = sp.navy_over_bottom_pressure(depth_fsw, "demand-helmet")
             mmp = float(sp.minimum_manifold_pressure(depth_fsw, ob))
@@ -516,6 +518,12 @@ def supply_figures(plan: Plan, dive: Dive, profile: Profile) -> Supply:
         else:
             o2_avail = 0.0
     chamber_required = dive.declared_outside_ndl or bool(dive.chamber_stops) or depth_fsw > 100
+    chamber = None
+    if chamber_required and plan.chamber.on_site:
+        try:
+            chamber = chamber_gas(plan, dive, profile)
+        except COMPUTE_ERRORS as exc:
+            chamber = ChamberGas(error=_err(exc))
     return Supply(
         rmv_lpm=RMV_LPM,
         people=people,
@@ -539,4 +547,6 @@ def supply_figures(plan: Plan, dive: Dive, profile: Profile) -> Supply:
         oxygen_available_l=o2_avail,
         chamber_required=chamber_required,
         notes=notes,
+        bottom_psig=bottom_psig,
+        chamber=chamber,
     )

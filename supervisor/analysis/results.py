@@ -166,9 +166,15 @@ class Supply:
         Decompression oxygen (in-water and chamber) needed and held [L].
     chamber_required : bool
         Whether the dive needs the chamber (decompression, chamber stops or
-        deeper than 100 fsw), whose own gas the plan cannot size.
+        deeper than 100 fsw).
     notes : list of str
         Assumptions and figures that could not be computed.
+    bottom_psig : float or None
+        Water pressure at the maximum depth [psig] (Navy 0.445 psi/fsw, unrounded);
+        a supply below it cannot deliver gas to the diver at all.  None for scuba.
+    chamber : ChamberGas or None
+        The chamber's own gas (:mod:`supervisor.analysis.chamber`); None when the
+        chamber is not required or not on site.
     """
 
     rmv_lpm: float
@@ -193,6 +199,8 @@ class Supply:
     oxygen_available_l: float | None
     chamber_required: bool
     notes: list[str] = field(default_factory=list)
+    bottom_psig: float | None = None
+    chamber: Any = None
 
     def to_json(self) -> dict[str, Any]:
         """JSON-ready dictionary."""
@@ -220,6 +228,7 @@ class Supply:
             "oxygen_need_l": _r(self.oxygen_need_l, 0),
             "oxygen_available_l": _r(self.oxygen_available_l, 0),
             "chamber_required": self.chamber_required,
+            "bottom_psig": _r(self.bottom_psig, 0),
             "notes": list(self.notes),
         }
 
@@ -333,6 +342,9 @@ class DiveAnalysis:
             "model_margin": self._margin_json(),
             "oxygen": self._oxygen_json(),
             "gas_supply": self.supply.to_json() if self.supply else None,
+            "chamber_gas": self.supply.chamber.to_json()
+            if self.supply is not None and self.supply.chamber is not None
+            else None,
             "contingency": {
                 k: (c.to_json() if c is not None else None)
                 for k, c in (

@@ -4,7 +4,11 @@ The figures come from :func:`supervisor.analysis.supply_figures`, which does the
 arithmetic with :mod:`supervisor.supply`: free gas in litres at one atmosphere,
 a breathing rate of 1.4 acfm per diver (the Navy demand-helmet average), the
 standby diver counted as a second diver on the same profile, and bank or
-cylinder gas counted down to the minimum manifold pressure.  The Navy methods
+cylinder gas counted down to the minimum manifold pressure.  Supply pressures
+(a bank's charge, a compressor's ``delivery_pressure_bar``) are compared with the
+minimum manifold pressure; one below the water pressure at depth fails.  The
+chamber's own gas is sized by :mod:`supervisor.analysis.chamber` from the
+plan's optional chamber figures.  The Navy methods
 are known from an older edition and the breathing rate is a planning figure, so
 a shortfall warns and a sufficient supply is a pass that needs review; the
 contractor's manual and the equipment maker's figures govern.  A plan that
@@ -16,7 +20,8 @@ References
 .. [1] 46 CFR 197.340, breathing gas supply (primary, secondary, diver-carried
        reserve, chamber).
 .. [2] U.S. Navy Diving Manual, Revision 4 Change A (2001), ch. 8: required
-       volume, over-bottom and minimum manifold pressure, flasks, EGS sizing.
+       volume, over-bottom and minimum manifold pressure, flasks, EGS sizing;
+       ch. 21 and §22-5.4: treatment tables and chamber ventilation.
 """
 
 from __future__ import annotations
@@ -121,7 +126,14 @@ def secondary(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     source_status="OLDER-EDITION",
 )
 def over_bottom(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Bank and cylinder charge pressures against MMP = 0.445 D + over-bottom pressure."""
+    """Supply pressures against MMP = 0.445 D + over-bottom pressure.
+
+    Banks and cylinders give their charge (``pressure_bar``); a compressor its
+    delivery pressure (``delivery_pressure_bar``, else ``pressure_bar``), or the
+    finding needs review.  A supply below the water pressure at the maximum depth
+    cannot deliver gas at all: the plan cannot be carried out as written (fails).
+    Below the minimum manifold pressure (an older-edition Navy method) warns.
+    """
     gs = ctx.plan.gas_supply
     for d, s, bad in _figures(ctx, r):
         if bad is not None:
@@ -136,22 +148,36 @@ def over_bottom(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         for label, src in (("primary", gs.primary), ("secondary", gs.secondary)):
             if src is None:
                 continue
-            if src.kind == "compressor":
+            field = f"gas_supply.{label}."
+            field += "delivery_pressure_bar" if src.kind == "compressor" else "pressure_bar"
+            bar = src.supply_pressure_bar
+            if bar is None:
                 yield r.review(
-                    f"needs review: the plan gives no {label} compressor delivery pressure; it "
-                    f"must hold at least {s.mmp_psig:.0f} psig at the manifold "
+                    f"needs review: the plan gives no {label} compressor delivery pressure "
+                    f"({field}); it must hold at least {s.mmp_psig:.0f} psig at the manifold "
                     f"({s.over_bottom_psig:.0f} psig over bottom)",
                     measured=None, limit=round(s.mmp_psig, 0), unit="psig", dive=d.id,
                 )
                 continue
-            psig = src.pressure_bar / C.BAR_PER_PSI
-            kw = dict(measured=round(psig, 0), limit=round(s.mmp_psig, 0), unit="psig", dive=d.id)
-            text = (f"{label} {src.kind} at {psig:.0f} psig against a minimum manifold pressure "
-                    f"of {s.mmp_psig:.0f} psig ({s.over_bottom_psig:.0f} psig over bottom)")
+            psig = bar / C.BAR_PER_PSI
+            what = "delivering" if src.kind == "compressor" else "charged to"
+            kw = dict(measured=round(psig, 0), unit="psig", dive=d.id)
+            text = f"{label} {src.kind} {what} {psig:.0f} psig ({bar:g} bar, {field})"
+            if s.bottom_psig is not None and psig + 1e-9 < s.bottom_psig:
+                yield r.finding(
+                    "fail", text + f" is below the water pressure at {ctx.show(d.max_depth)} "
+                    f"({s.bottom_psig:.0f} psig): it cannot deliver gas to the diver",
+                    limit=round(s.bottom_psig, 0), citation=f"plan consistency ({field})",
+                    status=None, **kw,
+                )
+                continue
+            text += (f" against a minimum manifold pressure of {s.mmp_psig:.0f} psig "
+                     f"({s.over_bottom_psig:.0f} psig over bottom)")
+            kw["limit"] = round(s.mmp_psig, 0)
             if psig + 1e-9 < s.mmp_psig:
                 yield r.breach(text, **kw)
             else:
-                yield r.ok(text, verified=False, **kw)
+                yield r.ok(text + "; older-edition method: needs review", verified=False, **kw)
 
 
 @FAMILY.rule(
@@ -217,21 +243,55 @@ def oxygen(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 
 @FAMILY.rule(
     "supply-chamber",
-    title="Chamber gas for the dive plus one hour",
+    title="Chamber gas for the dive and a treatment",
     citation=f"{CFR_340} (chamber supplied for the dive and one hour after)",
     kind="reference",
     source_status="VERIFIED",
 )
 def chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """The chamber's own gas cannot be sized from the plan: review when the chamber is needed."""
+    """The chamber's flasks against pressurising and ventilating it (analysis.chamber).
+
+    Needs review when the plan lacks the chamber figures.  A shortfall warns when
+    the need rests on a default (Navy ventilation rates, Treatment Table 6) and
+    fails when every figure is the plan's own (the plan cannot be carried out as
+    written).  A sufficient supply passes, needing review when a default was used.
+    """
     for d, s, bad in _figures(ctx, r):
         if bad is not None:
             yield bad
             continue
-        if s.chamber_required:
+        if not s.chamber_required:
+            continue
+        g = s.chamber
+        if g is None:
             yield r.review(
-                "needs review: the chamber's own gas (pressurisation, ventilation and occupants "
-                "for the dive plus one hour) is not sized: the plan gives no chamber volume or "
-                "ventilation rate; confirm it against the chamber's manual",
+                "needs review: no chamber on site in the plan; the gas of the chamber the dive "
+                "relies on is not sized here (dive plus one hour, and a treatment)",
                 dive=d.id,
             )
+            continue
+        if g.error is not None or g.need_l is None or g.available_l is None:
+            why = g.error or ("the plan gives no " + " or ".join(g.missing))
+            yield r.review(
+                f"needs review: the chamber's own gas (pressurising and ventilation for the dive "
+                f"and a treatment) is not sized: {why}; confirm it against the chamber's manual",
+                dive=d.id,
+            )
+            continue
+        what = "surface decompression and a treatment" if any(
+            k.startswith("surface decompression") for k in g.parts) else "a treatment"
+        text = (f"chamber flasks {g.available_l:.0f} L against a need of {g.need_l:.0f} L for "
+                f"{what}, pressurising and ventilating ({'; '.join(g.basis)})")
+        kw = dict(measured=round(g.available_l, 0), limit=round(g.need_l, 0), unit="L",
+                  dive=d.id)
+        own = g.status is None
+        cite = (f"{CFR_340}; plan consistency (chamber figures of the plan)" if own
+                else f"{CFR_340}; {an.CHAMBER_SOURCES}")
+        if g.available_l + 1e-9 < g.need_l:
+            yield r.breach("short: " + text, status=g.status, kind="plan" if own else None,
+                           citation=cite, **kw)
+        elif own:
+            yield r.ok(text, citation=cite, status=None, kind="plan", **kw)
+        else:
+            yield r.ok(text + f"; rests on figures held {g.status}: needs review",
+                       citation=cite, status=g.status, verified=False, **kw)

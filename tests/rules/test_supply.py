@@ -89,6 +89,48 @@ def test_over_bottom_bank_below_mmp_warns():
 def test_over_bottom_compressor_needs_review():
     f = [x for x in run(data(), FAMILY, "supply-over-bottom") if x.severity == "warn"]
     assert len(f) == 1 and "delivery pressure" in f[0].message
+    assert "gas_supply.primary.delivery_pressure_bar" in f[0].message and not f[0].verified
+
+
+def _compressor(**kw):
+    d = data()
+    d["gas_supply"]["primary"].update(kw)
+    return run(d, FAMILY, "supply-over-bottom")
+
+
+def test_over_bottom_compressor_delivery_pressure_pass():
+    got = _compressor(delivery_pressure_bar=10)
+    no_bad(got)
+    f = got[0]
+    # 10 bar = 145 psig against 117 psig (60 x 0.445 = 26.7 -> 27, + 90 psig, p. 8-4)
+    assert (f.measured, f.limit) == (pytest.approx(10 / C.BAR_PER_PSI, abs=0.5), 117)
+    assert "delivery_pressure_bar" in f.message and not f.verified
+
+
+def test_over_bottom_compressor_below_mmp_warns():
+    f = only(_compressor(delivery_pressure_bar=7), "warn")  # 101.5 psig < 117 psig
+    assert f.rule == "supply-over-bottom" and f.limit == 117
+    assert f.measured == pytest.approx(7 / C.BAR_PER_PSI, abs=0.5)
+    assert f.citation.startswith(NAVY_CH8) and f.source_status == "OLDER-EDITION"
+
+
+def test_over_bottom_compressor_below_the_water_pressure_fails():
+    # 1.5 bar = 21.8 psig is below the water at 60 fsw (60 x 0.445 = 26.7 psig, p. 8-4)
+    f = only(_compressor(delivery_pressure_bar=1.5), "fail")
+    assert f.limit == pytest.approx(60 * 0.445, abs=0.5)
+    assert f.measured == pytest.approx(1.5 / C.BAR_PER_PSI, abs=0.5)
+    assert f.citation == "plan consistency (gas_supply.primary.delivery_pressure_bar)"
+    assert "cannot deliver gas" in f.message
+
+
+def test_over_bottom_compressor_pressure_bar_is_its_delivery_pressure():
+    f = only(_compressor(pressure_bar=7), "warn")  # an older plan's field, no longer ignored
+    assert f.measured == pytest.approx(7 / C.BAR_PER_PSI, abs=0.5) and f.limit == 117
+
+
+def test_over_bottom_bank_below_the_water_pressure_fails():
+    f = only(run(_bank(200, 1), FAMILY, "supply-over-bottom"), "fail")
+    assert f.citation == "plan consistency (gas_supply.primary.pressure_bar)"
 
 
 def test_bailout_pass():
@@ -138,7 +180,76 @@ def test_no_oxygen_stops_no_finding():
 def test_chamber_gas_needs_review_for_decompression_dives():
     assert run(data(), FAMILY, "supply-chamber") == []
     f = only(run(_o2_dive(), FAMILY, "supply-chamber"), "warn")
-    assert f.rule == "supply-chamber" and CFR_340 in f.citation
+    assert f.rule == "supply-chamber" and CFR_340 in f.citation and not f.verified
+    assert "chamber.air_supply" in f.message and "chamber.lock_volumes_l" in f.message
+
+
+def _chamber_dive(flask_l=1000, **chamber):
+    d = _o2_dive()
+    d["chamber"].update(lock_volumes_l=[4000, 2000],
+                        air_supply={"gas": "air", "water_volume_l": flask_l, "pressure_bar": 200})
+    d["chamber"].update(chamber)
+    return d
+
+
+OWN = dict(treatment_depth=60, treatment_min=120, ventilation_lpm=200)
+# Boyle's law with 33 fsw = 1 atm (U.S. Navy convention): both locks to 60 fsw once,
+# then 200 L/min at 1 + 60/33 atm for 120 min
+OWN_NEED = 6000 * 60 / 33 + 200 * 120 * (1 + 60 / 33)
+
+
+def test_chamber_gas_own_figures_pass():
+    f = only(run(_chamber_dive(**OWN), FAMILY, "supply-chamber"), "pass")
+    assert f.limit == pytest.approx(OWN_NEED, abs=1)
+    # 1000 L at 200 bar above 60 fsw: no more than the ideal-gas (Boyle) content
+    assert 0.8 * 1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR < f.measured
+    assert f.measured < 1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR
+    assert f.verified and f.source_status is None
+
+
+def test_chamber_gas_own_figures_short_fails():
+    f = only(run(_chamber_dive(flask_l=200, **OWN), FAMILY, "supply-chamber"), "fail")
+    assert f.rule == "supply-chamber" and f.measured < f.limit
+    assert f.limit == pytest.approx(OWN_NEED, abs=1)
+    assert CFR_340 in f.citation and "plan consistency" in f.citation
+
+
+def test_chamber_gas_from_navy_defaults_short_warns():
+    # no dump stated: 12.5 acfm per occupant on oxygen, 2 occupants (U.S. Navy Diving Manual
+    # Rev 4 Change A §22-5.4, OLDER-EDITION); Treatment Table 6 at 60 fsw for 285 min
+    # (step times FROM MEMORY)
+    f = only(run(_chamber_dive(flask_l=1000), FAMILY, "supply-chamber"), "warn")
+    q = 2 * 12.5 * an.L_PER_FT3
+    assert f.limit == pytest.approx(6000 * 60 / 33 + q * 285 * (1 + 60 / 33), abs=1)
+    assert f.source_status == "FROM MEMORY" and "short" in f.message
+
+
+def test_chamber_gas_defaults_sufficient_needs_review():
+    f = only(run(_chamber_dive(flask_l=4000), FAMILY, "supply-chamber"), "pass")
+    assert not f.verified and "needs review" in f.message
+
+
+def test_chamber_gas_overboard_dump_uses_air_rates():
+    d = _chamber_dive(flask_l=4000, bibs_overboard_dump=True, treatment_occupants=3,
+                      treatment_depth=60, treatment_min=285)
+    f = only(run(d, FAMILY, "supply-chamber"), "pass")
+    # 2 acfm for the patient at rest + 4 acfm for each of two tenders (Navy §22-5.4)
+    q = (2 + 2 * 4) * an.L_PER_FT3
+    assert f.limit == pytest.approx(6000 * 60 / 33 + q * 285 * (1 + 60 / 33), abs=1)
+
+
+def test_chamber_gas_treatment_figure_from_the_manual():
+    d = _chamber_dive(treatment_gas_l=50000, treatment_depth=60)
+    del d["chamber"]["lock_volumes_l"]  # not needed without chamber stops
+    f = only(run(d, FAMILY, "supply-chamber"), "pass")
+    assert f.limit == 50000 and f.verified
+
+
+def test_chamber_not_on_site_needs_review():
+    d = _o2_dive()
+    d["chamber"]["on_site"] = False
+    f = only(run(d, FAMILY, "supply-chamber"), "warn")
+    assert "no chamber on site" in f.message
 
 
 def test_supply_rules_pass_shallow_base():
