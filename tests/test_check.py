@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import dataclasses
 import datetime as dt
 import hashlib
 import json
@@ -94,11 +95,31 @@ def test_unchecked_areas_keep_the_verdict_at_needs_review():
     assert r["verdict"] == "needs-review"
 
 
-def test_conforms_when_every_area_is_checked_and_passes():
+def _confirmed_only(families):
+    """The families with only the rules that rest on a confirmed source, a policy or the plan."""
+    out = []
+    for fam in families:
+        keep = [r for r in fam.rules if r.confirmed()]
+        out.append(dataclasses.replace(fam, rules=keep))
+    return out
+
+
+def test_conforms_when_every_area_is_checked_and_passes_on_confirmed_rules():
+    """'conforms' is reachable: with every area checked and only rules on confirmed sources."""
     without = [f for f in FAMILIES if f.name not in EXPECTED_FAMILIES]
-    r = run_check(BASE, now=NOW, families=(*without, *_stand_ins()), providers=[])
+    r = run_check(BASE, now=NOW, families=(*_confirmed_only(without), *_stand_ins()),
+                  providers=[])
     assert r["verdict"] == "conforms", [f for f in r["findings"] if f["severity"] != "pass"]
     assert not any(f["rule"].endswith("-not-checked") for f in r["findings"])
+
+
+def test_a_pass_on_an_unconfirmed_rule_keeps_needs_review():
+    """The same plan with the rules on unconfirmed rows (FROM MEMORY, SECONDARY, DERIVED):
+    they pass, but a pass that rests on them is not verified, so never 'conforms'."""
+    without = [f for f in FAMILIES if f.name not in EXPECTED_FAMILIES]
+    r = run_check(BASE, now=NOW, families=(*without, *_stand_ins()), providers=[])
+    assert r["verdict"] == "needs-review"
+    assert not any(f["severity"] in ("fail", "warn") for f in r["findings"])
 
 
 def test_policy_family_breach_fails():
