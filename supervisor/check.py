@@ -123,76 +123,12 @@ Provider = Callable[[CheckContext], Iterable[Finding]]
 # providers
 
 
-def _deco_gases(dive: Dive) -> tuple[tuple[str, float], ...]:
-    """Decompression gases of the planned water stops and the deepest depth each is used."""
-    out: dict[str, float] = {}
-    bottom = dive.gas_mix.name
-    for s in dive.water_stops:
-        g = dive.stop_gas(s).name
-        if g != bottom and g not in out:
-            out[g] = s.depth
-    return tuple(out.items())
-
-
-def schedule_request(ctx: CheckContext, dive: Dive) -> Any:
-    """Build the engine's ``ScheduleRequest`` for a dive as the policy sets the model.
-
-    Parameters
-    ----------
-    ctx : CheckContext
-    dive : Dive
-
-    Returns
-    -------
-    supervisor.engine.schedule.ScheduleRequest
-    """
-    from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression
-
-    plan, pol = ctx.plan, ctx.policy
-    surd = None
-    if dive.decompression == "surface-oxygen" and dive.chamber_stops:
-        from supervisor.rules.procedure import surd_interval_min
-
-        ws = dive.water_stops
-        leave = max(ws[-1].depth if ws else float(pol.last_stop), float(pol.last_stop))
-        si = surd_interval_min(ctx, dive)
-        surd = SurfaceDecompression(
-            leave_water_depth=leave,
-            surface_interval_min=si if si is not None else 5.0,
-            chamber_depth=dive.chamber_stops[0].depth,
-            chamber_gas=dive.stop_gas(dive.chamber_stops[0]).name,
-        )
-    return ScheduleRequest(
-        depth=dive.max_depth,
-        bottom_time_min=dive.bottom_time_min,
-        unit=plan.unit,
-        gas=dive.gas_mix.name,
-        model=pol.model,
-        gf_low=pol.gf_low / 100.0,
-        gf_high=pol.gf_high / 100.0,
-        descent_rate=plan.descent_rate(dive),
-        ascent_rate=plan.ascent_rate(dive),
-        stop_step=float(pol.stop_step),
-        last_stop=float(pol.last_stop),
-        deco_gases=_deco_gases(dive),
-        p_surface_bar=plan.p_surface_bar,
-        water=plan.site.water,
-        o2_air_break=(30.0, 5.0) if dive.decompression == "in-water-oxygen" else None,
-        surface_decompression=surd,
-    )
-
-
 def model_schedule_provider(ctx: CheckContext) -> Iterator[Finding]:
-    """Fill ``model_schedule`` per dive from the engine (first dives only).
+    """Record the coefficient set of the policy's model and its source status.
 
-    A repetitive dive (one with a surface interval) starts with residual gas
-    the repetitive family must carry over; its model schedule is left ``None``
-    here rather than computed from clean tissues, which would understate it.
+    The model schedules themselves are computed by :mod:`supervisor.analysis`
+    (one code path, with tissues carried across surface intervals).
     """
-    try:
-        from supervisor.engine.schedule import plan_schedule
-    except ModuleNotFoundError:  # pragma: no cover - the engine ships with the package
-        return
     from supervisor.engine.buhlmann import load_coefficients
 
     coeffs = load_coefficients(ctx.policy.model)
@@ -210,37 +146,9 @@ def model_schedule_provider(ctx: CheckContext) -> Iterator[Finding]:
             "verification": None,
         }
     )
-    for d in ctx.plan.dives:
-        if d.surface_interval_min is not None or d.previous_dive is not None:
-            continue
-        try:
-            res = plan_schedule(schedule_request(ctx, d))
-        except Exception as exc:  # any engine failure becomes a warning
-            yield Finding(
-                rule="model-schedule",
-                severity="warn",
-                message=f"model schedule could not be computed ({type(exc).__name__}: {exc})",
-                citation="decompression model (policy.model)",
-                dive=d.id,
-                verified=False,
-                family="engine",
-            )
-            continue
-        j = res.to_json()
-        ctx.dive_data[d.id]["model_schedule"] = {
-            "stops": j["stops"],
-            "total_stop_min": j["total_stop_min"],
-            "total_ascent_min": j["total_ascent_min"],
-            "no_stop_limit_min": j["no_stop_limit_min"],
-            "first_stop_depth": j["first_stop_depth"],
-            "surfacing_gf_percent": j["surfacing_gf_percent"],
-            "controlling_compartment": j["controlling_compartment"],
-            "coefficient_status": j["coefficient_status"],
-        }
+    yield from ()
 
 
-#: The per-dive analysis (supervisor.analysis) runs after the first-dive schedules and
-#: fills every engine-backed section, repetitive dives included (tissues carried over).
 PROVIDERS: list[Provider] = [model_schedule_provider, analysis.provide]
 
 

@@ -156,30 +156,27 @@ def _deck_min(segments) -> float:
 
 
 @pytest.mark.parametrize("deck", [0, 2, None])
-def test_surface_decompression_request_keeps_the_planned_deck_time(deck):
+def test_surface_decompression_request_keeps_the_planned_times(deck):
+    """The engine compresses the chamber at the plan's compression rate (100 fsw/min), not
+    the dive's descent rate: the interval and the deck time are exactly the plan's."""
     plan = _surd_plan(surface_transfer_min=deck)
-    notes: list[str] = []
-    req = an.schedule_request(plan, plan.dives[0], notes=notes)
+    req = an.schedule_request(plan, plan.dives[0])
     up, planned_deck, down, _ = plan.surface_decompression_times(plan.dives[0])
     sd = req.surface_decompression
-    # the engine compresses at the descent rate (60 fsw/min, 50/60 min), slower than the
-    # plan's 100 fsw/min: the interval grows by the difference, the deck time stays
-    assert sd.surface_interval_min == pytest.approx(up + planned_deck + 50 / 60, abs=1e-6)
-    assert sd.surface_interval_min >= up + planned_deck + down
+    assert sd.compression_rate == pytest.approx(plan.chamber_compression_rate)
+    assert sd.surface_interval_min == pytest.approx(up + planned_deck + down, abs=1e-6)
     res = plan_schedule(req)  # a deck time of 0 min is a working schedule
     assert _deck_min(res.profile.segments) == pytest.approx(planned_deck, abs=1e-6)
-    assert any("descent rate (60 fsw/min)" in n for n in notes)
 
 
-def test_surface_decompression_request_never_shortens_the_interval():
-    # descent faster than the chamber compression: the engine's deck time grows instead
+def test_surface_decompression_request_independent_of_descent_rate():
     plan = _surd_plan(descent_rate=150, bottom_time_min=30, surface_transfer_min=0)
     req = an.schedule_request(plan, plan.dives[0])
     up, deck, down, _ = plan.surface_decompression_times(plan.dives[0])
     assert req.surface_decompression.surface_interval_min == pytest.approx(up + deck + down,
                                                                            abs=1e-6)
     res = plan_schedule(req)
-    assert _deck_min(res.profile.segments) == pytest.approx(50 / 100 - 50 / 150, abs=1e-6)
+    assert _deck_min(res.profile.segments) == pytest.approx(0.0, abs=1e-6)
 
 
 def test_surface_transfer_zero_analyses_without_errors():

@@ -147,7 +147,6 @@ def schedule_request(
     chamber = dive.chamber_stops
     if chamber or dive.decompression == "surface-oxygen":
         ascent = plan.ascent_rate(dive)
-        descent = plan.descent_rate(dive)
         compress = plan.chamber_compression_rate
         water = dive.water_stops
         leave = min(s.depth for s in water) if water else dive.max_depth
@@ -161,23 +160,15 @@ def schedule_request(
         else:
             up = (water[-1].depth if water else dive.max_depth) / ascent
             deck = max(SURD_INTERVAL_MIN - up - c_depth / compress, 0.0)
-        # The engine compresses the chamber at the dive's descent rate; neither the time on
-        # deck nor the whole interval may come out shorter than the plan's (100 fsw/min).
         up = max(up, leave / ascent)
-        si = up + deck + max(c_depth / compress, c_depth / descent)
-        if abs(descent - compress) > 1e-9:
-            notes.append(
-                f"model schedule: the engine compresses the chamber at the dive's descent rate "
-                f"({descent:g} {plan.unit}/min), the plan at {compress:g} {plan.unit}/min; its "
-                f"surface interval is {si:.2f} min so that neither the {deck:.2f} min on deck "
-                "nor the whole interval is shorter than planned"
-            )
+        si = up + deck + c_depth / compress
         sd = SurfaceDecompression(
             leave_water_depth=leave,
             surface_interval_min=si + 1e-9,
             chamber_depth=c_depth,
             chamber_gas=c_gas,
             air_break=O2_AIR_BREAK,
+            compression_rate=compress,
         )
     o2_break = O2_AIR_BREAK if any(parse_gas(g).fo2 > 0.5 for g, _ in deco) else None
     return ScheduleRequest(

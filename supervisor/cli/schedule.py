@@ -144,6 +144,10 @@ def register(app: typer.Typer) -> None:
         chamber_depth: float = typer.Option(
             None, "--chamber-depth", help="First chamber stop (50 fsw, 15 msw)."
         ),
+        chamber_compression_rate: float = typer.Option(
+            None, "--chamber-compression-rate",
+            help="Chamber compression rate [unit/min] (default: the descent rate).",
+        ),
         chamber_air_break: str = typer.Option(
             "30/5", "--chamber-air-break", help="Chamber oxygen/air periods, e.g. 30/5."
         ),
@@ -168,6 +172,7 @@ def register(app: typer.Typer) -> None:
                 else (50.0 if unit == "fsw" else 15.0),
                 chamber_gas="oxygen",
                 air_break=_parse_break(chamber_air_break, "--chamber-air-break"),
+                compression_rate=chamber_compression_rate,
             )
         req = ScheduleRequest(
             depth=depth,

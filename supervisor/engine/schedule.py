@@ -107,6 +107,9 @@ class SurfaceDecompression:
         Gas breathed at the chamber stops (``oxygen`` by default).
     air_break : tuple of float or None
         (gas minutes, air minutes) cycle for the chamber gas; ``None`` for none.
+    compression_rate : float or None
+        Rate of the chamber compression to the first chamber stop [unit/min];
+        ``None`` uses the dive's descent rate.
     """
 
     leave_water_depth: float
@@ -114,6 +117,11 @@ class SurfaceDecompression:
     chamber_depth: float = 50.0
     chamber_gas: str = "oxygen"
     air_break: tuple[float, float] | None = (30.0, 5.0)
+    compression_rate: float | None = None
+
+    def compression(self, descent_rate: float) -> float:
+        """Chamber compression rate in force [unit/min]."""
+        return descent_rate if self.compression_rate is None else self.compression_rate
 
 
 @dataclass(frozen=True)
@@ -249,7 +257,12 @@ class ScheduleRequest:
                         name, f"got {v!r}; expected a depth from the last stop "
                         f"({self.last_stop:g} {u}) to the bottom depth ({self.depth:g} {u})"
                     )
-            travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / self.descent_rate
+            cr = sd.compression_rate
+            if cr is not None and (not _num(cr) or cr <= 0):
+                raise InputError("--chamber-compression-rate",
+                                 f"got {cr!r}; expected a rate > 0 {u}/min")
+            travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / sd.compression(
+                self.descent_rate)
             si = sd.surface_interval_min
             if not _num(si) or si + 1e-9 < travel or si > 60:
                 raise InputError(
@@ -829,7 +842,7 @@ class _Batch:
         sd = r0.surface_decompression
         assert sd is not None
         up = np.where(rows, cur / r0.ascent_rate, 0.0)
-        down = np.where(rows, sd.chamber_depth / r0.descent_rate, 0.0)
+        down = np.where(rows, sd.chamber_depth / sd.compression(r0.descent_rate), 0.0)
         on_surface = np.where(rows, sd.surface_interval_min - up - down, 0.0)
         # peak supersaturation during the interval is at arrival on the surface or just after
         pn, ph = self.segment(pn, ph, cur, np.where(rows, 0.0, cur), up, cur_gas)

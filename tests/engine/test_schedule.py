@@ -257,3 +257,16 @@ def test_upper_limits(kw, field):
     with pytest.raises(InputError) as exc:
         plan_schedule(ScheduleRequest(**base))
     assert exc.value.field == field and "<=" in exc.value.message
+
+
+def test_chamber_compression_rate():
+    """The chamber is compressed at its own rate when given (default: the descent rate)."""
+    base = {"depth": 150, "bottom_time_min": 40, **FSW}
+    slow = plan_schedule(ScheduleRequest(**base, surface_decompression=SurfaceDecompression(
+        40, 5, 50, compression_rate=25.0)))
+    comp = [s for s in slow.profile.segments if s.label.endswith("compression")]
+    assert comp and comp[0].minutes == pytest.approx(50 / 25.0)
+    with pytest.raises(InputError) as exc:
+        plan_schedule(ScheduleRequest(**base, surface_decompression=SurfaceDecompression(
+            40, 5, 50, compression_rate=0.0)))
+    assert exc.value.field == "--chamber-compression-rate"
