@@ -472,3 +472,11 @@ def test_chamber_gas_missing_fields_listed():
     assert g.need_l is None
     assert g.missing == ["chamber.air_supply (water_volume_l, pressure_bar)",
                          "chamber.lock_volumes_l"]
+
+
+def test_surface_interval_peak_is_reported_for_surface_decompression():
+    """The surface interval lies outside the ceiling check; its peak supersaturation is
+    reported in model_margin (above 100 % of the M-value gradient is normal there)."""
+    a = an.analyse_plan(_surd_plan()).dives["D1"]
+    mm = a.to_json()["model_margin"]
+    assert mm["surface_interval_max_gf_percent"] > 100

@@ -397,6 +397,10 @@ class DiveAnalysis:
             "controlling_compartment": ev.controlling_compartment if ev else None,
             "first_break_min": _r(ev.first_break_min, 2) if ev else None,
             "worst_excess_depth": _r(ev.worst_excess_bar / bpu, 2) if ev else None,
+            # surface decompression: the interval from leaving the water stop to arriving at
+            # chamber depth lies outside the ceiling check; its peak is reported here
+            "surface_interval_max_gf_percent": _r(100 * ev.surface_interval_max_gf, 1)
+            if ev and ev.surface_interval_max_gf is not None else None,
             "margin_min": m.minutes if m else None,
             "margin_capped": m.capped if m else None,
             "margin_uncoverable": m.uncoverable if m else None,
