@@ -11,6 +11,7 @@ verify    0 recorded; 1 the file fails validation (nothing written);
 import    0 written; 1 the imported table fails validation (nothing written);
           2 bad option or cell, or the output exists without --force.
 build     0 written; 2 bad option or a schedule the engine cannot compute.
+lookup    0 a row found; 1 outside the table or no such schedule; 2 bad input.
 screen    0 no row flagged; 1 rows flagged, or the file fails the sanity rules (it is
           still screened: screening is a transcription aid); 2 unreadable file or one
           that fails the schema.
@@ -224,6 +225,66 @@ def show(
         typer.echo(line.rstrip())
     for issue in t.issues:
         typer.echo(issue.line(t.name), err=True)
+
+
+@tables_app.command("lookup")
+@guarded
+def lookup(
+    name: str = typer.Argument(..., help="Bundled table name (see `tables list`) or a file path."),
+    depth: float = typer.Option(..., "--depth", help="Maximum depth of the dive [table unit]."),
+    bottom_time: float = typer.Option(..., "--bottom-time", help="Bottom time [min]."),
+    mode: str = typer.Option("air", "--mode", help="Decompression mode of a decompression "
+                             "table: air, air_o2 or surd_o2."),
+    as_json: bool = typer.Option(False, "--json", help="Print the look-up as JSON."),
+) -> None:
+    """Look a dive up: next deeper depth, next longer bottom time, or outside the table.
+
+    Exit 0 a row was found, 1 the dive is outside the table (or no such schedule), 2 bad
+    input.  A row that is not verified, or from a source that is not VERIFIED, needs review.
+    """
+    from supervisor.references import lookup_no_stop, lookup_schedule
+
+    t = load_table(name)
+    if t.kind == "no-stop":
+        res = lookup_no_stop(t, depth, bottom_time)
+    elif t.kind == "decompression":
+        if mode not in MODE_TITLES:
+            raise InputError("--mode", f"got {mode!r}; expected one of {', '.join(MODE_TITLES)}")
+        res = lookup_schedule(t, depth, bottom_time, mode=mode)
+    else:
+        raise InputError("NAME", f"{t.name} is a {t.kind} table; look-up works on no-stop and "
+                         "decompression tables")
+    d = res.to_dict()
+    if as_json:
+        typer.echo(json.dumps(d, indent=2, ensure_ascii=False))
+    else:
+        u = d["unit"]
+        if d["outside_table"]:
+            typer.echo(f"{t.name}: {_fmt(depth)} {u} / {_fmt(bottom_time)} min is outside the "
+                       f"table: {d['reason']}")
+        else:
+            typer.echo(f"{t.name}: entered at {_fmt(d['depth'])} {u}"
+                       + (f" / {_fmt(d['bottom_time_min'])} min" if d.get("bottom_time_min")
+                          is not None else "") + f" (row {d['row']})")
+            if t.kind == "decompression" and d.get("stops") is not None:
+                stops = ", ".join(f"{_fmt(x['depth'])} {u} {_fmt(x['minutes'])} min {x['gas']}"
+                                  f"{' (chamber)' if x['place'] == 'chamber' else ''}"
+                                  for x in d["stops"]) or "no decompression stops"
+                typer.echo(f"{mode}: {stops}")
+            if d.get("no_stop_limit_min") is not None:
+                lim = d["no_stop_limit_min"]
+                lim = lim if isinstance(lim, str) else f"{_fmt(lim)} min"
+                within = {True: "yes", False: "no"}.get(d.get("within_no_stop_limit"), "-")
+                typer.echo(f"no-stop limit: {lim}; bottom time within it: {within}")
+            if d.get("exceptional_exposure"):
+                typer.echo("exceptional exposure")
+            if d.get("reason"):
+                typer.echo(f"note: {d['reason']}")
+            review = "needs review" if d.get("needs_review") else "verified row"
+            typer.echo(f"row: {d['row_verification']}, source {d['source_status']} ({review})")
+    no_row = d["outside_table"] or (t.kind == "decompression" and d.get("stops") is None)
+    if no_row:
+        raise typer.Exit(EXIT_FAIL)
 
 
 @tables_app.command("validate")

@@ -173,3 +173,28 @@ def test_console_script_tables_list():
     proc = subprocess.run([exe, "tables", "list"], capture_output=True, text=True, timeout=60)
     assert proc.returncode == 0, proc.stderr
     assert "usn-rev7-air-ndl" in proc.stdout
+
+
+def test_lookup_rounds_to_next_deeper_depth_and_longer_time():
+    """Table entry rule: exact or next deeper depth, exact or next longer bottom time
+    (U.S. Navy Diving Manual, Rev 4 Change A, ch. 9; older edition)."""
+    res = _run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "104", "--bottom-time", "33")
+    assert res.exit_code == 0, res.output
+    assert "entered at 110 fsw / 35 min" in res.stdout and "needs review" in res.stdout
+    js = json.loads(_run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "104",
+                         "--bottom-time", "33", "--json").stdout)
+    assert js["depth"] == 110 and js["bottom_time_min"] == 35 and js["needs_review"] is True
+
+
+def test_lookup_modes_no_stop_and_outside():
+    res = _run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "110", "--bottom-time", "40",
+               "--mode", "surd_o2")
+    assert res.exit_code == 0 and "(chamber)" in res.stdout
+    res = _run("lookup", "usn-rev7-air-ndl", "--depth", "58", "--bottom-time", "40")
+    assert res.exit_code == 0 and "no-stop limit: 63 min" in res.stdout
+    assert "FROM MEMORY" in res.stdout
+    res = _run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "250", "--bottom-time", "30")
+    assert res.exit_code == 1 and "outside the table" in res.stdout
+    res = _run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "100", "--bottom-time", "30",
+               "--mode", "foo")
+    assert res.exit_code == 2 and "--mode" in res.output
