@@ -647,24 +647,7 @@ def osha_chamber_165(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if not ch.on_site:
             yield r.breach(f"no chamber at the site ({reason})", measured=NONE, **kw)
             continue
-        if ch.depth_capability is None:
-            yield r.review(
-                f"needs review: chamber depth capability not stated ({reason})",
-                measured=NOT_STATED,
-                **kw,
-            )
-        elif ctx.fsw(ch.depth_capability) < 165:
-            yield r.breach(
-                f"chamber reaches {ctx.show(ch.depth_capability)}, less than 165 fsw ({reason})",
-                measured=ch.depth_capability,
-                **kw,
-            )
-        else:
-            yield r.ok(
-                f"chamber at the site reaches {ctx.show(ch.depth_capability)}",
-                measured=ch.depth_capability,
-                **kw,
-            )
+        yield from chamber_reaches(ctx, r, 165.0, f" ({reason})", "chamber at the site", kw)
 
 
 @FAMILY.rule(
@@ -1017,3 +1000,32 @@ def osha_tables(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         ctx.plan.site.tables_on_site,
         "decompression, repetitive and no-decompression tables at the site",
     )
+
+
+def chamber_reaches(
+    ctx: CheckContext, r: Rule, need_fsw: float, why: str, ok_text: str, kw: dict
+) -> Iterator[Finding]:
+    """Findings for "the chamber reaches at least ``need_fsw``" (shared by OSHA and USCG).
+
+    Parameters
+    ----------
+    ctx : CheckContext
+    r : Rule
+    need_fsw : float
+        Depth the chamber must reach [fsw].
+    why : str
+        Text appended to the review and breach messages (the trigger), may be empty.
+    ok_text : str
+        Subject of the passing message.
+    kw : dict
+        ``limit``, ``unit`` and ``dive`` of the findings.
+    """
+    cap = ctx.plan.chamber.depth_capability
+    if cap is None:
+        yield r.review(f"needs review: chamber depth capability not stated{why}",
+                       measured=NOT_STATED, **kw)
+    elif ctx.fsw(cap) < need_fsw:
+        yield r.breach(f"chamber reaches {ctx.show(cap)}, less than {need_fsw:g} fsw{why}",
+                       measured=cap, **kw)
+    else:
+        yield r.ok(f"{ok_text} reaches {ctx.show(cap)}", measured=cap, **kw)

@@ -20,7 +20,7 @@ from collections.abc import Iterator
 
 from supervisor.findings import Finding
 from supervisor.plan import Dive
-from supervisor.rules.base import NONE, NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.base import NONE, CheckContext, Family, Rule
 from supervisor.rules.regulatory import (
     LOCATION_RESERVE,
     MIXED,
@@ -32,6 +32,7 @@ from supervisor.rules.regulatory import (
     SUPERVISOR,
     SURFACE_SUPPLIED,
     TENDER,
+    chamber_reaches,
     chamber_state,
     mixed_status,
 )
@@ -346,22 +347,7 @@ def uscg_chamber_depth(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         need_fsw = 165.0 if ctx.fsw(d.max_depth) <= 300 else ctx.fsw(d.max_depth)
         kw = dict(limit=ctx.limit(need_fsw), unit=ctx.unit, dive=d.id)
-        if ch.depth_capability is None:
-            yield r.review(
-                "needs review: chamber depth capability not stated", measured=NOT_STATED, **kw
-            )
-        elif ctx.fsw(ch.depth_capability) < need_fsw:
-            yield r.breach(
-                f"chamber reaches {ctx.show(ch.depth_capability)}, less than {need_fsw:g} fsw",
-                measured=ch.depth_capability,
-                **kw,
-            )
-        else:
-            yield r.ok(
-                f"chamber reaches {ctx.show(ch.depth_capability)}",
-                measured=ch.depth_capability,
-                **kw,
-            )
+        yield from chamber_reaches(ctx, r, need_fsw, "", "chamber", kw)
 
 
 @FAMILY.rule(
