@@ -24,13 +24,18 @@ from reportlab.platypus import PageBreak, SimpleDocTemplate
 from supervisor import __version__
 from supervisor.report import sections
 from supervisor.report.fonts import REGULAR, clean, plain_width, register_fonts, runs
-from supervisor.report.formatting import NOT_COMPUTED, short_hash
+from supervisor.report.formatting import (
+    NOT_COMPUTED,
+    count_findings,
+    effective_verdict,
+    short_hash,
+)
+from supervisor.report.pdf_meta import keywords
 from supervisor.report.sections import SignerNote
 from supervisor.report.styles import H2, para
 
 PAPER = {"letter": letter, "a4": A4}
 MARGIN = 0.6 * inch
-KEYWORD_PREFIX = "document-sha256:"
 _FOOTER_SIZE = 7.0
 
 
@@ -148,6 +153,8 @@ def render_pdf(
     register_fonts()
     job = record.get("job") if isinstance(record.get("job"), Mapping) else {}
     title = clean(str(job.get("title") or "untitled job"))
+    counts = count_findings([f for f in record.get("findings") or [] if isinstance(f, Mapping)])
+    verdict, _ = effective_verdict(record.get("verdict"), counts)
     buffer = io.BytesIO()
     doc = SimpleDocTemplate(
         buffer,
@@ -161,7 +168,7 @@ def render_pdf(
         subject="Pre-dive checklist and schedule check",
         creator=f"supervisor {__version__}",
         producer=f"supervisor {__version__} (reportlab)",
-        keywords=[f"{KEYWORD_PREFIX}{document_sha256}"],
+        keywords=keywords(document_sha256, verdict, counts),
         invariant=1,
         lang="en",
         initialFontName=REGULAR,

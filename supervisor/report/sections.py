@@ -34,6 +34,7 @@ from supervisor.report.formatting import (
     severity_label,
     severity_rank,
 )
+from supervisor.report.pdf_meta import same_person
 from supervisor.report.styles import (
     BODY,
     CELL,
@@ -60,6 +61,28 @@ class SignerNote:
     name: str
     fingerprint_sha256: str
     self_signed: bool
+
+
+def signer_statement(record: Mapping[str, Any], signer: SignerNote | None) -> Flowable:
+    """Who signs this PDF digitally, and in place of whom when it is not the plan's supervisor."""
+    if signer is None:
+        return rich([("Digital signature. ", True),
+                     ("This copy carries no digital signature.", False)], SMALL)
+    supervisor = _m(record.get("job")).get("supervisor")
+    kind = ("a self-signed certificate: whether it may approve dives is checked by "
+            "'supervisor verify' against the contractor's keyring of trusted supervisors"
+            if signer.self_signed else "a certificate issued by another party")
+    parts: list[tuple[object, bool]] = [("Digital signature. ", True)]
+    if isinstance(supervisor, str) and supervisor.strip() \
+            and not same_person(signer.name, supervisor):
+        parts.append((f"Digitally signed by {signer.name} in place of the plan's supervisor "
+                      f"{supervisor}. ", True))
+    else:
+        parts.append((f"Digitally signed by {signer.name}. ", False))
+    parts.append((f"The PDF carries a PDF (PAdES) signature and its JSON record a detached CMS "
+                  f"signature; certificate SHA-256 fingerprint {signer.fingerprint_sha256}; "
+                  f"{kind}.", False))
+    return rich(parts, SMALL)
 
 
 def _m(value: Any) -> Mapping[str, Any]:
@@ -890,16 +913,5 @@ def signature_section(record: Mapping[str, Any], width: float,
                     ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
                     ("FONTNAME", (0, 0), (-1, -1), REGULAR)])
     out.append(table)
-    if signer is not None:
-        kind = ("a self-signed certificate: compare its fingerprint with the one the supervisor "
-                "published; trust in the certificate is not checked by this tool"
-                if signer.self_signed else "a certificate issued by another party")
-        out.append(rich([("Digital signature. ", True), (
-            f"This PDF carries a PDF (PAdES) signature by {signer.name}, and its JSON record a "
-            f"detached CMS signature; certificate SHA-256 fingerprint "
-            f"{signer.fingerprint_sha256}; {kind}. Check both with 'supervisor verify'.",
-            False)], SMALL))
-    else:
-        out.append(rich([("Digital signature. ", True),
-                         ("This copy carries no digital signature.", False)], SMALL))
+    out.append(signer_statement(record, signer))
     return out

@@ -44,6 +44,15 @@ PASS = "tern-rock-2031"
 HOSTILE = '<b>Zoë Brontë</b> & Łukasz <font name="x">Ørsted</font> &amp; 王芳'
 
 
+@pytest.fixture(autouse=True)
+def own_keyrings(monkeypatch: pytest.MonkeyPatch, tmp_path_factory: pytest.TempPathFactory) -> Path:
+    """Never read or write the real per-user keyring; no company keyring unless a test sets one."""
+    config = tmp_path_factory.mktemp("config")
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(config))
+    monkeypatch.delenv("SUPERVISOR_COMPANY_KEYRING", raising=False)
+    return config
+
+
 @pytest.fixture()
 def runner(monkeypatch: pytest.MonkeyPatch) -> CliRunner:
     monkeypatch.delenv(ENV, raising=False)
@@ -204,6 +213,8 @@ def test_sign_and_verify(runner: CliRunner, tmp_path: Path, key: Path,
     res = runner.invoke(app, ["verify", str(pdf)])
     assert res.exit_code == 1 and res.stdout.startswith("INVALID")
     assert "Traceback" not in res.stdout + res.stderr
+    res = runner.invoke(app, ["verify", str(js)])  # intact, signer in no keyring
+    assert res.exit_code == 3 and res.stdout.startswith("UNTRUSTED SIGNER")
 
 
 def test_wrong_passphrase_exits_2_and_changes_nothing(runner: CliRunner, tmp_path: Path,
@@ -269,23 +280,39 @@ def test_help_says_unsigned_checklists_are_regenerated(runner: CliRunner) -> Non
 def test_unsigned_checklist_is_regenerated_but_a_signed_one_is_kept(
         runner: CliRunner, tmp_path: Path, key: Path, demo_check: dict[str, Any]) -> None:
     expected = EXIT_FOR[demo_check["verdict"]]
-    argv = ["checklist", str(DEMO), "--out", str(tmp_path)]
+    # an older checklist of the same job (same title, an earlier date in the plan)
+    older = tmp_path / "older.toml"
+    older.write_text(DEMO.read_text(encoding="utf-8").replace("date = 2026-06-03",
+                                                              "date = 2026-06-02"),
+                     encoding="utf-8")
+    assert runner.invoke(app, ["checklist", str(older), "--out", str(tmp_path / "o")]) \
+        .exit_code == expected
+    first = _outputs(tmp_path / "o")
+    argv = ["checklist", str(DEMO), "--out", str(tmp_path / "o")]
     assert runner.invoke(app, argv).exit_code == expected
-    first = _outputs(tmp_path)
-    for name in first:
-        (tmp_path / name).write_bytes(b"an older unsigned checklist")
-    assert runner.invoke(app, argv).exit_code == expected
-    second = _outputs(tmp_path)
+    second = _outputs(tmp_path / "o")
     assert second.keys() == first.keys()
-    assert b"an older unsigned checklist" not in second.values()  # regenerated
-    assert all(json.loads(v)["schema"] == "supervisor.check/1"
+    assert all(second[k] != first[k] for k in first)  # regenerated from the plan as it is now
+    assert all(json.loads(v)["job"]["date"] == "2026-06-03"
                for k, v in second.items() if k.endswith(".json"))
     assert runner.invoke(app, [*argv, "--sign", str(key)], env={ENV: PASS}).exit_code == expected
-    signed = _outputs(tmp_path)
+    signed = _outputs(tmp_path / "o")
     res = runner.invoke(app, argv)
     assert res.exit_code == 2
     assert "is a signed checklist and is never replaced" in res.stderr
-    assert _outputs(tmp_path) == signed
+    assert _outputs(tmp_path / "o") == signed
+
+
+def test_a_file_at_the_checklist_name_that_is_not_a_checklist_is_refused(
+        runner: CliRunner, tmp_path: Path) -> None:
+    slug = "outfall-diffuser-inspection-and-riser-clamp-change-checklist"
+    (tmp_path / f"{slug}.pdf").write_bytes(b"an older file of the user's")
+    res = runner.invoke(app, ["checklist", str(DEMO), "--out", str(tmp_path)])
+    assert res.exit_code == 2 and res.stdout == ""
+    assert res.stderr.strip().splitlines() == [
+        f"error: --out: {tmp_path / slug}.pdf is there but is not a checklist PDF this tool "
+        "can read, so it is not replaced; move it away or choose another --out folder"]
+    assert [p.name for p in tmp_path.iterdir()] == [f"{slug}.pdf"]
 
 
 @pytest.fixture(scope="module")
@@ -362,5 +389,14 @@ def test_console_script_verifies(tmp_path: Path, key: Path) -> None:
     assert made.returncode in (0, 1), made.stderr
     pdf = next(tmp_path.glob("*-checklist.pdf"))
     checked = subprocess.run([str(exe), "verify", str(pdf)], capture_output=True, text=True,
-                             check=False)
+                             check=False, env=env)
+    assert checked.returncode == 3 and checked.stdout.startswith("UNTRUSTED SIGNER"), \
+        checked.stdout
+    ring = tmp_path / "company-keyring.toml"
+    trusted = subprocess.run([str(exe), "keys", "trust", str(key.with_name("mara.cert.pem")),
+                              "--keyring", str(ring)], capture_output=True, text=True,
+                             check=False, env=env)
+    assert trusted.returncode == 0, trusted.stderr
+    checked = subprocess.run([str(exe), "verify", str(pdf)], capture_output=True, text=True,
+                             check=False, env={**env, "SUPERVISOR_COMPANY_KEYRING": str(ring)})
     assert checked.returncode == 0 and checked.stdout.startswith("VALID"), checked.stdout

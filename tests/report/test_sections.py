@@ -242,8 +242,12 @@ def test_checklist_groups_items_with_tick_boxes(check_result: dict[str, Any],
 def test_signature_section_states_the_signer(check_result: dict[str, Any]) -> None:
     note = sections.SignerNote("Dana Whitcombe", "AB:CD", self_signed=True)
     text = " ".join(_texts(sections.signature_section(check_result, 500, note)))
-    assert "PDF (PAdES) signature by Dana Whitcombe" in text
-    assert "AB:CD" in text and "self-signed" in text
+    assert "Digitally signed by Dana Whitcombe. The PDF carries a PDF (PAdES) signature" in text
+    assert "AB:CD" in text and "self-signed" in text and "in place of" not in text
+    other = sections.SignerNote("Ivo Strand", "AB:CD", self_signed=True)
+    text = " ".join(_texts(sections.signature_section(check_result, 500, other)))
+    assert "Digitally signed by Ivo Strand in place of the plan's supervisor Dana Whitcombe." \
+        in text
 
 
 def test_dive_verdict_counts_its_own_and_job_wide_findings(check_result: dict[str, Any]) -> None:
