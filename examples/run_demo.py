@@ -1,9 +1,11 @@
 """Run the main job on the bundled demo data (``make demo``), from the project folder.
 
 Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
-key for its fictional supervisor, writes the signed pre-dive checklist (PDF and
-JSON) to ``out/`` and verifies it.  The demo key's passphrase is a fixed demo
-value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never use it for a real key.
+key for its fictional supervisor, adds the demo certificate to a demo company
+keyring (``out/demo-keyring.toml``, never the user's own keyring), writes the
+signed pre-dive checklist (PDF and JSON) to ``out/`` and verifies it against that
+keyring.  The demo key's passphrase is a fixed demo value unless
+``SUPERVISOR_KEY_PASSPHRASE`` is set; never use it for a real key.
 """
 
 from __future__ import annotations
@@ -41,13 +43,17 @@ def main() -> int:
     (ROOT / checklists).mkdir(exist_ok=True)
     for old in (ROOT / checklists).glob("*-checklist.*"):
         old.unlink()
-    key = out / "demo-supervisor.p12"
+    # the key is in the name of the demo job's (fictional) supervisor, Mara Okonjo
+    key = out / "demo-mara-okonjo.p12"
     if not (ROOT / key).exists():
-        _run(["keys", "new", "--name", "Demo Supervisor (fictional)", "--out", str(key)], env)
+        _run(["keys", "new", "--name", "Mara Okonjo", "--out", str(key)], env)
+    keyring = out / "demo-keyring.toml"
+    _run(["keys", "trust", str(key.with_name("demo-mara-okonjo.cert.pem")), "--keyring",
+          str(keyring)], env)
     _run(["checklist", str(plan), "--out", str(checklists), "--sign", str(key)], env, ok=(0, 1))
     pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
     for pdf in pdfs:
-        _run(["verify", str(pdf.relative_to(ROOT))], env)
+        _run(["verify", str(pdf.relative_to(ROOT)), "--keyring", str(keyring)], env)
     source = "SUPERVISOR_KEY_PASSPHRASE" if "SUPERVISOR_KEY_PASSPHRASE" in os.environ else (
         repr(DEMO_PASSPHRASE))
     print(f"\nsigned checklist written to {checklists}/ (demo key passphrase: {source}; "
