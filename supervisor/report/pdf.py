@@ -19,10 +19,11 @@ from reportlab.lib.pagesizes import A4, letter
 from reportlab.lib.units import inch
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfgen import canvas as rl_canvas
-from reportlab.platypus import PageBreak, SimpleDocTemplate
+from reportlab.platypus import CondPageBreak, PageBreak, SimpleDocTemplate
 
 from supervisor import __version__
-from supervisor.report import sections
+from supervisor.report import findings_list, sections, signoff, summary
+from supervisor.report.blocks import SignerNote
 from supervisor.report.fonts import REGULAR, clean, plain_width, register_fonts, runs
 from supervisor.report.formatting import (
     NOT_COMPUTED,
@@ -31,7 +32,6 @@ from supervisor.report.formatting import (
     short_hash,
 )
 from supervisor.report.pdf_meta import keywords
-from supervisor.report.sections import SignerNote
 from supervisor.report.styles import H2, para
 
 PAPER = {"letter": letter, "a4": A4}
@@ -68,9 +68,16 @@ def _fit(text: str, width: float) -> str:
     """Shorten ``text`` with an ellipsis so that it prints within ``width`` [pt]."""
     if plain_width(text, _FOOTER_SIZE) <= width:
         return text
-    while text and plain_width(text + "…", _FOOTER_SIZE) > width:
-        text = text[:-1]
-    return text + "…"
+    # no glyph is narrower than a fifth of the type size: cut before measuring
+    text = text[: int(width / (_FOOTER_SIZE * 0.2)) + 1]
+    lo, hi = 0, len(text)
+    while lo < hi:  # the longest prefix that fits with the ellipsis
+        mid = (lo + hi + 1) // 2
+        if plain_width(text[:mid] + "…", _FOOTER_SIZE) <= width:
+            lo = mid
+        else:
+            hi = mid - 1
+    return text[:lo] + "…"
 
 
 def _draw_text(canv: rl_canvas.Canvas, x: float, y: float, text: str) -> None:
@@ -174,26 +181,22 @@ def render_pdf(
         initialFontName=REGULAR,
     )
     width = doc.width
-    story: list[Any] = []
-    story += sections.title_block(record, document_sha256)
-    story.append(sections.header_table(record, document_sha256, width))
-    story += sections.references_table(record, width)
-    story += sections.verdict_block(record, width)
-    story += sections.caution_lead(record)
-    story += sections.findings_table(record, width)
+    story: list[Any] = summary.summary_page(record, document_sha256, width, signer)
+    story.append(PageBreak())
+    story += findings_list.findings_section(record, width)
+    story += findings_list.references_table(record, width)
     for dive in record.get("dives") or []:
         if isinstance(dive, Mapping):
-            story.append(PageBreak())
             story += sections.dive_section(dive, record, width)
     if not record.get("dives"):
         story.append(para("Dives: " + NOT_COMPUTED, H2))
-    story.append(PageBreak())
-    story += sections.team_and_chamber(record, width)
-    story.append(PageBreak())
-    story += sections.predive_checklist(record, width)
-    story.append(PageBreak())
-    story += sections.cautions_section(record)
-    story += sections.signature_section(record, width, signer)
+    story += signoff.chamber_section(record, width)
+    story.append(CondPageBreak(120))
+    story += signoff.predive_checklist(record, width)
+    story.append(CondPageBreak(90))
+    story += signoff.cautions_section(record)
+    story += signoff.signature_section(record, width, signer)
+    story += findings_list.appendix_passed(record, width)
     maker = _canvas_maker(document_sha256, title, pdf_date(record.get("generated_at")))
     doc.build(story, canvasmaker=maker)
     return buffer.getvalue()

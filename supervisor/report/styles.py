@@ -22,8 +22,12 @@ PANEL_FILL = colors.Color(0.96, 0.96, 0.96)
 
 BODY = ParagraphStyle("body", fontName=REGULAR, fontSize=8.5, leading=11)
 SMALL = ParagraphStyle("small", parent=BODY, fontSize=7.2, leading=9)
+TINY_CELL = ParagraphStyle("tiny-cell", parent=BODY, fontSize=6.6, leading=8)
+TINY = ParagraphStyle("tiny", parent=BODY, fontSize=6.4, leading=7.8, leftIndent=8,
+                      firstLineIndent=-8, spaceAfter=1)
 CELL = ParagraphStyle("cell", parent=BODY, fontSize=7.6, leading=9.4)
 CELL_BOLD = ParagraphStyle("cell-bold", parent=CELL, fontName=BOLD)
+ITEM = ParagraphStyle("item", parent=CELL, fontSize=7.4, leading=9)
 TITLE = ParagraphStyle("title", parent=BODY, fontName=BOLD, fontSize=16, leading=20,
                        spaceAfter=2)
 SUBTITLE = ParagraphStyle("subtitle", parent=BODY, fontSize=10.5, leading=13, spaceAfter=8)
@@ -52,8 +56,14 @@ def grid(
     repeat: bool = True,
     extra: Sequence[tuple[object, ...]] = (),
 ) -> Table:
-    """A ruled table; the first row is shaded and repeated on a new page when ``header``."""
-    table = Table(rows, colWidths=list(widths), repeatRows=1 if header and repeat else 0)
+    """A ruled table; the first row is shaded and repeated on a new page when ``header``.
+
+    Rows may split across pages (``splitInRow``), so a cell taller than a page
+    (a very long text, a schedule of many stops) flows on instead of stopping
+    the layout.
+    """
+    table = Table(rows, colWidths=list(widths), repeatRows=1 if header and repeat else 0,
+                  splitInRow=1)
     commands: list[tuple[object, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), REGULAR),  # for plain-string cells (reportlab: Helvetica)
         ("GRID", (0, 0), (-1, -1), 0.4, RULE),

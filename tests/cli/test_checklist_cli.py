@@ -9,6 +9,7 @@ from __future__ import annotations
 import hashlib
 import io
 import json
+import math
 import os
 import re
 import stat
@@ -29,10 +30,10 @@ from supervisor.report.formatting import (
     VERDICT_LABEL,
     fmt_gf,
     fmt_number,
-    fmt_quantity,
     fmt_stop_depth,
     fmt_stop_minutes,
 )
+from supervisor.report.units import UnitSystem
 
 pytest.importorskip("supervisor.check")
 
@@ -81,13 +82,15 @@ def _outputs(folder: Path) -> dict[str, bytes]:
 # exit status of `supervisor checklist` per verdict (supervisor.cli.checklist docstring)
 EXIT_FOR = {"conforms": 0, "needs-review": 0, "does-not-conform": 1}
 
-HEADINGS = ("Reference tables and model", "Findings, worst first", "Schedules",
-            "Proposed (plan)", "Reference table: ", "Planned depth-time profile and model ceiling",
-            "Compartment loading at surfacing", "Oxygen exposure", "Gas supply against need",
-            "Contingency schedules", "Bottom-time overrun", "Deeper than planned",
-            "Loss of decompression oxygen", "Team and chamber", "Dive team", "Chamber",
+HEADINGS = ("Dives and their planned schedules", "Emergency contacts", "Site conditions",
+            "Reference tables and model", "Findings to act on: failures and warnings, by dive",
+            "Schedules", "Proposed (plan)", "Reference table: ", "Planned profile and model "
+            "ceiling", "Compartment loading at surfacing", "Oxygen exposure",
+            "Gas supply against need", "Contingency schedules", "Bottom-time overrun",
+            "Deeper than planned", "Loss of decompression oxygen", "Chamber",
             "Pre-dive checklist: surface-supplied air", "Cautions", "Signatures",
-            "Diving supervisor", "Client's representative", "Diver's acknowledgement")
+            "Diving supervisor", "Client's representative", "Chamber operator",
+            "Dive team and divers' acknowledgement", "Appendix: passed checks")
 
 
 @pytest.fixture(scope="module")
@@ -102,7 +105,8 @@ def _dive_text(text: str, dives: list[dict[str, Any]], index: int) -> str:
     """The part of the PDF text about one dive: from its heading to the next one."""
     start = text.index(f"Dive {dives[index]['id']}: {dives[index]['diver']}")
     ends = [text.index(f"Dive {d['id']}: {d['diver']}", start + 1) for d in dives[index + 1:]]
-    return text[start:min(ends or [text.index("Team and chamber", start)])]
+    return text[start:min(ends or [text.index("Pre-dive checklist: surface-supplied air",
+                                              start)])]
 
 
 def _stops_text(stops: list[dict[str, Any]], unit: str) -> str:
@@ -141,12 +145,15 @@ def test_checklist_on_the_demo_job(runner: CliRunner, tmp_path: Path,
     model = demo_check["model"]
     assert f"Model: {model['name']} GF {fmt_gf(model['gf_low'], model['gf_high'])}" in text
     for fragment in ("Outfall diffuser inspection and riser clamp change", "Mara Okonjo",
-                     "Halden Reach Water Board", "osha-1910-t", digest,
+                     "Halden Reach Water Board", "OSHA, 29 CFR 1910 Subpart T", digest,
                      demo_check["plan_sha256"], "29 CFR 1910.421(b)"):
         assert fragment in text, fragment
     pages = len(PdfReader(io.BytesIO(pdf.read_bytes())).pages)
     assert f"page {pages} of {pages}" in text
     for finding in demo_check["findings"]:
+        if finding["severity"] == "info" and (finding.get("family") == "contingency"
+                                              or finding["rule"] == "model-margin"):
+            continue  # printed as the dive's contingency table and margin (SHOWN_IN_DIVE_SECTION)
         assert finding["rule"][:12] in text.replace(" ", "")  # rule ids may wrap
 
     unit = demo_check["unit"]
@@ -164,15 +171,27 @@ def test_checklist_on_the_demo_job(runner: CliRunner, tmp_path: Path,
         assert f"total stop time: {fmt_number(model_schedule['total_stop_min'])} min" in part
         assert _stops_text(dive["proposed_stops"], unit) in part, dive["id"]
         oxygen = dive["oxygen"]
-        assert f"CNS [% of limit] {fmt_number(oxygen['cns_percent'], 1)}" in part, dive["id"]
+        cns = fmt_number(oxygen["cns_percent"], 1)
+        if oxygen.get("cns_is_lower_bound"):
+            cns = f"at least {fmt_number(math.floor(oxygen['cns_percent'] * 10) / 10, 1)} " \
+                "(lower bound)"
+        if oxygen["po2_by_phase"].get("chamber") is not None and "chamber_oxygen" not in oxygen:
+            assert "CNS [% of limit], water and chamber counted on the in-water table " \
+                f"{cns}" in part, dive["id"]
+            assert "not counted against the chamber procedure's limits" in part
+        else:
+            label = "in-water CNS" if "chamber_oxygen" in oxygen else "CNS"
+            assert f"{label} [% of limit] {cns}" in part, dive["id"]
         assert f"pulmonary dose [OTU] {fmt_number(oxygen['otu'], 0)}" in part, dive["id"]
         margin = dive["model_margin"]
         assert f"margin {fmt_number(margin['margin_min'])} min" in part, dive["id"]
         supply = dive["gas_supply"]
-        if supply["primary_kind"] == "compressor":
+        if supply["primary_kind"] == "compressor":  # an fsw plan prints flows in scfm
+            units = UnitSystem(unit)
             assert "primary compressor: delivery against peak flow " \
-                f"{fmt_quantity(supply['primary_delivery_lpm'], 'L/min', 0)} " \
-                f"{fmt_quantity(supply['peak_flow_lpm'], 'L/min', 0)}" in part, dive["id"]
+                f"{units.flow(supply['primary_delivery_lpm'])} " \
+                f"{units.flow(supply['peak_flow_lpm'])}" in part, dive["id"]
+            assert units.flow(supply["peak_flow_lpm"]).endswith(" scfm")
         ref = dive["reference_schedule"]
         if ref["reason"] or ref["outside_table"]:
             assert "No reference schedule — needs review:" in part or \
