@@ -96,7 +96,7 @@ def _row(f: Mapping[str, Any]) -> list[object]:
                 para(text(f.get("message")), SMALL),
                 para("—" if measured == limit == "—" else f"{measured} / {limit}", SMALL),
                 para(f"{text(f.get('citation'))} {status}", SMALL)]
-    return [para(severity_label(f.get("severity")), CELL_BOLD), para(text(f.get("rule")), CELL),
+    return [para(severity_label(f.get("severity")), CELL_BOLD), para(text(f.get("rule")), SMALL),
             para(text(f.get("message")), CELL),
             [para(f"measured: {measured}", SMALL), para(f"limit: {limit}", SMALL)],
             para(f"{text(f.get('citation'))} {status}", SMALL)]
@@ -121,7 +121,7 @@ def findings_section(record: Mapping[str, Any], width: float) -> list[Flowable]:
     out.append(para("Worst first within each group. Information is printed in each dive's "
                     "section. " + _tail(record), SMALL))
     w = width
-    widths = [0.065 * w, 0.14 * w, 0.46 * w, 0.135 * w, 0.2 * w]
+    widths = [0.075 * w, 0.165 * w, 0.43 * w, 0.13 * w, 0.2 * w]
     head = [para(h, CELL_BOLD) for h in ("Result", "Rule", "Finding", "Measured / limit",
                                          "Citation (source status)")]
     for title, items in groups:

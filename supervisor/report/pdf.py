@@ -19,7 +19,13 @@ from reportlab.lib.pagesizes import A4, letter
 from reportlab.lib.units import inch
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfgen import canvas as rl_canvas
-from reportlab.platypus import CondPageBreak, PageBreak, SimpleDocTemplate
+from reportlab.platypus import (
+    BaseDocTemplate,
+    CondPageBreak,
+    Frame,
+    PageBreak,
+    PageTemplate,
+)
 
 from supervisor import __version__
 from supervisor.report import findings_list, sections, signoff, summary
@@ -125,6 +131,23 @@ def _canvas_maker(document_sha256: str, job_title: str, created: str) -> type:
     return _Numbered
 
 
+class _Document(BaseDocTemplate):
+    """A one-frame document whose frame has no inner padding.
+
+    reportlab's default frame pads its content by 6 pt, so a table as wide as
+    the page's text width stuck out past the paragraphs; with no padding,
+    tables and text share one left edge and the frame is the full text area.
+    """
+
+    def build(self, flowables: list[Any], canvasmaker: Any = rl_canvas.Canvas) -> None:  # noqa: D102
+        self._calc()
+        frame = Frame(self.leftMargin, self.bottomMargin, self.width, self.height, id="normal",
+                      leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)
+        self.addPageTemplates([PageTemplate(id="page", frames=[frame],
+                                            pagesize=self.pagesize)])
+        BaseDocTemplate.build(self, flowables, canvasmaker=canvasmaker)
+
+
 def render_pdf(
     record: Mapping[str, Any],
     document_sha256: str,
@@ -163,7 +186,7 @@ def render_pdf(
     counts = count_findings([f for f in record.get("findings") or [] if isinstance(f, Mapping)])
     verdict, _ = effective_verdict(record.get("verdict"), counts)
     buffer = io.BytesIO()
-    doc = SimpleDocTemplate(
+    doc = _Document(
         buffer,
         pagesize=PAPER[paper],
         leftMargin=MARGIN,

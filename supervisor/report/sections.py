@@ -63,18 +63,23 @@ _not_computed = not_computed
 _kv_lines = kv_lines
 
 #: Height of each chart of a dive (drawn side by side) [pt].
-CHART_HEIGHT = 100.0
+CHART_HEIGHT = 108.0
 
 
 # ----------------------------------------------------------------------------- dives
 
 
 def stop_gas_cell(stop: Mapping[str, Any]) -> list[Flowable]:
-    """A stop's gas, or its breathing periods when it has air breaks (``periods``)."""
+    """A stop's gas, or its breathing periods when it has them (air breaks).
+
+    A stop with ``periods`` never prints as one continuous gas: the periods
+    replace the gas name (``"O2 15, air 5, O2 15 min"``).
+    """
     periods = fmt_periods(stop.get("periods"))
     if periods is None:
         return [para(_text(stop.get("gas")), CELL)]
-    return [para(_text(stop.get("gas")), CELL), para(f"periods: {periods}", SMALL)]
+    return [para(periods, CELL), para("(air breaks)" if "air" in periods.lower() else
+                                      "(periods)", SMALL)]
 
 
 def _stops_table(stops: Any, unit: str, width: float) -> Flowable:
@@ -354,7 +359,10 @@ def oxygen_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
     rows: list[list[object]] = [[para("Phase", CELL_BOLD), para("PO2 [atm]", CELL_BOLD)]]
     surd = has_surface_interval(dive)
     if isinstance(by_phase, Mapping) and by_phase:
-        for phase, value in by_phase.items():
+        order = ("bottom", "decompression", "chamber")
+        phases = sorted(by_phase.items(), key=lambda kv: (order.index(kv[0])
+                                                          if kv[0] in order else 3))
+        for phase, value in phases:
             if phase == "chamber" and value is None and not surd:
                 continue  # no chamber phase in this dive
             rows.append([para(str(phase), CELL), para(_atm(value), CELL)])
@@ -669,7 +677,7 @@ def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
         dive_charts(dive, record, width),
     ]
     units = unit_system(record)
-    out.append(CondPageBreak(110))
+    out.append(CondPageBreak(150))
     out.append(_side_by_side(oxygen_table(dive, width * 0.45 - 6),
                              gas_supply_table(dive, width * 0.55 - 6, units), width, 0.45))
     out += contingency_section(dive, record, width)

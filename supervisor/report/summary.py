@@ -12,6 +12,7 @@ and a wait before flying is never shorter than the check's
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping, Sequence
 from typing import Any
 
@@ -171,9 +172,10 @@ def dives_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
             what += (f"; repetitive after {after}, surface interval "
                      f"{fmt_quantity(dive.get('surface_interval_min'), 'min')}")
         people = [para(text(dive.get("diver")), CELL)]
-        for role, key in (("standby", "standby_diver"), ("tender", "tender")):
-            if dive.get(key):
-                people.append(para(f"{role}: {dive[key]}", SMALL))
+        crew = [f"{role} {dive[key]}" for role, key in (("standby", "standby_diver"),
+                                                         ("tender", "tender")) if dive.get(key)]
+        if crew:
+            people.append(para("; ".join(crew), SMALL))
         rows.append([para(text(dive.get("id")), CELL_BOLD), people, para(what, CELL),
                      para(stops_line(dive.get("proposed_stops"), unit), CELL),
                      [para(VERDICT_LABEL[verdict], CELL_BOLD),
@@ -252,8 +254,20 @@ def _travel(entry: Mapping[str, Any]) -> str:
         verdict = "too early: FAILS the minimum wait" if ok is False else (
             "after the minimum wait" if ok is True else "not checked — needs review")
         parts.append(f"{fmt_quantity(t.get('altitude'), text(t.get('unit')), 0)} departing "
-                     f"{text(t.get('departure'))} ({verdict})")
+                     f"{fmt_time(t.get('departure'))} ({verdict})")
     return "; ".join(parts)
+
+
+def fmt_time(value: object) -> str:
+    """An ISO time as ``"2031-07-10 09:15"`` (seconds dropped); anything else as given."""
+    text_value = text(value)
+    match = re.fullmatch(r"(\d{4}-\d\d-\d\d)[T ](\d\d:\d\d)(:\d\d(\.\d+)?)?(Z|[+-]\d\d:?\d\d)?",
+                         text_value)
+    if not match:
+        return text_value
+    zone = match.group(5) or ""
+    return f"{match.group(1)} {match.group(2)}" + (" UTC" if zone == "Z" else
+                                                   f" {zone}" if zone else "")
 
 
 def altitude_block(record: Mapping[str, Any], width: float) -> list[Flowable]:
@@ -270,26 +284,27 @@ def altitude_block(record: Mapping[str, Any], width: float) -> list[Flowable]:
             f"{NOT_COMPUTED}: the check gave no minimum wait; follow the contractor's manual "
             "and the diving medical officer.", True)], CELL)]
     rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
-                                 ("Diver", "After", "Minimum wait (basis, status)",
+                                 ("Diver (after dive)", "Minimum surface time (basis, status)",
                                   "Earliest departure", "Planned travel")]]
     for raw in entries:
         e = m(raw)
         minimum = e.get("minimum_wait_min")
         if is_number(minimum) and float(minimum) > 0:
-            wait = [para(fmt_wait(minimum), CELL_BOLD),
-                    para(f"{text(e.get('basis'))} ({text(e.get('source_status'))})", SMALL)]
+            wait = [rich([(fmt_wait(minimum), True),
+                          (f" {text(e.get('basis'))} ({text(e.get('source_status'))})", False)],
+                         SMALL)]
             model = e.get("model_wait_min")
             if is_number(model) and float(model) > float(minimum):
-                wait.append(para(f"model: {fmt_wait(model)} (longer; {text(e.get('model_basis'))})",
-                                 SMALL))
+                wait.append(para(f"model: {fmt_wait(model)}, longer "
+                                 f"({text(e.get('model_basis'))})", SMALL))
         else:
             wait = [para(NOT_COMPUTED, CELL_BOLD)]
-        rows.append([para(text(e.get("diver")), CELL), para(text(e.get("after_dive")), CELL),
-                     wait, para(text(e.get("earliest_departure")) if e.get("earliest_departure")
-                                else "not computed", CELL),
-                     para(_travel(e), CELL)])
+        earliest = e.get("earliest_departure")
+        rows.append([para(f"{text(e.get('diver'))} ({text(e.get('after_dive'))})", CELL), wait,
+                     para(fmt_time(earliest) if earliest else "not computed", CELL),
+                     para(_travel(e), SMALL)])
     w = width
-    out.append(grid(rows, [0.17 * w, 0.07 * w, 0.34 * w, 0.16 * w, 0.26 * w]))
+    out.append(grid(rows, [0.2 * w, 0.4 * w, 0.14 * w, 0.26 * w]))
     return out
 
 

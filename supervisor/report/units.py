@@ -111,9 +111,10 @@ class UnitSystem:
         ``_l`` free gas, ``_lpm`` flow, ``_psig``/``_bar`` gauge; ``None`` for
         any other key (printed as it is).
         """
+        base = key.removesuffix("_rounded")  # "bailout_required_psig_rounded" is a psig figure
         for suffix, kind in (("_lpm", "flow"), ("_psig", "psig"), ("_bar", "bar"),
                              ("_l", "gas")):
-            if key.endswith(suffix) and len(key) > len(suffix):
+            if base.endswith(suffix) and len(base) > len(suffix):
                 if kind == "flow":
                     return self.flow_unit, self.flow(value)
                 if kind == "gas":

@@ -82,8 +82,8 @@ def test_page_1_is_the_summary(rendered: tuple[bytes, str, list[str]],
 def test_findings_by_dive_worst_first_and_passes_in_the_appendix(
         rendered: tuple[bytes, str, list[str]]) -> None:
     text = _flat(" ".join(rendered[2][1:]))
-    positions = [text.index(label) for label in ("FAIL osha-423-c1", "WARN gas-supply-reser",
-                                                 "WARN table-row-unverifi")]
+    positions = [text.index(label) for label in ("FAIL osha-423-c1", "WARN gas-supply-reserve",
+                                                 "WARN table-row-unverified")]
     assert positions == sorted(positions)
     assert "29 CFR 1910.423(c)(1) (VERIFIED)" in text
     assert "measured: 1.12 limit: 1.5" in text

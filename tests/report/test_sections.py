@@ -25,6 +25,8 @@ def _texts(flowables: Any) -> list[str]:
                     out += _texts(cell)
         elif isinstance(item, list | tuple):
             out += _texts(item)
+        elif hasattr(item, "_content"):  # KeepTogether, BalancedColumns
+            out += _texts(item._content)
     return out
 
 
