@@ -23,6 +23,7 @@ from reportlab.platypus import (
     BaseDocTemplate,
     CondPageBreak,
     Frame,
+    LayoutError,
     PageBreak,
     PageTemplate,
 )
@@ -38,7 +39,7 @@ from supervisor.report.formatting import (
     short_hash,
 )
 from supervisor.report.pdf_meta import keywords
-from supervisor.report.styles import H2, para
+from supervisor.report.styles import H2, TEXT_LIMIT, para
 
 PAPER = {"letter": letter, "a4": A4}
 MARGIN = 0.6 * inch
@@ -148,6 +149,10 @@ class _Document(BaseDocTemplate):
         BaseDocTemplate.build(self, flowables, canvasmaker=canvasmaker)
 
 
+#: Longest text of one paragraph piece in the fallback rendering [characters].
+FALLBACK_TEXT_LIMIT = 400
+
+
 def render_pdf(
     record: Mapping[str, Any],
     document_sha256: str,
@@ -155,7 +160,13 @@ def render_pdf(
     signer: SignerNote | None = None,
     paper: str = "letter",
 ) -> bytes:
-    """Render the checklist PDF.
+    """Render the checklist PDF; it never fails on the text a plan holds.
+
+    Every table may split across pages, so any text the plan accepts lays
+    out.  Should the layout still fail (reportlab's ``LayoutError``), the PDF
+    is rendered again with each piece of text cut after
+    :data:`FALLBACK_TEXT_LIMIT` characters and marked as cut; the JSON record
+    keeps every text in full.
 
     Parameters
     ----------
@@ -164,7 +175,7 @@ def render_pdf(
     document_sha256 : str
         SHA-256 of the record's JSON bytes [hex].
     signer : SignerNote, optional
-        Who will sign the PDF, printed in the signature section.
+        Who will sign the PDF, printed on page 1 and in the signature section.
     paper : {"letter", "a4"}
         Page size.
 
@@ -178,6 +189,24 @@ def render_pdf(
     ValueError
         If ``paper`` is not a known size.
     """
+    try:
+        return _render(record, document_sha256, signer=signer, paper=paper)
+    except LayoutError:
+        token = TEXT_LIMIT.set(FALLBACK_TEXT_LIMIT)
+        try:
+            return _render(record, document_sha256, signer=signer, paper=paper)
+        finally:
+            TEXT_LIMIT.reset(token)
+
+
+def _render(
+    record: Mapping[str, Any],
+    document_sha256: str,
+    *,
+    signer: SignerNote | None = None,
+    paper: str = "letter",
+) -> bytes:
+    """Lay the PDF out once (see :func:`render_pdf`)."""
     if paper not in PAPER:
         raise ValueError(f"paper must be one of {sorted(PAPER)}, not {paper!r}")
     register_fonts()

@@ -7,6 +7,7 @@ rules: the page must photocopy and fax legibly.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from contextvars import ContextVar
 
 from reportlab.lib import colors
 from reportlab.lib.styles import ParagraphStyle
@@ -38,14 +39,28 @@ H3 = ParagraphStyle("h3", parent=BODY, fontName=BOLD, fontSize=9, leading=11.5,
 VERDICT = ParagraphStyle("verdict", parent=BODY, fontName=BOLD, fontSize=14, leading=17)
 
 
+#: Longest text of one paragraph piece while laying out the fallback rendering
+#: (:func:`supervisor.report.pdf.render_pdf`); ``None`` prints every text in full.
+TEXT_LIMIT: ContextVar[int | None] = ContextVar("supervisor_report_text_limit", default=None)
+CUT_NOTE = " … [cut here; the full text is in the JSON record]"
+
+
+def _limited(text: object) -> object:
+    limit = TEXT_LIMIT.get()
+    if limit is None or text is None:
+        return text
+    value = str(text)
+    return value if len(value) <= limit else value[:limit] + CUT_NOTE
+
+
 def para(text: object, style: ParagraphStyle = BODY, *, bold: bool = False) -> Paragraph:
     """A paragraph that prints ``text`` literally (escaped, font fallback applied)."""
-    return Paragraph(markup("" if text is None else text, bold=bold), style)
+    return Paragraph(markup("" if text is None else _limited(text), bold=bold), style)
 
 
 def rich(parts: Sequence[tuple[object, bool]], style: ParagraphStyle = BODY) -> Paragraph:
     """A paragraph of several literal pieces, each ``(text, bold)``."""
-    return Paragraph("".join(markup(t, bold=b) for t, b in parts), style)
+    return Paragraph("".join(markup(_limited(t), bold=b) for t, b in parts), style)
 
 
 def grid(
