@@ -22,9 +22,8 @@ from typing import Any
 import typer
 
 from supervisor.cli import keys as _keys
-from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, EXIT_OK, fail_input, guarded
-from supervisor.cli.keys import passphrase, quiet_libraries, say, warn_loose
-from supervisor.cli.plan import plan_errors
+from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, EXIT_OK, fail_input
+from supervisor.cli.keys import one_line_errors, passphrase, quiet_libraries, say, warn_loose
 from supervisor.text import printable
 
 
@@ -46,8 +45,7 @@ def _run_check(plan: Path) -> dict[str, Any]:
     return run_check(plan)
 
 
-@plan_errors
-@guarded
+@one_line_errors
 def checklist(
     plan: Path = typer.Argument(..., help="Plan file (TOML) to check.", show_default=False),
     out: Path = typer.Option(..., "--out", help="Folder for <job>-checklist.pdf and "

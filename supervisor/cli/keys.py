@@ -26,15 +26,19 @@ terminal.
 
 from __future__ import annotations
 
+import functools
 import logging
 import os
+from collections.abc import Callable
 from enum import StrEnum
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any, TypeVar
 
 import typer
 
-from supervisor.cli._common import EXIT_BAD_INPUT, fail_input, guarded
+from supervisor.cli._common import EXIT_BAD_INPUT, fail_input
+from supervisor.errors import SupervisorError
+from supervisor.plan import PlanValidationError
 from supervisor.text import printable
 
 if TYPE_CHECKING:
@@ -65,6 +69,37 @@ class KeyKind(StrEnum):
 def say(text: object, *, err: bool = False) -> None:
     """Print one terminal-safe line."""
     typer.echo(printable(text), err=err)
+
+
+F = TypeVar("F", bound=Callable[..., Any])
+
+
+def one_line_errors(func: F) -> F:
+    """Every error a command meets as terminal-safe ``error:`` lines and exit status 2.
+
+    A plan that does not validate gives one ``error: FIELD: MESSAGE`` line per
+    problem; any other bad input one line naming its field; an unexpected
+    error one "internal error ... please report it" line, never a traceback
+    and never status 1, which means "does not conform" or "does not verify".
+    """
+
+    @functools.wraps(func)
+    def wrapper(*args: Any, **kwargs: Any) -> Any:
+        try:
+            return func(*args, **kwargs)
+        except (typer.Exit, BrokenPipeError):
+            raise
+        except PlanValidationError as exc:
+            for line in exc.lines():
+                say(line, err=True)
+        except (SupervisorError, OSError, UnicodeError) as exc:
+            say(f"error: {' '.join(str(exc).split())}", err=True)
+        except Exception as exc:  # a bug: still one line, still not status 1
+            say(f"error: internal error ({type(exc).__name__}: {' '.join(str(exc).split())}); "
+                "nothing was written; please report it", err=True)
+        raise typer.Exit(EXIT_BAD_INPUT)
+
+    return wrapper  # type: ignore[return-value]
 
 
 def quiet_libraries() -> None:
@@ -129,7 +164,7 @@ def _target(option: Path | None) -> Keyring:
                         must_exist=False)
 
 
-@guarded
+@one_line_errors
 def keys_new(
     name: str = typer.Option(..., "--name", help="The supervisor's name as it should appear "
                              "on signatures (at most 64 characters).", show_default=False),
@@ -171,7 +206,7 @@ def keys_new(
         "the certificate to its keyring ('supervisor keys trust CERT --keyring FILE').")
 
 
-@guarded
+@one_line_errors
 def keys_trust(
     cert: Path = typer.Argument(..., help="Certificate to trust (.cert.pem from 'supervisor "
                                 "keys new').", show_default=False),
@@ -198,7 +233,7 @@ def keys_trust(
             "signatures made before then can verify", err=True)
 
 
-@guarded
+@one_line_errors
 def keys_list(
     keyring: Path | None = typer.Option(None, "--keyring", help=KEYRING_HELP,
                                         show_default=False),
@@ -212,7 +247,7 @@ def keys_list(
                 f"{s.not_after:%Y-%m-%d}  added {s.added_on}")
 
 
-@guarded
+@one_line_errors
 def keys_remove(
     which: str = typer.Argument(..., metavar="CERT", help="Certificate file, or its SHA-256 "
                                 "fingerprint as 'keys list' prints it (at least the first 8 "
@@ -232,7 +267,7 @@ def keys_remove(
         f"{ring.path}")
 
 
-@guarded
+@one_line_errors
 def verify(
     file: Path = typer.Argument(..., help="Signed <job>-checklist.pdf, or <job>-checklist.json "
                                 "with its .json.sig beside it.", show_default=False),
