@@ -677,9 +677,10 @@ def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
         dive_charts(dive, record, width),
     ]
     units = unit_system(record)
-    out.append(CondPageBreak(150))
-    out.append(_side_by_side(oxygen_table(dive, width * 0.45 - 6),
-                             gas_supply_table(dive, width * 0.55 - 6, units), width, 0.45))
+    # kept on one page when it fits one: the figures of a table stay with its heading
+    out.append(KeepTogether([_side_by_side(oxygen_table(dive, width * 0.45 - 6),
+                                           gas_supply_table(dive, width * 0.55 - 6, units),
+                                           width, 0.45)]))
     out += contingency_section(dive, record, width)
     out += information_lines(record, dive.get("id"), width)
     return out
