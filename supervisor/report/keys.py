@@ -11,9 +11,9 @@
 
 Both are written atomically with mode 0600 and never overwrite an existing
 file.  The certificate is self-signed: it proves that a signature was made
-with this key, not who holds the key.  Establishing trust in it (a company
-certificate authority, or comparing fingerprints out of band) is outside the
-tool's scope.
+with this key, not who holds the key.  Who may sign is recorded in a keyring
+of trusted certificates (:mod:`supervisor.report.keyring`, ``supervisor keys
+trust``), after comparing the fingerprint with the one the supervisor published.
 """
 
 from __future__ import annotations

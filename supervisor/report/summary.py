@@ -181,7 +181,7 @@ def dives_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
                      [para(VERDICT_LABEL[verdict], CELL_BOLD),
                       para(f"{counts['fail']} fail, {counts['warn']} warn", SMALL)]])
     w = width
-    out.append(grid(rows, [0.07 * w, 0.19 * w, 0.3 * w, 0.28 * w, 0.16 * w]))
+    out.append(grid(rows, [0.06 * w, 0.22 * w, 0.28 * w, 0.28 * w, 0.16 * w]))
     return out
 
 
