@@ -15,10 +15,11 @@ tombstone record (see :mod:`supervisor.records.retention`).
 from __future__ import annotations
 
 import datetime as dt
+import functools
 import json
 from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, TypeVar
 
 from sqlalchemy import Connection, and_, func, insert, select, update
 from sqlalchemy.exc import DBAPIError, IntegrityError, OperationalError
@@ -187,6 +188,21 @@ def _stored(row: Any, body: str | None) -> StoredRecord:
 
 
 Item = NewRecord | Callable[[list[StoredRecord]], NewRecord]
+F = TypeVar("F", bound=Callable[..., Any])
+
+
+def _database_errors(func: F) -> F:
+    """Report a database failure as one :class:`StoreError` (no driver traceback)."""
+
+    @functools.wraps(func)
+    def wrapper(self: RecordStore, *args: Any, **kwargs: Any) -> Any:
+        try:
+            return func(self, *args, **kwargs)
+        except DBAPIError as exc:
+            raise StoreError(f"the record store {self.location.display()} failed: "
+                             f"{' '.join(str(exc.orig).split())}") from None
+
+    return wrapper  # type: ignore[return-value]
 
 
 class RecordStore:
@@ -327,6 +343,7 @@ class RecordStore:
         """Append one record; see :meth:`append_batch`."""
         return self.append_batch([rec])[0]
 
+    @_database_errors
     def purge(self, tombstone: NewRecord, seqs: Sequence[int]) -> StoredRecord:
         """Chain a tombstone, then remove the bodies (and findings) it names, in one transaction.
 
@@ -364,6 +381,7 @@ class RecordStore:
                 .select_from(S.records.outerjoin(S.record_bodies,
                                                  S.records.c.seq == S.record_bodies.c.seq)))
 
+    @_database_errors
     def get(self, seq: int) -> StoredRecord:
         """One record by sequence number.
 
@@ -378,6 +396,7 @@ class RecordStore:
             raise InputError("SEQ", f"no record {seq} in {self.location.display()}")
         return _stored(row, row.body)
 
+    @_database_errors
     def records(self, *, kind: str | None = None, diver: str | None = None,
                 job: str | None = None, refers_to: int | None = None) -> list[StoredRecord]:
         """Records in chain order, optionally only of one kind, diver, job or parent."""
@@ -397,11 +416,13 @@ class RecordStore:
             rows = conn.execute(q.order_by(S.records.c.seq)).all()
         return [_stored(r, r.body) for r in rows]
 
+    @_database_errors
     def count(self) -> int:
         """Number of records in the chain."""
         with self.engine.connect() as conn:
             return int(conn.execute(select(func.count()).select_from(S.records)).scalar_one())
 
+    @_database_errors
     def findings(self, seq: int) -> list[dict[str, Any]]:
         """The findings rows of an audit record, in the check's findings form."""
         with self.engine.connect() as conn:
@@ -409,6 +430,7 @@ class RecordStore:
                                 .order_by(S.findings.c.position)).all()
         return [finding_from_row(r) for r in rows]
 
+    @_database_errors
     def corrected_by(self) -> dict[int, int]:
         """For each corrected record, the newest record that corrects it."""
         with self.engine.connect() as conn:
@@ -444,6 +466,7 @@ class RecordStore:
                 continue  # a damaged tombstone fails at its own place in the walk
         return out
 
+    @_database_errors
     def verify(self) -> ChainReport:
         """Walk the whole chain (hashes, links, bodies, findings rows) in one snapshot."""
         with self.engine.begin() as conn:

@@ -250,7 +250,7 @@ class _Issues:
             if n > MAX_LISTED:
                 self.items.append(LogIssue("note", 0, f"{n - MAX_LISTED} more {kind} "
                                                       "entries not listed"))
-        return self.items
+        return sorted(self.items, key=lambda i: (i.line == 0, i.line))
 
 
 def read_csv_log(path: Path, options: CsvOptions | None = None) -> ImportedLog:

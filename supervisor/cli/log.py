@@ -1,0 +1,82 @@
+"""``supervisor log``: read a depth log without storing it, and the timed log's JSON Schema.
+
+Exit status: 0 read (or schema printed); 2 a log that cannot be imported (one
+line naming the file, the line and the problem).
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import typer
+
+from supervisor.cli._common import fail_input, guarded
+from supervisor.cli.records_common import print_issues
+
+log_app = typer.Typer(
+    name="log",
+    help="Depth logs: read a recorder CSV or a timed log (TOML); the timed log's JSON Schema.",
+    no_args_is_help=True,
+    pretty_exceptions_show_locals=False,
+)
+
+
+@log_app.command("schema")
+@guarded
+def schema() -> None:
+    """Print the JSON Schema of the supervisor's timed log (supervisor-log/1)."""
+    from supervisor.records.importers.timed import log_json_schema
+
+    typer.echo(json.dumps(log_json_schema(), indent=2))
+
+
+@log_app.command("read")
+@guarded
+def read(
+    log: Path = typer.Argument(..., help="Recorder CSV or timed log (TOML).",
+                               show_default=False),
+    fmt: str | None = typer.Option(None, "--format", help="csv or toml (default: from the "
+                                   "file name)."),
+    depth_unit: str | None = typer.Option(None, "--depth-unit", help="CSV depth unit: fsw, "
+                                          "msw, ft or m."),
+    time_unit: str | None = typer.Option(None, "--time-unit", help="CSV time unit: s or min."),
+    temperature_unit: str | None = typer.Option(None, "--temperature-unit",
+                                                help="CSV temperature unit: C or F."),
+    gas: str | None = typer.Option(None, "--gas", help="CSV breathing gas when the file has "
+                                   "no gas column."),
+    as_json: bool = typer.Option(False, "--json", help="Print the profile and findings of the "
+                                 "import as JSON."),
+) -> None:
+    """Import a log and show its profile, without storing anything."""
+    from supervisor.records.importers import CsvOptions, read_log
+    from supervisor.records.kinds import profile_to_json
+
+    for name, value, allowed in (("--depth-unit", depth_unit, ("fsw", "msw", "ft", "m")),
+                                 ("--time-unit", time_unit, ("s", "min")),
+                                 ("--temperature-unit", temperature_unit, ("C", "F"))):
+        if value is not None and value not in allowed:
+            fail_input(name, f"got {value!r}; expected {', '.join(allowed)}")
+    opts = CsvOptions(depth_unit=depth_unit, time_unit=time_unit,  # type: ignore[arg-type]
+                      temperature_unit=temperature_unit, gas=gas)  # type: ignore[arg-type]
+    imported = read_log(log, fmt, opts)
+    if as_json:
+        typer.echo(json.dumps({"schema": "supervisor.log-import/1", "log": imported.to_json(),
+                               "meta": imported.meta,
+                               "profile": profile_to_json(imported.profile)}, indent=2))
+        return
+    p = imported.profile
+    bt = imported.bottom_time_min
+    typer.echo(f"{log}: {imported.source.format}, {len(p.segments)} segments over "
+               f"{p.duration_min:.1f} min, max depth {imported.max_depth:g} {p.unit}")
+    typer.echo(f"bottom time: {bt:.1f} min ({imported.bottom_time_basis})" if bt is not None
+               else f"bottom time: none ({imported.bottom_time_basis})")
+    if imported.started_at is not None:
+        typer.echo(f"started: {imported.started_at.isoformat()}")
+    print_issues(imported.issues)
+    typer.echo("nothing stored; 'supervisor records add dive LOG ...' records it")
+
+
+def register(app: typer.Typer) -> None:
+    """Add the ``log`` commands to the application."""
+    app.add_typer(log_app, name="log")
