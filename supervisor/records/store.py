@@ -238,14 +238,13 @@ class RecordStore:
                 with self.engine.connect() as conn:
                     if check_revision(conn, where) is None:
                         raise InputError("--db", f"{where} holds no record store")
-        except OperationalError as exc:
-            self.engine.dispose()
-            raise StoreError(f"cannot open the record store {where}: "
-                             f"{' '.join(str(exc.orig).split())}") from None
         except DBAPIError as exc:
             self.engine.dispose()
             raise StoreError(f"cannot open the record store {where}: "
                              f"{' '.join(str(exc.orig).split())}") from None
+        except BaseException:
+            self.engine.dispose()
+            raise
 
     @classmethod
     def open(cls, db: str | None = None, *, create: bool = False) -> RecordStore:
