@@ -400,13 +400,13 @@ def _result(log: TimedLog, b: _Builder, source: Any, minutes: list[float]) -> Im
     max_depth = max(d for _t, d, _g, pl, _l in b.knots if pl == "water")
     meta = log.model_dump(mode="json", by_alias=True, exclude={"events"})
     if b.surd and "chamber_at_depth" in b.times:
-        meta["surface_interval_min"] = round(b.times["chamber_at_depth"]
-                                             - b.times["left_last_water_stop"], 4)
+        meta["surface_interval_min"] = (b.times["chamber_at_depth"]
+                                        - b.times["left_last_water_stop"])
     return ImportedLog(
         source=source, profile=prof, started_at=started, max_depth=float(max_depth),
         bottom_time_min=b.times["left_bottom"] - b.times["left_surface"],
         bottom_time_basis="from the timed log: left-surface to left-bottom",
         issues=issues, meta=meta,
-        events=[{**e.model_dump(mode="json", exclude_defaults=True), "t_min": round(t, 4)}
+        events=[{**e.model_dump(mode="json", exclude_defaults=True), "t_min": t}
                 for e, t in zip(log.events, minutes, strict=True)],
     )
