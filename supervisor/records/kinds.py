@@ -336,6 +336,10 @@ def as_correction(rec: NewRecord, corrects: StoredRecord, reason: str) -> NewRec
                      diver=rec.diver, refers_to=rec.refers_to, corrects=corrects.seq)
 
 
+def _num(v: Any) -> str:
+    return f"{v:g}" if isinstance(v, int | float) and not isinstance(v, bool) else "?"
+
+
 def summary(rec: StoredRecord) -> str:
     """One line about a record for ``records list``."""
     b = rec.body
@@ -353,16 +357,16 @@ def summary(rec: StoredRecord) -> str:
     if k == "dive":
         bt = b.get("bottom_time_min")
         bts = f"{bt:.1f} min" if isinstance(bt, int | float) else "?"
-        sched = b.get("schedule") or {}
-        return (f"dive {b.get('dive')}: {b.get('max_depth'):g} {b.get('unit')}, BT {bts}, "
-                f"table {b.get('table')} {sched.get('depth', '?'):g}/"
-                f"{sched.get('bottom_time_min', '?'):g}")
+        sched = b.get("schedule") if isinstance(b.get("schedule"), dict) else {}
+        return (f"dive {b.get('dive')}: {_num(b.get('max_depth'))} {b.get('unit')}, BT {bts}, "
+                f"table {b.get('table')} {_num(sched.get('depth'))}/"
+                f"{_num(sched.get('bottom_time_min'))}")
     if k == "audit":
         c = b.get("counts") or {}
         return f"audit of record {b.get('dive_record')}: {b.get('verdict')} " \
                f"({c.get('fail', 0)} fail, {c.get('warn', 0)} warn)"
     if k == "dcs":
-        return f"DCS onset {b.get('onset')} at {b.get('onset_depth'):g} {b.get('unit')}: " \
+        return f"DCS onset {b.get('onset')} at {_num(b.get('onset_depth'))} {b.get('unit')}: " \
                f"{'; '.join(b.get('symptoms') or [])}"
     if k == "treatment":
         return f"treatment of record {b.get('case_record')}: {b.get('table')}, " \

@@ -124,13 +124,14 @@ class Cluster:
                    "-w", "stop"], timeout=60)
         shutil.rmtree(self.root, ignore_errors=True)
 
-    def create_database(self, name: str) -> str:
-        """Create an empty database and return its URL."""
+    def create_database(self, name: str, template: str | None = None) -> str:
+        """Create a database (empty, or a copy of ``template``) and return its URL."""
         import psycopg
 
         with psycopg.connect(f"host=127.0.0.1 port={self.port} user={SUPERUSER} "
                              "dbname=postgres", autocommit=True) as conn:
-            conn.execute(f'CREATE DATABASE "{name}"')
+            copy = f' TEMPLATE "{template}"' if template else ""
+            conn.execute(f'CREATE DATABASE "{name}"{copy}')
         return self.url(name)
 
 

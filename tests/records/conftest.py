@@ -20,6 +20,7 @@ from supervisor.records.store import RecordStore
 from tests.records._postgres import REQUIRE_ENV, Cluster, Unavailable, start_cluster
 
 _names = itertools.count(1)
+TEMPLATE = "records_template"
 
 
 @pytest.fixture(scope="session")
@@ -33,6 +34,8 @@ def pg_cluster() -> Iterator[Cluster]:
             pytest.fail(f"{reason} ({REQUIRE_ENV} is set: the PostgreSQL tests must run)")
         pytest.skip(reason)
     try:
+        # one migrated database, copied for each test (CREATE DATABASE ... TEMPLATE)
+        RecordStore.open(cluster.create_database(TEMPLATE), create=True).close()
         yield cluster
     finally:
         cluster.stop()
@@ -44,7 +47,8 @@ def db_url(request: pytest.FixtureRequest, tmp_path: Path) -> str:
     if request.param == "sqlite":
         return str(tmp_path / "records.sqlite3")
     cluster: Cluster = request.getfixturevalue("pg_cluster")
-    return cluster.create_database(f"records_{os.getpid()}_{next(_names)}")
+    template = None if request.node.get_closest_marker("fresh_database") else TEMPLATE
+    return cluster.create_database(f"records_{os.getpid()}_{next(_names)}", template)
 
 
 @pytest.fixture

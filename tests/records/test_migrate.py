@@ -20,6 +20,7 @@ def test_migrations_ship_in_the_package() -> None:
     assert head_revision() == "r0001"
 
 
+@pytest.mark.fresh_database
 def test_new_store_is_at_head_with_all_tables(store: RecordStore) -> None:
     with store.engine.connect() as conn:
         assert current_revision(conn) == head_revision()
