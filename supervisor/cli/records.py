@@ -304,7 +304,7 @@ def purge(
             try:
                 answer = typer.prompt(f"type {len(seqs)} to remove them", default="",
                                       show_default=False)
-            except typer.Abort:
+            except (typer.Abort, EOFError, OSError):  # no terminal to answer on
                 answer = ""
             if answer.strip() != str(len(seqs)):
                 typer.echo("error: purge: not confirmed; nothing removed", err=True)

@@ -145,9 +145,6 @@ def add_checklist(
     if not isinstance(record, dict) or not isinstance(record.get("plan_text"), str):
         fail_input("CHECKLIST", f"{checklist} is not a checklist record (no plan_text); "
                                 "expected <job>-checklist.json from 'supervisor checklist'")
-    plan_bytes = record["plan_text"].encode("utf-8")
-    if hashlib.sha256(plan_bytes).hexdigest() != record.get("plan_sha256"):
-        fail_input("CHECKLIST", f"{checklist}: its plan_text does not match its plan_sha256")
     verification = None
     if checklist.with_name(checklist.name + ".sig").exists():
         verification = verify_file(checklist)
@@ -155,6 +152,9 @@ def add_checklist(
             typer.echo(f"error: {checklist}: signature does not verify ({verification.reason}); "
                        "nothing recorded", err=True)
             raise typer.Exit(EXIT_FAIL)
+    plan_bytes = record["plan_text"].encode("utf-8")
+    if hashlib.sha256(plan_bytes).hexdigest() != record.get("plan_sha256"):
+        fail_input("CHECKLIST", f"{checklist}: its plan_text does not match its plan_sha256")
     with open_store(db, create=True) as store:
         plan_rec = _plan_on_record(store, record["plan_sha256"])
         items: list[Any] = []
