@@ -11,8 +11,16 @@ from pathlib import Path
 
 import typer
 
-from supervisor.cli._common import fail_input, guarded
-from supervisor.cli.records_common import print_issues
+from supervisor.cli._common import guarded
+from supervisor.cli.records_common import (
+    DEPTH_UNIT_OPTION,
+    FORMAT_OPTION,
+    GAS_OPTION,
+    TEMPERATURE_UNIT_OPTION,
+    TIME_UNIT_OPTION,
+    csv_options,
+    print_issues,
+)
 
 log_app = typer.Typer(
     name="log",
@@ -36,29 +44,19 @@ def schema() -> None:
 def read(
     log: Path = typer.Argument(..., help="Recorder CSV or timed log (TOML).",
                                show_default=False),
-    fmt: str | None = typer.Option(None, "--format", help="csv or toml (default: from the "
-                                   "file name)."),
-    depth_unit: str | None = typer.Option(None, "--depth-unit", help="CSV depth unit: fsw, "
-                                          "msw, ft or m."),
-    time_unit: str | None = typer.Option(None, "--time-unit", help="CSV time unit: s or min."),
-    temperature_unit: str | None = typer.Option(None, "--temperature-unit",
-                                                help="CSV temperature unit: C or F."),
-    gas: str | None = typer.Option(None, "--gas", help="CSV breathing gas when the file has "
-                                   "no gas column."),
+    fmt: str | None = FORMAT_OPTION,
+    depth_unit: str | None = DEPTH_UNIT_OPTION,
+    time_unit: str | None = TIME_UNIT_OPTION,
+    temperature_unit: str | None = TEMPERATURE_UNIT_OPTION,
+    gas: str | None = GAS_OPTION,
     as_json: bool = typer.Option(False, "--json", help="Print the profile and findings of the "
                                  "import as JSON."),
 ) -> None:
     """Import a log and show its profile, without storing anything."""
-    from supervisor.records.importers import CsvOptions, read_log
+    from supervisor.records.importers import read_log
     from supervisor.records.kinds import profile_to_json
 
-    for name, value, allowed in (("--depth-unit", depth_unit, ("fsw", "msw", "ft", "m")),
-                                 ("--time-unit", time_unit, ("s", "min")),
-                                 ("--temperature-unit", temperature_unit, ("C", "F"))):
-        if value is not None and value not in allowed:
-            fail_input(name, f"got {value!r}; expected {', '.join(allowed)}")
-    opts = CsvOptions(depth_unit=depth_unit, time_unit=time_unit,  # type: ignore[arg-type]
-                      temperature_unit=temperature_unit, gas=gas)  # type: ignore[arg-type]
+    opts = csv_options(depth_unit, time_unit, temperature_unit, gas)
     imported = read_log(log, fmt, opts)
     if as_json:
         typer.echo(json.dumps({"schema": "supervisor.log-import/1", "log": imported.to_json(),

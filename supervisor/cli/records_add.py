@@ -19,7 +19,19 @@ from typing import Any
 import typer
 
 from supervisor.cli._common import EXIT_FAIL, fail_input, guarded
-from supervisor.cli.records_common import DB_HELP, open_store, passphrase, print_issues
+from supervisor.cli.records_common import (
+    DB_HELP,
+    DEPTH_UNIT_OPTION,
+    FORMAT_OPTION,
+    GAS_OPTION,
+    TEMPERATURE_UNIT_OPTION,
+    TIME_UNIT_OPTION,
+    WATER_OPTION,
+    csv_options,
+    open_store,
+    passphrase,
+    print_issues,
+)
 from supervisor.text import printable
 
 add_app = typer.Typer(
@@ -194,37 +206,43 @@ def add_dive(
     bottom_time: float | None = typer.Option(None, "--bottom-time", help="Bottom time as "
                                              "logged by the supervisor [min] (default: from "
                                              "the log)."),
-    fmt: str | None = typer.Option(None, "--format", help="csv or toml (default: from the "
-                                   "file name)."),
-    depth_unit: str | None = typer.Option(None, "--depth-unit", help="CSV depth unit: fsw, "
-                                          "msw, ft or m (when the file does not declare it)."),
-    time_unit: str | None = typer.Option(None, "--time-unit", help="CSV time unit: s or min."),
-    temperature_unit: str | None = typer.Option(None, "--temperature-unit",
-                                                help="CSV temperature unit: C or F."),
-    gas: str | None = typer.Option(None, "--gas", help="CSV breathing gas when the file has "
-                                   "no gas column."),
-    water: str = typer.Option("salt", "--water", help="salt or fresh (length units)."),
+    fmt: str | None = FORMAT_OPTION,
+    depth_unit: str | None = DEPTH_UNIT_OPTION,
+    time_unit: str | None = TIME_UNIT_OPTION,
+    temperature_unit: str | None = TEMPERATURE_UNIT_OPTION,
+    gas: str | None = GAS_OPTION,
+    water: str = WATER_OPTION,
+    started: str | None = typer.Option(None, "--started", help="Local date and time the log "
+                                       "starts, e.g. 2031-05-14T09:00 (a CSV with elapsed "
+                                       "times only)."),
     sign: Path | None = typer.Option(None, "--sign", help=_SIGN_HELP, show_default=False),
     corrects: int | None = typer.Option(None, "--corrects", help=_CORRECTS_HELP),
     reason: str | None = typer.Option(None, "--reason", help="Why the correction is made."),
     db: str | None = typer.Option(None, "--db", help=DB_HELP),
 ) -> None:
     """Record one diver's dive from a log: profile, table and schedule, repetitive status."""
-    from supervisor.records.importers import CsvOptions, read_log
+    import datetime as dt
+
+    from supervisor.records.importers import read_log
     from supervisor.records.kinds import dive_record, parse_schedule
 
-    if water not in ("salt", "fresh"):
-        fail_input("--water", f"got {water!r}; expected salt or fresh")
-    for name, value, allowed in (("--depth-unit", depth_unit, ("fsw", "msw", "ft", "m")),
-                                 ("--time-unit", time_unit, ("s", "min")),
-                                 ("--temperature-unit", temperature_unit, ("C", "F"))):
-        if value is not None and value not in allowed:
-            fail_input(name, f"got {value!r}; expected {', '.join(allowed)}")
-    opts = CsvOptions(depth_unit=depth_unit, time_unit=time_unit,  # type: ignore[arg-type]
-                      temperature_unit=temperature_unit,  # type: ignore[arg-type]
-                      gas=gas, water=water)  # type: ignore[arg-type]
+    opts = csv_options(depth_unit, time_unit, temperature_unit, gas, water)
     imported = read_log(log, fmt, opts)
     meta = imported.meta
+    if started is not None:
+        try:
+            when = dt.datetime.fromisoformat(started)
+        except ValueError:
+            fail_input("--started", f"got {started!r}; expected a date and time such as "
+                                    "2031-05-14T09:00")
+        if imported.started_at is not None and imported.started_at != when:
+            fail_input("--started", f"{started} differs from the log's own start "
+                                    f"{imported.started_at.isoformat()}")
+        imported.started_at = when
+    if imported.started_at is None:
+        fail_input("--started", "the log has no clock times; give the date and time it starts "
+                                "(e.g. 2031-05-14T09:00): the record of dive is dated "
+                                "(29 CFR 1910.423(d)(1); 46 CFR 197.482)")
 
     def pick(option: str, given: Any, key: str) -> Any:
         held = meta.get(key)

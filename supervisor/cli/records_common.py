@@ -14,6 +14,35 @@ DB_HELP = ("Record store: an SQLite file path, sqlite:///PATH or postgresql://US
            "~/.local/share/... when unset).")
 
 
+# options shared by the commands that read a log (``log read``, ``records add dive``)
+FORMAT_OPTION = typer.Option(None, "--format", help="csv or toml (default: from the file name).")
+DEPTH_UNIT_OPTION = typer.Option(None, "--depth-unit", help="CSV depth unit: fsw, msw, ft or m "
+                                 "(when the file does not declare it).")
+TIME_UNIT_OPTION = typer.Option(None, "--time-unit", help="CSV time unit: s or min.")
+TEMPERATURE_UNIT_OPTION = typer.Option(None, "--temperature-unit",
+                                       help="CSV temperature unit: C or F.")
+GAS_OPTION = typer.Option(None, "--gas", help="CSV breathing gas when the file has no gas "
+                          "column.")
+WATER_OPTION = typer.Option("salt", "--water", help="salt or fresh (length units).")
+
+
+def csv_options(depth_unit: str | None, time_unit: str | None, temperature_unit: str | None,
+                gas: str | None, water: str = "salt") -> Any:
+    """Check the CSV unit options and return the importer's ``CsvOptions``."""
+    from supervisor.cli._common import fail_input
+    from supervisor.records.importers import CsvOptions
+
+    for name, value, allowed in (("--depth-unit", depth_unit, ("fsw", "msw", "ft", "m")),
+                                 ("--time-unit", time_unit, ("s", "min")),
+                                 ("--temperature-unit", temperature_unit, ("C", "F")),
+                                 ("--water", water, ("salt", "fresh"))):
+        if value is not None and value not in allowed:
+            fail_input(name, f"got {value!r}; expected {', '.join(allowed)}")
+    return CsvOptions(depth_unit=depth_unit, time_unit=time_unit,  # type: ignore[arg-type]
+                      temperature_unit=temperature_unit,  # type: ignore[arg-type]
+                      gas=gas, water=water)  # type: ignore[arg-type]
+
+
 def open_store(db: str | None, *, create: bool = False) -> Any:
     """Open the record store named by ``--db``, ``SUPERVISOR_DB`` or the default."""
     from supervisor.records.store import RecordStore

@@ -358,9 +358,10 @@ def summary(rec: StoredRecord) -> str:
         bt = b.get("bottom_time_min")
         bts = f"{bt:.1f} min" if isinstance(bt, int | float) else "?"
         sched = b.get("schedule") if isinstance(b.get("schedule"), dict) else {}
-        return (f"dive {b.get('dive')}: {_num(b.get('max_depth'))} {b.get('unit')}, BT {bts}, "
-                f"table {b.get('table')} {_num(sched.get('depth'))}/"
-                f"{_num(sched.get('bottom_time_min'))}")
+        unit = b.get("unit")
+        return (f"dive {b.get('dive')}: {_num(b.get('max_depth'))} {unit}, BT {bts}; table "
+                f"{b.get('table')}, schedule {_num(sched.get('depth'))} {unit} / "
+                f"{_num(sched.get('bottom_time_min'))} min")
     if k == "audit":
         c = b.get("counts") or {}
         return f"audit of record {b.get('dive_record')}: {b.get('verdict')} " \

@@ -41,7 +41,8 @@ def recorded(db_url: str, capsys) -> str:  # noqa: F811 - the imported fixture
     code, out, err = run(["records", "add", "dive", str(EX / "demo-d2-log.toml")], capsys,
                          db_url)
     assert code == 0, err
-    assert "recorded #3 dive: dive D2: 110 fsw, BT 40.0 min" in out
+    assert "recorded #3 dive: dive D2: 110 fsw, BT 40.0 min; table zhl16c-gf30-85-air-fsw, " \
+        "schedule 110 fsw / 40 min" in out
     return db_url
 
 
@@ -129,9 +130,8 @@ def test_correction_and_signature(recorded: str, capsys, tmp_path: Path,
     assert code == 2 and "--reason" in err
 
 
+@pytest.mark.parametrize("db_url", ["sqlite"], indirect=True)   # psql: tests/records
 def test_verify_names_the_first_changed_record(recorded: str, capsys) -> None:
-    if "://" in recorded:
-        pytest.skip("the tamper tests with psql are in tests/records/test_faults.py")
     import sqlite3
 
     conn = sqlite3.connect(recorded)
@@ -219,3 +219,17 @@ def test_signed_checklist_is_recorded_with_its_signer(capsys, tmp_path: Path,
     code, out, err = run(["records", "add", "checklist", str(checklist)], capsys, db)
     assert code == 1 and "signature does not verify" in err, err
     assert _count(db) == 3
+
+
+def test_elapsed_time_log_needs_its_start(recorded: str, capsys, tmp_path: Path) -> None:
+    log = tmp_path / "d1.csv"
+    log.write_text("time_min,depth_fsw,gas\n0,0,air\n1,45,air\n44,45,air\n46,0,air\n")
+    args = ["records", "add", "dive", str(log), "--job", JOB, "--dive", "D1", "--diver",
+            "Teodor Lind", "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
+            "--no-exposure-24h"]
+    code, _out, err = run(args, capsys, recorded)
+    assert code == 2 and err.startswith("error: --started: ")
+    code, _out, err = run([*args, "--started", "2026-06-03T08:40"], capsys, recorded)
+    assert code == 0, err
+    with RecordStore.open(recorded) as store:
+        assert store.get(4).occurred_at == "2026-06-03T08:40:00"

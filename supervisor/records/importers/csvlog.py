@@ -1,6 +1,6 @@
 """A depth recorder's CSV log to a :class:`~supervisor.profile.Profile`.
 
-Format (``docs/depth-log-csv.md`` describes it with an example)::
+Format (``docs/logs.md`` describes it with an example)::
 
     # any comment line starts with '#'
     # units: time=s depth=fsw temperature=C      (optional declaration line)

@@ -2,7 +2,7 @@
 
 The supervisor writes down the clock time of each event of a dive; this file
 holds them with the dive's particulars.  ``supervisor log schema`` prints the
-JSON Schema; ``docs/timed-log.md`` describes the format with an example.
+JSON Schema; ``docs/logs.md`` describes the format with an example.
 
 Events, in time order (``at`` is a TOML local time ``09:02:00``, or a local
 date-time ``2031-05-14T23:58:00`` for a log that passes midnight):
