@@ -325,7 +325,7 @@ def analyse_dive(
 
 
 def _load_reference(plan: Plan) -> tuple[Any, str | None]:
-    name = plan.resolved_policy.reference_table
+    name = plan.reference_table_source()  # a relative path: from the plan file's folder
     if not name:
         return None, None
     from supervisor.references import load_table
