@@ -37,6 +37,9 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
+from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import dataclass, field, fields, replace
 from typing import Any
 
@@ -85,6 +88,71 @@ MAX_TOTAL_STOP_MIN: int = 2880
 
 class BeyondRangeError(ScheduleError):
     """A decompression obligation larger than the planner computes (not an endless search)."""
+
+
+class WorkLimitError(BeyondRangeError):
+    """More schedule computation than one caller's work budget allows (:func:`work_budget`)."""
+
+
+@dataclass
+class _Budget:
+    """Stop levels left to a caller: one level is one pass of the planner's stop loop."""
+
+    levels: int
+    total: int
+
+
+_BUDGET: ContextVar[_Budget | None] = ContextVar("_BUDGET", default=None)
+
+
+@contextmanager
+def work_budget(levels: int) -> Iterator[_Budget]:
+    """Bound the schedule computations made inside the ``with`` block.
+
+    Every batch of :func:`plan_schedules` costs the number of stop depths its loop
+    visits (deepest candidate stop to the last stop, plus the chamber stops of
+    surface decompression), charged before it runs; once the budget is spent,
+    further schedules raise :class:`WorkLimitError` at once.  The count is
+    deterministic (no clock): the same plan always gets the same answer.
+
+    Parameters
+    ----------
+    levels : int
+        Stop levels allowed in the block [count].
+
+    Yields
+    ------
+    _Budget
+        The counter (``levels`` left, ``total`` given).
+    """
+    budget = _Budget(int(levels), int(levels))
+    token = _BUDGET.set(budget)
+    try:
+        yield budget
+    finally:
+        _BUDGET.reset(token)
+
+
+def _charge(reqs: list[ScheduleRequest]) -> None:
+    """Charge one batch's stop levels to the budget in force (if any)."""
+    budget = _BUDGET.get()
+    if budget is None:
+        return
+    r0 = reqs[0]
+    deepest = max(r.depth for r in reqs)
+    levels = int(math.ceil(deepest / r0.stop_step - 1e-9)) - int(round(r0.last_stop /
+                                                                     r0.stop_step)) + 1
+    sd = r0.surface_decompression
+    if sd is not None:
+        levels += int(math.floor(sd.chamber_depth / r0.stop_step + 1e-9))
+    if levels > budget.levels:
+        budget.levels = 0
+        raise WorkLimitError(
+            f"beyond the check's work limit: not computed (this plan asks for more model "
+            f"schedules than one check computes, {budget.total} stop levels; split the job "
+            "into smaller plans or use a coarser stop step)"
+        )
+    budget.levels -= max(levels, 1)
 
 CONVENTIONS: dict[str, str] = {
     "bottom_time": "from leaving the surface (descent included) to leaving the bottom",
@@ -443,6 +511,7 @@ def plan_schedules(requests: list[ScheduleRequest]) -> list[ScheduleResult]:
         groups.setdefault(_group_key(r), []).append(i)
     out: list[ScheduleResult | None] = [None] * len(requests)
     for idx in groups.values():
+        _charge([requests[i] for i in idx])
         res = _Batch([requests[i] for i in idx]).run()
         for i, rr in zip(idx, res, strict=True):
             out[i] = rr
@@ -984,6 +1053,8 @@ def with_bottom_time(req: ScheduleRequest, bottom_time_min: float) -> ScheduleRe
 __all__ = [
     "MAX_TOTAL_STOP_MIN",
     "BeyondRangeError",
+    "WorkLimitError",
+    "work_budget",
     "CONVENTIONS",
     "SCHEMA",
     "SURFACE_INTERVAL",
