@@ -469,9 +469,9 @@ def analyse_plan(plan: Plan, altitudes_m: tuple[float, ...] = (CABIN_ALTITUDE_M,
 #: the model schedule of every dive); beyond them a dive's schedules are "not computed"
 #: (needs review).  A dive of a realistic job uses about 100 when its schedules are
 #: computed one at a time (fewer when batched: a batch costs its deepest dive's levels
-#: once); the budget bounds the worst valid plan to well under 30 s
-#: (``bench/bench_worst.py``).  Own choice, no source.
-CHECK_WORK_LEVELS = 20_000
+#: once), so a week-long job of 50 dives fits; the budget bounds the worst valid plan
+#: under 30 s (``bench/bench_worst.py``).  Own choice, no source.
+CHECK_WORK_LEVELS = 8_000
 
 
 def _saturated(plan: Plan) -> NDArray[np.float64]:
