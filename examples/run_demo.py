@@ -57,9 +57,10 @@ def main() -> int:
         old.unlink()
     store = ["--db", str(db)]
     _run(["records", "add", "plan", str(plan), *store], env)
-    _run(["records", "add", "dive", str(Path("examples") / "demo-d2-log.toml"), "--sign",
-          str(key), *store], env)
-    _run(["records", "add", "dive", str(Path("examples") / "demo-d1-recorder.csv"), "--job",
+    logs = Path("examples") / "logs"
+    _run(["records", "add", "dive", str(logs / "demo-d2-log.toml"), "--sign", str(key), *store],
+         env)
+    _run(["records", "add", "dive", str(logs / "demo-d1-recorder.csv"), "--job",
           "2026-06-03-outfall-diffuser-inspection-and-riser-clamp-change", "--dive", "D1",
           "--diver", "Teodor Lind", "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
           "--no-exposure-24h", *store], env)

@@ -6,12 +6,15 @@ line naming the file, the line and the problem).
 
 from __future__ import annotations
 
-import json
 from pathlib import Path
 
 import typer
 
-from supervisor.cli._common import guarded
+from supervisor.cli._common import (
+    guarded,
+    json_text,
+    say,
+)
 from supervisor.cli.records_common import (
     DEPTH_UNIT_OPTION,
     FORMAT_OPTION,
@@ -36,7 +39,7 @@ def schema() -> None:
     """Print the JSON Schema of the supervisor's timed log (supervisor-log/1)."""
     from supervisor.records.importers.timed import log_json_schema
 
-    typer.echo(json.dumps(log_json_schema(), indent=2))
+    typer.echo(json_text(log_json_schema()))
 
 
 @log_app.command("read")
@@ -59,20 +62,20 @@ def read(
     opts = csv_options(depth_unit, time_unit, temperature_unit, gas)
     imported = read_log(log, fmt, opts)
     if as_json:
-        typer.echo(json.dumps({"schema": "supervisor.log-import/1", "log": imported.to_json(),
+        typer.echo(json_text({"schema": "supervisor.log-import/1", "log": imported.to_json(),
                                "meta": imported.meta,
-                               "profile": profile_to_json(imported.profile)}, indent=2))
+                               "profile": profile_to_json(imported.profile)}))
         return
     p = imported.profile
     bt = imported.bottom_time_min
-    typer.echo(f"{log}: {imported.source.format}, {len(p.segments)} segments over "
+    say(f"{log}: {imported.source.format}, {len(p.segments)} segments over "
                f"{p.duration_min:.1f} min, max depth {imported.max_depth:g} {p.unit}")
-    typer.echo(f"bottom time: {bt:.1f} min ({imported.bottom_time_basis})" if bt is not None
+    say(f"bottom time: {bt:.1f} min ({imported.bottom_time_basis})" if bt is not None
                else f"bottom time: none ({imported.bottom_time_basis})")
     if imported.started_at is not None:
-        typer.echo(f"started: {imported.started_at.isoformat()}")
+        say(f"started: {imported.started_at.isoformat()}")
     print_issues(imported.issues)
-    typer.echo("nothing stored; 'supervisor records add dive LOG ...' records it")
+    say("nothing stored; 'supervisor records add dive LOG ...' records it")
 
 
 def register(app: typer.Typer) -> None:

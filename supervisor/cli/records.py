@@ -24,7 +24,16 @@ from typing import Any
 
 import typer
 
-from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, EXIT_OK, fail_input, guarded
+from supervisor.cli._common import (
+    EXIT_BAD_INPUT,
+    EXIT_FAIL,
+    EXIT_OK,
+    error_line,
+    fail_input,
+    guarded,
+    json_text,
+    say,
+)
 from supervisor.cli.records_add import add_app
 from supervisor.cli.records_common import DB_HELP, open_store, passphrase
 from supervisor.text import printable
@@ -79,15 +88,14 @@ def list_records(
         for s in store.records(kind="signature"):
             signed.setdefault(s.refers_to, []).append(s.seq)
     if as_json:
-        typer.echo(json.dumps([{**r.columns(), "summary": summary(r),
+        typer.echo(json_text([{**r.columns(), "summary": summary(r),
                                 "corrected_by": fixed.get(r.seq),
-                                "signed_by_records": signed.get(r.seq, [])} for r in rows],
-                              indent=2, ensure_ascii=False))
+                                "signed_by_records": signed.get(r.seq, [])} for r in rows]))
         return
     if not rows:
-        typer.echo("no records")
+        say("no records")
         return
-    typer.echo(f"{'SEQ':>5}  {'KIND':<9}  {'WHEN':<19}  {'DIVER':<18}  RECORD")
+    say(f"{'SEQ':>5}  {'KIND':<9}  {'WHEN':<19}  {'DIVER':<18}  RECORD")
     for r in rows:
         notes = []
         if r.corrects:
@@ -98,7 +106,7 @@ def list_records(
             notes.append("signed #" + ",#".join(str(s) for s in signed[r.seq]))
         extra = f" [{'; '.join(notes)}]" if notes else ""
         when = (r.occurred_at or "")[:19]
-        typer.echo(f"{r.seq:>5}  {r.kind:<9}  {when:<19}  {printable(r.diver or '-')[:18]:<18}  "
+        say(f"{r.seq:>5}  {r.kind:<9}  {when:<19}  {printable(r.diver or '-')[:18]:<18}  "
                    f"{printable(summary(r))}{extra}")
 
 
@@ -118,25 +126,24 @@ def show(
         later = [c.seq for c in store.records() if c.corrects == seq]
         sigs = store.records(kind="signature", refers_to=seq)
     if as_json:
-        typer.echo(json.dumps({**doc, "corrected_by": later,
-                               "signatures": [s.seq for s in sigs]},
-                              indent=2, ensure_ascii=False, sort_keys=True))
+        typer.echo(json_text({**doc, "corrected_by": later,
+                               "signatures": [s.seq for s in sigs]}))
         return
     for key in ("seq", "kind", "created_at", "occurred_at", "job", "diver", "refers_to",
                 "corrects", "content_sha256", "prev_hash", "record_hash"):
-        typer.echo(f"{key + ':':<16}{printable(doc[key]) if doc[key] is not None else '-'}")
+        say(f"{key + ':':<16}{printable(doc[key]) if doc[key] is not None else '-'}")
     if later:
-        typer.echo(f"{'corrected by:':<16}" + ", ".join(f"#{c}" for c in later)
+        say(f"{'corrected by:':<16}" + ", ".join(f"#{c}" for c in later)
                    + " (this record stays as it was; read the correction)")
     for s in sigs:
         b = s.body or {}
-        typer.echo(f"{'signature:':<16}#{s.seq} by {printable(b.get('signer'))} (certificate "
+        say(f"{'signature:':<16}#{s.seq} by {printable(b.get('signer'))} (certificate "
                    f"SHA-256 {b.get('fingerprint_sha256')}); check with 'records verify'")
-    typer.echo("content:")
+    say("content:")
     body = doc["body"]
     text = json.dumps(body, indent=2, ensure_ascii=False, sort_keys=True) if body is not None \
         else "(removed under the retention rules; the tombstone names its content hash)"
-    typer.echo(printable(text, keep_newlines=True))
+    say(printable(text, keep_newlines=True))
 
 
 @records_app.command("verify")
@@ -169,25 +176,25 @@ def verify(
         f"signature on record {bad_sig['signs']} does not verify: {bad_sig['detail']}"
         if bad_sig else "")
     if as_json:
-        typer.echo(json.dumps({
+        typer.echo(json_text({
             "store": where, "intact": first_bad is None, "records": report.count,
             "head": {"seq": report.head_seq, "record_hash": report.head_hash},
             "first_bad": first_bad, "problem": problem, "purged": report.purged,
-            "signatures": sig_results}, indent=2))
+            "signatures": sig_results}))
     elif first_bad is not None:
-        typer.echo(f"BROKEN: {where}: record {first_bad} does not match: {problem}")
-        typer.echo(f"  records before it verify ({report.count if not report.intact else '-'} "
+        say(f"BROKEN: {where}: record {first_bad} does not match: {problem}")
+        say(f"  records before it verify ({report.count if not report.intact else '-'} "
                    "checked); do not rely on this record or any after it until the cause is "
                    "found")
     else:
-        typer.echo(f"INTACT: {where}: {report.count} records, every hash and link matches"
+        say(f"INTACT: {where}: {report.count} records, every hash and link matches"
                    + (f", {len(sig_results)} signature(s) valid" if sig_results else ""))
         if report.head_seq is not None:
-            typer.echo(f"  head #{report.head_seq} sha256 {report.head_hash}")
-            typer.echo("  note: write the head down (daily log, checklist): a chain cut after "
+            say(f"  head #{report.head_seq} sha256 {report.head_hash}")
+            say("  note: write the head down (daily log, checklist): a chain cut after "
                        "a record still verifies up to it")
         if report.purged:
-            typer.echo(f"  {report.purged} record bodies removed under tombstones (headers "
+            say(f"  {report.purged} record bodies removed under tombstones (headers "
                        "verified)")
     raise typer.Exit(EXIT_FAIL if first_bad is not None else EXIT_OK)
 
@@ -225,7 +232,7 @@ def _write(out: Path | None, text: str) -> None:
         write_new_file(out, text)
     except _Exists:
         fail_input("--out", f"{out} exists; an export is never written over a file")
-    typer.echo(f"wrote {out}")
+    say(f"wrote {out}")
 
 
 def _as_of(value: str | None) -> dt.date:
@@ -257,24 +264,24 @@ def retention(
         eligible, decisions = archivable(store, day)
         text = export_json(store, eligible, complete=False) if archive is not None else ""
     if as_json:
-        typer.echo(json.dumps({"as_of": day.isoformat(),
-                               "decisions": [d.to_json() for d in decisions]}, indent=2))
+        typer.echo(json_text({"as_of": day.isoformat(),
+                               "decisions": [d.to_json() for d in decisions]}))
     else:
         counts = {s: sum(1 for d in decisions if d.status == s)
                   for s in ("may-archive", "keep", "review")}
-        typer.echo(f"retention on {day}: {counts['may-archive']} may be archived, "
+        say(f"retention on {day}: {counts['may-archive']} may be archived, "
                    f"{counts['keep']} kept, {counts['review']} need review")
         for d in decisions:
             until = d.keep_until or "-"
             cite = f" [{d.citation}; {d.source_status}]" if d.citation else ""
-            typer.echo(f"{d.seq:>5}  {d.kind:<9}  {d.status:<11}  until {until:<10}  "
+            say(f"{d.seq:>5}  {d.kind:<9}  {d.status:<11}  until {until:<10}  "
                        f"{d.reason}{cite}")
-        typer.echo("Nothing is deleted by this listing; removal takes 'records retention "
+        say("Nothing is deleted by this listing; removal takes 'records retention "
                    "--archive FILE' then 'records purge --archive FILE'.  Local rules and the "
                    "contractor's manual may require longer.")
     if archive is not None:
         if not eligible:
-            typer.echo("no record may be archived; no archive written")
+            say("no record may be archived; no archive written")
             return
         _write(archive, text)
 
@@ -296,9 +303,9 @@ def purge(
     day = _as_of(as_of)
     with open_store(db, create=False) as store:
         stone, seqs = tombstone(store, archive, day, by or "")
-        typer.echo(f"{len(seqs)} record bodies may be removed on {day}: "
+        say(f"{len(seqs)} record bodies may be removed on {day}: "
                    + ", ".join(f"#{s}" for s in seqs))
-        typer.echo(f"each is in {archive} unchanged; headers and hashes stay in the chain, "
+        say(f"each is in {archive} unchanged; headers and hashes stay in the chain, "
                    "and a tombstone record names what was removed")
         if not yes:
             try:
@@ -307,10 +314,10 @@ def purge(
             except (typer.Abort, EOFError, OSError):  # no terminal to answer on
                 answer = ""
             if answer.strip() != str(len(seqs)):
-                typer.echo("error: purge: not confirmed; nothing removed", err=True)
+                error_line("purge: not confirmed; nothing removed")
                 raise typer.Exit(EXIT_BAD_INPUT)
         done = store.purge(stone, seqs)
-    typer.echo(f"removed {len(seqs)} record bodies; tombstone #{done.seq} sha256 "
+    say(f"removed {len(seqs)} record bodies; tombstone #{done.seq} sha256 "
                f"{done.record_hash}")
 
 
@@ -333,7 +340,7 @@ def sign(
     with open_store(db) as store:
         target = store.get(seq)
         done = store.append(signature_record(target, identity))
-    typer.echo(f"recorded #{done.seq} signature on record {seq} by {printable(identity.name)} "
+    say(f"recorded #{done.seq} signature on record {seq} by {printable(identity.name)} "
                f"(certificate SHA-256 {identity.fingerprint_sha256})")
 
 
@@ -345,7 +352,7 @@ def schema(
     """Print the JSON Schema of a TOML input of 'records add' (dcs, treatment)."""
     from supervisor.records.kinds import schemas
 
-    typer.echo(json.dumps(schemas()[name.value], indent=2))
+    typer.echo(json_text(schemas()[name.value]))
 
 
 def register(app: typer.Typer) -> None:

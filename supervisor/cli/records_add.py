@@ -18,7 +18,13 @@ from typing import Any
 
 import typer
 
-from supervisor.cli._common import EXIT_FAIL, fail_input, guarded
+from supervisor.cli._common import (
+    EXIT_FAIL,
+    error_line,
+    fail_input,
+    guarded,
+    say,
+)
 from supervisor.cli.records_common import (
     DB_HELP,
     DEPTH_UNIT_OPTION,
@@ -71,8 +77,8 @@ def _finish(store: Any, items: list[Any], sign: Path | None, corrects: int | Non
     for r in done:
         from supervisor.records.kinds import summary
 
-        typer.echo(f"recorded #{r.seq} {r.kind}: {printable(summary(r))}")
-    typer.echo(f"chain head #{done[-1].seq} sha256 {done[-1].record_hash}")
+        say(f"recorded #{r.seq} {r.kind}: {printable(summary(r))}")
+    say(f"chain head #{done[-1].seq} sha256 {done[-1].record_hash}")
     return done
 
 
@@ -123,7 +129,7 @@ def add_plan(
     with open_store(db, create=True) as store:
         known = _plan_on_record(store, hashlib.sha256(data).hexdigest())
         if known is not None and corrects is None:
-            typer.echo(f"already on record: #{known.seq} (plan {known.body.get('file')}, same "
+            say(f"already on record: #{known.seq} (plan {known.body.get('file')}, same "
                        "SHA-256); nothing written")
             return
         _finish(store, _plan_items(store, data, str(plan), job), sign, corrects, reason)
@@ -161,8 +167,8 @@ def add_checklist(
     if checklist.with_name(checklist.name + ".sig").exists():
         verification = verify_file(checklist)
         if verification.status != "valid":
-            typer.echo(f"error: {checklist}: signature does not verify ({verification.reason}); "
-                       "nothing recorded", err=True)
+            error_line(f"{checklist}: signature does not verify ({verification.reason}); "
+                       "nothing recorded")
             raise typer.Exit(EXIT_FAIL)
     plan_bytes = record["plan_text"].encode("utf-8")
     if hashlib.sha256(plan_bytes).hexdigest() != record.get("plan_sha256"):
@@ -183,7 +189,7 @@ def add_checklist(
                                                        done[-1].seq, verification))
         _finish(store, items, sign, None, None)
     if verification is None:
-        typer.echo("note: the checklist is not signed (no .json.sig beside it)")
+        say("note: the checklist is not signed (no .json.sig beside it)")
 
 
 @add_app.command("dive")
@@ -274,10 +280,10 @@ def add_dive(
             fail_input("--dive", f"dive {dive_!r} is not in the recorded plan (dives: "
                                  f"{', '.join(dives) or 'none'})")
         if plan_rec.body.get("unit") != imported.profile.unit:
-            typer.echo(f"note: the log is in {imported.profile.unit}, the plan in "
+            say(f"note: the log is in {imported.profile.unit}, the plan in "
                        f"{plan_rec.body.get('unit')}; the record keeps the log's unit")
         if dives[dive_]["diver"] != diver_:
-            typer.echo(f"note: the plan gives dive {dive_} to {dives[dive_]['diver']}; recorded "
+            say(f"note: the plan gives dive {dive_} to {dives[dive_]['diver']}; recorded "
                        f"for {diver_} as logged")
         rec = dive_record(imported, dive=dive_, diver=diver_, table=table_, schedule=sched,
                           repetitive_group=group_, hours_since_last_exposure=since_,
@@ -334,7 +340,7 @@ def add_dcs(
         if rec.refers_to is not None and store.get(rec.refers_to).kind != "dive":
             fail_input("dive_record", f"record {rec.refers_to} is not a dive record")
         _finish(store, [rec], sign, corrects, reason)
-    typer.echo("note: the case is kept five years (29 CFR 1910.440(b)(3)); the decompression "
+    say("note: the case is kept five years (29 CFR 1910.440(b)(3)); the decompression "
                "procedure assessment is due within 45 days (29 CFR 1910.423(e))")
 
 

@@ -7,6 +7,7 @@ from typing import Any
 
 import typer
 
+from supervisor.cli._common import say
 from supervisor.text import printable
 
 DB_HELP = ("Record store: an SQLite file path, sqlite:///PATH or postgresql://USER@HOST:PORT/NAME "
@@ -61,7 +62,7 @@ def print_issues(issues: Sequence[Any]) -> None:
     """Print what was handled on import, one line each."""
     if not issues:
         return
-    typer.echo(f"handled on import ({len(issues)}; kept with the record):")
+    say(f"handled on import ({len(issues)}; kept with the record):")
     for i in issues:
         where = f"line {i.line}: " if i.line else ""
-        typer.echo(f"  {i.kind}: {where}{printable(i.message)}")
+        say(f"  {i.kind}: {where}{printable(i.message)}")

@@ -20,7 +20,7 @@ def run(args: list[str], capsys) -> tuple[int, str, str]:
 
 
 def test_read_timed_log(capsys) -> None:
-    code, out, _ = run(["log", "read", str(EX / "demo-d2-log.toml")], capsys)
+    code, out, _ = run(["log", "read", str(EX / "logs" / "demo-d2-log.toml")], capsys)
     assert code == 0
     assert "max depth 110 fsw" in out and "bottom time: 40.0 min" in out
     assert out.rstrip().endswith("nothing stored; 'supervisor records add dive LOG ...' "
@@ -28,7 +28,7 @@ def test_read_timed_log(capsys) -> None:
 
 
 def test_read_recorder_csv_json(capsys) -> None:
-    code, out, _ = run(["log", "read", str(EX / "demo-d1-recorder.csv"), "--json"], capsys)
+    code, out, _ = run(["log", "read", str(EX / "logs" / "demo-d1-recorder.csv"), "--json"], capsys)
     doc = json.loads(out)
     assert code == 0 and doc["profile"]["unit"] == "fsw"
     assert {i["kind"] for i in doc["log"]["issues"]} == {"gap", "duplicate"}
@@ -39,6 +39,6 @@ def test_unknown_suffix_and_bad_unit(capsys, tmp_path: Path) -> None:
     p.write_text("x")
     code, _out, err = run(["log", "read", str(p)], capsys)
     assert code == 2 and "--format" in err
-    code, _out, err = run(["log", "read", str(EX / "demo-d1-recorder.csv"), "--depth-unit",
+    code, _out, err = run(["log", "read", str(EX / "logs" / "demo-d1-recorder.csv"), "--depth-unit",
                            "yards"], capsys)
     assert code == 2 and err.startswith("error: --depth-unit: ")

@@ -38,7 +38,7 @@ def _count(db: str) -> int:
 def recorded(db_url: str, capsys) -> str:  # noqa: F811 - the imported fixture
     code, out, err = run(["records", "add", "plan", str(EX / "demo-job.toml")], capsys, db_url)
     assert code == 0, err
-    code, out, err = run(["records", "add", "dive", str(EX / "demo-d2-log.toml")], capsys,
+    code, out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d2-log.toml")], capsys,
                          db_url)
     assert code == 0, err
     assert "recorded #3 dive: dive D2: 110 fsw, BT 40.0 min; table zhl16c-gf30-85-air-fsw, " \
@@ -47,7 +47,7 @@ def recorded(db_url: str, capsys) -> str:  # noqa: F811 - the imported fixture
 
 
 def test_add_list_show_verify(recorded: str, capsys) -> None:
-    code, out, err = run(["records", "add", "dive", str(EX / "demo-d1-recorder.csv"),
+    code, out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d1-recorder.csv"),
                           "--job", JOB, "--dive", "D1", "--diver", "Teodor Lind",
                           "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
                           "--no-exposure-24h"], capsys, recorded)
@@ -96,11 +96,11 @@ def test_bad_log_exits_2_and_stores_nothing(recorded: str, capsys, tmp_path: Pat
 
 
 def test_missing_record_fields_exit_2(recorded: str, capsys) -> None:
-    code, _out, err = run(["records", "add", "dive", str(EX / "demo-d1-recorder.csv"),
+    code, _out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d1-recorder.csv"),
                            "--job", JOB, "--dive", "D1", "--diver", "Teodor Lind",
                            "--schedule", "50/50", "--no-exposure-24h"], capsys, recorded)
     assert code == 2 and err.startswith("error: --table: missing")
-    code, _out, err = run(["records", "add", "dive", str(EX / "demo-d1-recorder.csv"),
+    code, _out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d1-recorder.csv"),
                            "--job", JOB, "--dive", "D9", "--diver", "Teodor Lind",
                            "--table", "t", "--schedule", "50/50", "--no-exposure-24h"],
                           capsys, recorded)
@@ -114,7 +114,7 @@ def test_correction_and_signature(recorded: str, capsys, tmp_path: Path,
     key = tmp_path / "mara.p12"
     assert run(["keys", "new", "--name", "Mara Okonjo (fictional)", "--out", str(key)],
                capsys)[0] == 0
-    code, out, err = run(["records", "add", "dive", str(EX / "demo-d2-log.toml"),
+    code, out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d2-log.toml"),
                           "--bottom-time", "41", "--corrects", "3", "--reason",
                           "bottom time re-read from the dive sheet", "--sign", str(key)],
                          capsys, recorded)
@@ -125,7 +125,7 @@ def test_correction_and_signature(recorded: str, capsys, tmp_path: Path,
     code, out, _ = run(["records", "verify", "--json"], capsys, recorded)
     doc = json.loads(out)
     assert code == 0 and doc["intact"] and doc["signatures"][0]["valid"]
-    code, _out, err = run(["records", "add", "dive", str(EX / "demo-d2-log.toml"),
+    code, _out, err = run(["records", "add", "dive", str(EX / "logs" / "demo-d2-log.toml"),
                            "--reason", "no target"], capsys, recorded)
     assert code == 2 and "--reason" in err
 

@@ -49,7 +49,7 @@ def test_job_and_plan_of_the_demo_job() -> None:
 
 
 def test_dive_record_keeps_the_profile_exactly() -> None:
-    log = read_timed_log(ROOT / "examples" / "demo-d2-log.toml")
+    log = read_timed_log(ROOT / "examples" / "logs" / "demo-d2-log.toml")
     rec = dive_record(log, dive="D2", diver="Priya Raman", table="t",
                       schedule={"depth": 110, "bottom_time_min": 40}, repetitive_group=None,
                       hours_since_last_exposure=None, no_exposure_24h=True, ref="job",
@@ -62,7 +62,7 @@ def test_dive_record_keeps_the_profile_exactly() -> None:
 
 
 def test_dive_record_needs_the_repetitive_status() -> None:
-    log = read_timed_log(ROOT / "examples" / "demo-d2-log.toml")
+    log = read_timed_log(ROOT / "examples" / "logs" / "demo-d2-log.toml")
     with pytest.raises(InputError, match="197.482"):
         dive_record(log, dive="D2", diver="x", table="t", schedule={}, repetitive_group=None,
                     hours_since_last_exposure=None, no_exposure_24h=False, ref=None,

@@ -15,7 +15,7 @@ from supervisor.records.importers.common import LogError
 from supervisor.records.importers.timed import log_json_schema, read_timed_log
 
 ROOT = Path(__file__).resolve().parents[3]
-DEMO = ROOT / "examples" / "demo-d2-log.toml"
+DEMO = ROOT / "examples" / "logs" / "demo-d2-log.toml"
 
 HEAD = """\
 schema = "supervisor-log/1"
