@@ -2,8 +2,10 @@
 
 Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
 key for its fictional supervisor, writes the signed pre-dive checklist (PDF and
-JSON) to ``out/`` and verifies it.  The demo key's passphrase is a fixed demo
-value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never use it for a real key.
+JSON) to ``out/`` and verifies it, then records the plan and two invented dive logs in
+a fresh record store ``out/demo-records.sqlite3`` and verifies its hash chain.  The demo
+key's passphrase is a fixed demo value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never
+use it for a real key.
 """
 
 from __future__ import annotations
@@ -48,10 +50,26 @@ def main() -> int:
     pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
     for pdf in pdfs:
         _run(["verify", str(pdf.relative_to(ROOT))], env)
+    # after the dive: the timed log of D2 (one cut-short stop, for the audit to come) and the
+    # recorder log of D1 go on record with the plan, signed, and the chain is verified
+    db = out / "demo-records.sqlite3"
+    for old in (ROOT / out).glob("demo-records.sqlite3*"):
+        old.unlink()
+    store = ["--db", str(db)]
+    _run(["records", "add", "plan", str(plan), *store], env)
+    logs = Path("examples") / "logs"
+    _run(["records", "add", "dive", str(logs / "demo-d2-log.toml"), "--sign", str(key), *store],
+         env)
+    _run(["records", "add", "dive", str(logs / "demo-d1-recorder.csv"), "--job",
+          "2026-06-03-outfall-diffuser-inspection-and-riser-clamp-change", "--dive", "D1",
+          "--diver", "Teodor Lind", "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
+          "--no-exposure-24h", *store], env)
+    _run(["records", "list", *store], env)
+    _run(["records", "verify", *store], env)
     source = "SUPERVISOR_KEY_PASSPHRASE" if "SUPERVISOR_KEY_PASSPHRASE" in os.environ else (
         repr(DEMO_PASSPHRASE))
-    print(f"\nsigned checklist written to {checklists}/ (demo key passphrase: {source}; "
-          "demo only)")
+    print(f"\nsigned checklist written to {checklists}/, dive records to {db} (demo key "
+          f"passphrase: {source}; demo only)")
     return 0
 
 
