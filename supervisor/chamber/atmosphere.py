@@ -121,6 +121,7 @@ def atmosphere_plan(pieces: list[VentilationPiece], overboard_dump: bool,
     lim = load_atmosphere_limits()
     need = max((p.lpm for p in pieces), default=0.0)
     warnings = []
+    notes = []
     if own_lpm is not None and own_lpm + 1e-9 < need:
         worst = max(pieces, key=lambda p: p.lpm)
         warnings.append(
@@ -129,7 +130,7 @@ def atmosphere_plan(pieces: list[VentilationPiece], overboard_dump: bool,
             f"may rise above {lim['oxygen-percent-operating'].value:g} %; monitor it and "
             "ventilate more")
     if not overboard_dump:
-        warnings.append(
+        notes.append(
             "no overboard dump stated: exhaled oxygen enters the chamber; keep chamber oxygen "
             f"at or below {lim['oxygen-percent-operating'].value:g} % "
             f"({lim['oxygen-percent-operating'].source_status}) by ventilation, never above "
@@ -143,6 +144,7 @@ def atmosphere_plan(pieces: list[VentilationPiece], overboard_dump: bool,
         "ventilation_required_lpm": round(need, 1),
         "overboard_dump": overboard_dump,
         "warnings": warnings,
+        "notes": notes,
     }
 
 

@@ -151,7 +151,9 @@ def read_events(path: str | Path) -> _Events:
     try:
         ev = _Events.model_validate(doc)
     except ValidationError as exc:
-        e = exc.errors(include_url=False)[0]
+        errs = exc.errors(include_url=False)
+        # a misspelt key explains the missing one: report it first
+        e = sorted(errs, key=lambda x: x["type"] != "extra_forbidden")[0]
         where = _loc(tuple(e["loc"]))
         msg = e["msg"].removeprefix("Value error, ")
         if e["type"] == "extra_forbidden":

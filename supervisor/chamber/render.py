@@ -201,6 +201,7 @@ def atmosphere_lines(plan: dict[str, Any]) -> list[str]:
         out.append(f"  ventilation {v['lpm']:.0f} L/min ({v['acfm']:g} acfm) for {v['minutes']:g} "
                    f"min: {v['situation']}")
     out += [f"  WARNING: {w}" for w in at["warnings"]]
+    out += [f"  note: {w}" for w in at["notes"]]
     if g["need_l"] is None:
         out.append(f"  chamber gas: not sized ({', '.join(g['missing'])})")
     else:

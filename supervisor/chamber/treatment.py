@@ -210,14 +210,20 @@ def plan_treatment(request: TreatmentRequest) -> TreatmentPlan:
     InputError
         Bad table number, start time, extension or job plan (one line each).
     """
-    from supervisor.plan import Policy, load_plan
+    from supervisor.plan import PlanValidationError, Policy, load_plan
 
     table = load_treatment(request.table)
     tl = build_timeline(table, request.start, {"oxygen": request.extend_oxygen,
                                                "air": request.extend_air})
     job = None
     if request.plan is not None:
-        job = load_plan(request.plan)
+        try:
+            job = load_plan(request.plan)
+        except PlanValidationError as exc:
+            raise PlanValidationError([("--plan" if f == "plan" else f"--plan: {f}", m)
+                                       for f, m in exc.problems]) from None
+        except InputError as exc:
+            raise InputError("--plan", exc.message) from None
         if not job.chamber.on_site:
             raise InputError("--plan", f"{request.plan}: the plan has no chamber on site "
                              "(chamber.on_site = false); plan the treatment without --plan or "
@@ -276,10 +282,12 @@ def _findings(p: TreatmentPlan, job: Any) -> list[Finding]:
             "; ".join(x.citation for x in att.oxygen.cases) or cite,
             att.evaluation.coefficient_status, measured=round(100 * att.evaluation.surfacing_gf, 1),
             limit=round(100 * att.gf_high, 1), unit="%"))
+    atmo_cite = ("U.S. Navy Diving Manual, Rev 4 Change A, §22-5.4, §22-6.2.6; NFPA 99 "
+                 "hyperbaric facilities chapter")
     for w in p.atmosphere["warnings"]:
-        out.append(_finding("treatment-atmosphere", "warn" if "below" in w else "info", w,
-                            "U.S. Navy Diving Manual, Rev 4 Change A, §22-5.4, §22-6.2.6; NFPA 99 "
-                            "hyperbaric facilities chapter", "FROM MEMORY"))
+        out.append(_finding("treatment-atmosphere", "warn", w, atmo_cite, "FROM MEMORY"))
+    for w in p.atmosphere["notes"]:
+        out.append(_finding("treatment-atmosphere", "info", w, atmo_cite, "FROM MEMORY"))
     g = p.chamber_gas
     if g.need_l is None:
         out.append(_finding("treatment-chamber-gas", "info" if job is None else "warn",

@@ -16,7 +16,7 @@ from pathlib import Path
 
 import typer
 
-from supervisor.cli._common import EXIT_FAIL, EXIT_OK, guarded
+from supervisor.cli._common import EXIT_FAIL, EXIT_OK
 from supervisor.cli.plan import plan_errors
 
 treatment_app = typer.Typer(
@@ -36,7 +36,6 @@ _EXT_AIR = ("Extra air-break-and-oxygen periods at 30 fsw: Tables 6 and 6A: N mo
 
 @treatment_app.command("plan")
 @plan_errors
-@guarded
 def plan(
     table: str = typer.Argument(..., metavar="TABLE", help="Published treatment table number: "
                                 "5, 6, 6A, 9 (4, 7, 8, 1A, 2A and 3 are bundled but cannot be "
@@ -81,7 +80,6 @@ def plan(
 
 @treatment_app.command("log")
 @plan_errors
-@guarded
 def log(
     planfile: Path = typer.Argument(..., metavar="PLANFILE", help="The treatment plan: the JSON "
                                     "of `treatment plan --json`, or a TOML treatment plan "
