@@ -12,7 +12,7 @@ oxygen periods) is refused with what is missing: it is never completed by guess.
 
 from __future__ import annotations
 
-import tomllib
+import re
 from dataclasses import dataclass
 from functools import lru_cache
 from pathlib import Path
@@ -33,30 +33,38 @@ class CatalogueEntry:
     path: Path
     title: str
     plannable: bool
-    missing: tuple[str, ...]
 
 
 def _key(number: str) -> str:
     return number.strip().upper()
 
 
+_NUMBER = re.compile(r'^table_number\s*=\s*"([^"]*)"\s*$', re.MULTILINE)
+_PLANNABLE = re.compile(r"^plannable\s*=\s*(true|false)\s*$", re.MULTILINE)
+_TITLE = re.compile(r'^title\s*=\s*"([^"]*)"\s*$', re.MULTILINE)
+
+
 @lru_cache(maxsize=4)
 def _entries(root: Path) -> tuple[CatalogueEntry, ...]:
+    # Only the header lines are read here (a full TOML parse of every file would cost more
+    # than planning the treatment); the table chosen is then loaded and checked in full.
     out = []
     for path in sorted((root / TREATMENT_FOLDER).glob("*.toml")):
         if path.name.startswith("."):
             continue
         try:
-            doc = tomllib.loads(path.read_text("utf-8"))
-        except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
+            text = path.read_text("utf-8")
+        except (OSError, UnicodeDecodeError):
             continue  # reported by `supervisor tables list`; never planned from
-        conv = doc.get("conventions") or {}
-        number = str(conv.get("table_number") or "").strip()
-        if doc.get("kind") != "treatment" or not number:
+        head = text.split("\n[[rows]]", 1)[0]
+        number = _NUMBER.search(head)
+        if number is None or not number.group(1).strip():
             continue
-        out.append(CatalogueEntry(_key(number), path, str(doc.get("title", path.stem)),
-                                  bool(conv.get("plannable", True)),
-                                  tuple(str(m) for m in conv.get("missing") or ())))
+        plannable = _PLANNABLE.search(head)
+        title = _TITLE.search(head)
+        out.append(CatalogueEntry(_key(number.group(1)), path,
+                                  title.group(1) if title else path.stem,
+                                  plannable is None or plannable.group(1) == "true"))
     return tuple(out)
 
 
@@ -123,11 +131,16 @@ def load_treatment(number: str, root: Path | None = None, plannable_only: bool =
         message says what its source lacks).
     """
     entry = find_entry(number, root)
-    if plannable_only and not entry.plannable:
+    table = load_table(entry.path)
+    c = table.model.conventions
+    if table.kind != "treatment" or _key(c.table_number) != entry.number:
+        raise InputError("TABLE", f"{entry.path.name}: not the treatment table {entry.number} "
+                         "it names in its header")
+    if plannable_only and not c.plannable:
         plannable = [e.number for e in catalogue(root) if e.plannable]
         raise InputError(
             "TABLE", f"Treatment Table {entry.number} cannot be planned from the bundled source: "
-            f"it lacks {'; '.join(entry.missing)}; use the current manual's figure with the "
+            f"it lacks {'; '.join(c.missing)}; use the current manual's figure with the "
             f"diving medical officer (plannable here: {', '.join(plannable)}; `supervisor tables "
             f"show {entry.path.stem}` shows what is bundled)")
-    return load_table(entry.path)
+    return table

@@ -74,8 +74,8 @@ def _finding_line(f: dict[str, Any]) -> str:
     if f.get("measured") is not None or f.get("limit") is not None:
         unit = f" {f['unit']}" if f.get("unit") else ""
         m = "-" if f.get("measured") is None else f["measured"]
-        lim = "-" if f.get("limit") is None else f["limit"]
-        vals = f" (measured {m}, limit {lim}{unit})"
+        lim = "" if f.get("limit") is None else f", limit {f['limit']}"
+        vals = f" (measured {m}{lim}{unit})"
     src = f["citation"] + (f"; {f['source_status']}" if f.get("source_status") else "")
     return f"  {f['severity']:<5} {f['rule']}: {printable(f['message'])}{vals} [{src}]"
 
