@@ -211,6 +211,9 @@ def atmosphere_lines(plan: dict[str, Any]) -> list[str]:
                    + ", ".join(f"{k} {v:.0f} L" for k, v in g["parts_l"].items())
                    + f"; {g['source_status']})")
         out += [f"    basis: {b}" for b in g["basis"]]
+        if g.get("need_every_extension_l") is not None:
+            out.append(f"  with every extension the table allows: {g['need_every_extension_l']:.0f}"
+                       f" L ({'SHORT' if g['short_with_every_extension'] else 'enough'})")
     return out
 
 

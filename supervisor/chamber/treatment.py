@@ -32,12 +32,17 @@ from typing import Any
 from supervisor import __version__
 from supervisor import constants as C
 from supervisor.chamber.atmosphere import atmosphere_plan
-from supervisor.chamber.attendant import AttendantResult, RecentDive, evaluate_attendant
+from supervisor.chamber.attendant import (
+    AttendantResult,
+    RecentDive,
+    attendant_oxygen,
+    evaluate_attendant,
+)
 from supervisor.chamber.catalogue import load_treatment
 from supervisor.chamber.cautions import treatment_cautions
 from supervisor.chamber.clock import split_clock
 from supervisor.chamber.doses import PatientDose, patient_dose
-from supervisor.chamber.extensions import describe
+from supervisor.chamber.extensions import describe, full_request
 from supervisor.chamber.procedures import missing_topics, rules_json, window_h
 from supervisor.chamber.timeline import Timeline, build_timeline
 from supervisor.chamber.ventilation import TreatmentGas, treatment_gas, ventilation_pieces
@@ -240,6 +245,12 @@ def plan_treatment(request: TreatmentRequest) -> TreatmentPlan:
                              policy.po2_chamber_max, p_surface)
     chamber = job.chamber if job is not None else None
     gas = treatment_gas(tl, att.oxygen.intervals, chamber, occupants, p_surface)
+    full = full_request(table)
+    if gas.need_l is not None and full.counts != tl.extensions.counts:
+        tl_full = build_timeline(table, request.start, full)
+        ox_full = attendant_oxygen(tl_full, att.oxygen.recent)
+        gas.need_every_extension_l = treatment_gas(tl_full, ox_full.intervals, chamber,
+                                                   occupants, p_surface).need_l
     dump = bool(chamber.bibs_overboard_dump) if chamber is not None else False
     rates = ventilation_pieces(tl, att.oxygen.intervals, occupants, dump)
     atmo = atmosphere_plan(rates, dump, chamber.ventilation_lpm if chamber else None, occupants)
@@ -305,6 +316,16 @@ def _findings(p: TreatmentPlan, job: Any) -> list[Finding]:
             "U.S. Navy Diving Manual, Rev 4 Change A, §22-5.4", None if own else g.status,
             measured=round(g.available_l or 0.0), limit=round(g.need_l), unit="L",
             verified=own and not g.short))
+        if not g.short and g.short_with_every_extension:
+            assert g.need_every_extension_l is not None
+            out.append(_finding(
+                "treatment-chamber-gas", "warn",
+                f"enough for the treatment as planned, but {g.available_l:.0f} L falls short of "
+                f"the {g.need_every_extension_l:.0f} L needed if every extension the table "
+                f"allows is run ({describe(tl.table)}): plan the extra gas before extending",
+                "U.S. Navy Diving Manual, Rev 4 Change A, §22-5.4", g.status,
+                measured=round(g.available_l or 0.0), limit=round(g.need_every_extension_l),
+                unit="L"))
     if job is not None:
         cap = job.chamber.depth_capability
         if cap is not None:

@@ -179,6 +179,9 @@ class TreatmentGas:
         Minutes at each ventilation rate.
     p_min_bar : float or None
         Chamber gauge pressure at the deepest depth [bar].
+    need_every_extension_l : float or None
+        The need if every extension the table allows were run [L]; None when the
+        plan already runs them all or the need is not computed.
     """
 
     need_l: float | None = None
@@ -189,6 +192,7 @@ class TreatmentGas:
     status: str = "FROM MEMORY"
     ventilation: list[dict[str, Any]] = field(default_factory=list)
     p_min_bar: float | None = None
+    need_every_extension_l: float | None = None
 
     @property
     def short(self) -> bool:
@@ -205,7 +209,16 @@ class TreatmentGas:
                 "parts_l": {k: r(v) for k, v in self.parts.items()}, "basis": list(self.basis),
                 "missing": list(self.missing), "source_status": self.status,
                 "short": self.short, "ventilation": self.ventilation,
-                "p_min_bar": None if self.p_min_bar is None else round(self.p_min_bar, 2)}
+                "p_min_bar": None if self.p_min_bar is None else round(self.p_min_bar, 2),
+                "need_every_extension_l": r(self.need_every_extension_l),
+                "short_with_every_extension": self.short_with_every_extension}
+
+    @property
+    def short_with_every_extension(self) -> bool:
+        """True when the flasks would fall short if every allowed extension were run."""
+        need = self.need_every_extension_l
+        return need is not None and self.available_l is not None and \
+            self.available_l + 1e-9 < need
 
 
 def treatment_gas(tl: Timeline, oxygen_intervals: list[Any], chamber: Chamber | None,

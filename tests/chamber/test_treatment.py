@@ -147,3 +147,20 @@ def test_toml_start_may_be_a_time(tmp_path):
     f.write_text('schema = "supervisor.treatment-plan/1"\ntable = "9"\nstart = 07:15:00\n',
                  "utf-8")
     assert load_request_file(f).start == "07:15"
+
+
+def test_gas_enough_as_planned_but_short_with_every_extension(tmp_path):
+    text = Path(DEMO).read_text("utf-8").replace("water_volume_l = 800", "water_volume_l = 600")
+    plan = tmp_path / "smaller.toml"
+    plan.write_text(text, "utf-8")
+    p = plan_treatment(TreatmentRequest("6", "08:00", plan=str(plan)))
+    g = p.chamber_gas
+    assert not g.short and g.short_with_every_extension
+    assert g.need_every_extension_l > g.need_l
+    fs = [f for f in p.findings if f.rule == "treatment-chamber-gas"]
+    assert {f.severity for f in fs} == {"pass", "warn"}
+    assert any("every extension" in f.message and f.limit == round(g.need_every_extension_l)
+               for f in fs if f.severity == "warn")
+    # a plan that already runs every extension has nothing more to size
+    full = plan_treatment(TreatmentRequest("6", "08:00", 2, 2, plan=str(plan)))
+    assert full.chamber_gas.need_every_extension_l is None
