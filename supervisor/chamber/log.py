@@ -311,8 +311,8 @@ def log_treatment(planfile: str | Path, events_file: str | Path) -> TreatmentLog
     findings.append(_f("treatment-log-table", "warn",
                        f"compared with Treatment Table {tl.number} as bundled: steps {tl.status}, "
                        f"{table.n_verified} of {len(table.rows)} rows verified", cite, tl.status))
-    late = clk.origin - planned.start_clock
-    if abs(late) > TOLERANCE_MIN and abs(late) < 720:
+    late = (clk.origin - planned.start_clock + 720.0) % 1440.0 - 720.0  # nearest, across midnight
+    if abs(late) > TOLERANCE_MIN:
         findings.append(_f("treatment-log-start", "info",
                            f"left the surface {abs(late):g} min "
                            f"{'after' if late > 0 else 'before'} the planned start", cite,

@@ -218,3 +218,15 @@ def test_events_reader_accepts_toml_times(tmp_path):
                  '[[steps]]\nend = 21:44:00\n', "utf-8")
     assert read_events(p).steps[0].end.hour == 21
     assert re.match(r"^\d{2}:\d{2}$", log_treatment(PLAN, p).to_json()["actual_start"])
+
+
+def test_start_across_midnight_from_the_plan(tmp_path):
+    plan = tmp_path / "p.toml"
+    plan.write_text('schema = "supervisor.treatment-plan/1"\ntable = "9"\nstart = "23:58"\n',
+                    "utf-8")
+    ev = tmp_path / "e.toml"
+    ev.write_text('schema = "supervisor.treatment-events/1"\nstart = "00:03"\n'
+                  '[[steps]]\nend = "00:05:15"\n', "utf-8")
+    log = log_treatment(plan, ev)
+    f = next(f for f in log.findings if f.rule == "treatment-log-start")
+    assert f.measured == 5.0 and "after" in f.message
