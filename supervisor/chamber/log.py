@@ -308,9 +308,11 @@ def log_treatment(planfile: str | Path, events_file: str | Path) -> TreatmentLog
     c = table.model.conventions
     cite = c.citation or f"{TABLE_CITE}, Treatment Table {tl.number}"
     notes_cite = f"{R4}, ch. 21, Treatment Table {tl.number} figure notes"
-    findings.append(_f("treatment-log-table", "warn",
+    trusted = tl.all_verified and tl.status == "VERIFIED"
+    findings.append(_f("treatment-log-table", "pass" if trusted else "warn",
                        f"compared with Treatment Table {tl.number} as bundled: steps {tl.status}, "
-                       f"{table.n_verified} of {len(table.rows)} rows verified", cite, tl.status))
+                       f"{table.n_verified} of {len(table.rows)} rows verified", cite, tl.status,
+                       verified=trusted))
     late = (clk.origin - planned.start_clock + 720.0) % 1440.0 - 720.0  # nearest, across midnight
     if abs(late) > TOLERANCE_MIN:
         findings.append(_f("treatment-log-start", "info",

@@ -266,12 +266,15 @@ def _findings(p: TreatmentPlan, job: Any) -> list[Finding]:
     tl = p.timeline
     c = tl.table.model.conventions
     cite = c.citation or f"{TABLE_CITE}, Treatment Table {tl.number}"
+    trusted = tl.all_verified and tl.status == "VERIFIED"
     out = [_finding(
-        "treatment-table-status", "warn",
+        "treatment-table-status", "pass" if trusted else "warn",
         f"Treatment Table {tl.number}: steps {tl.status}, {tl.table.n_verified} of "
-        f"{len(tl.table.rows)} rows verified; check every step against the current manual's "
-        "figure before it drives the treatment", cite, tl.status,
-        measured=tl.table.n_verified, limit=len(tl.table.rows), unit="rows verified")]
+        f"{len(tl.table.rows)} rows verified"
+        + ("" if trusted else "; check every step against the current manual's figure before "
+           "it drives the treatment"), cite, tl.status,
+        measured=tl.table.n_verified, limit=len(tl.table.rows), unit="rows verified",
+        verified=trusted)]
     if tl.extensions.total:
         out.append(_finding(
             "treatment-extensions", "info",
