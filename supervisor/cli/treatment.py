@@ -11,12 +11,11 @@ log   0 the treatment as run conforms or needs review; 1 a deviation fails (e.g.
 
 from __future__ import annotations
 
-import json
 from pathlib import Path
 
 import typer
 
-from supervisor.cli._common import EXIT_FAIL, EXIT_OK
+from supervisor.cli._common import EXIT_FAIL, EXIT_OK, json_text, say
 from supervisor.cli.plan import plan_errors
 
 treatment_app = typer.Typer(
@@ -71,10 +70,10 @@ def plan(
                            str(job_plan) if job_plan is not None else None)
     result = plan_treatment(req).to_json()
     if as_json:
-        typer.echo(json.dumps(result, indent=2, ensure_ascii=False))
+        typer.echo(json_text(result))
     else:
         for line in plan_lines(result):
-            typer.echo(line)
+            say(line)
     raise typer.Exit(EXIT_FAIL if result["verdict"] == "does-not-conform" else EXIT_OK)
 
 
@@ -99,10 +98,10 @@ def log(
 
     result = log_treatment(planfile, events).to_json()
     if as_json:
-        typer.echo(json.dumps(result, indent=2, ensure_ascii=False))
+        typer.echo(json_text(result))
     else:
         for line in log_lines(result):
-            typer.echo(line)
+            say(line)
     raise typer.Exit(EXIT_FAIL if result["verdict"] == "does-not-conform" else EXIT_OK)
 
 

@@ -35,6 +35,7 @@ from pydantic import (
 
 from supervisor.errors import InputError
 from supervisor.gas import parse_gas
+from supervisor.text import excerpt
 
 SCHEMA_ID = "supervisor-table/1"
 
@@ -71,7 +72,9 @@ MODE_TITLES: dict[str, str] = {
 NAME_RE = re.compile(r"^[a-z0-9][a-z0-9._-]*$")
 _DATE_RE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
 
-_STRICT = ConfigDict(extra="forbid", str_strip_whitespace=True)
+#: Every table model: unknown keys refused, and types strict: a boolean or a quoted
+#: number ("70") is not a number, a number is not text (no silent conversion).
+_STRICT = ConfigDict(extra="forbid", str_strip_whitespace=True, strict=True)
 
 
 def is_iso_date(text: str) -> bool:
@@ -96,9 +99,11 @@ def _minutes_or_unlimited(value: Any) -> Any:
     if isinstance(value, str):
         if value.strip().lower() == "unlimited":
             return "unlimited"
-        raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
+        raise ValueError(f"got {excerpt(value)}; expected minutes (a number >= 0) or "
+                         "\"unlimited\"")
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
+        raise ValueError(f"got {shown_value(value)}; expected minutes (a number >= 0) or "
+                         "\"unlimited\"")
     if not value >= 0 or value != value or value == float("inf"):
         raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
     return value
@@ -110,9 +115,22 @@ NonNegative = Annotated[float, Field(ge=0, allow_inf_nan=False)]
 Positive = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 
 
+def shown_value(value: Any) -> str:
+    """A rejected cell in a message: a short excerpt, tables and lists by kind."""
+    if isinstance(value, dict):
+        return "a table"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, bool):
+        return "true (a boolean)" if value else "false (a boolean)"
+    return excerpt(value)
+
+
 def _gas_name(value: Any) -> Any:
     if not isinstance(value, str):
-        raise ValueError(f"got {value!r}; expected a gas such as air, oxygen, 32/0 or 16/84")
+        raise ValueError(
+            f"got {shown_value(value)}; expected a gas such as air, oxygen, 32/0 or 16/84"
+        )
     try:
         parse_gas(value)
     except InputError as exc:
@@ -150,7 +168,7 @@ class Provenance(BaseModel):
             return self
         if not is_iso_date(self.transcribed_on):
             raise ValueError(
-                f"transcribed_on: got {self.transcribed_on!r}; expected a date YYYY-MM-DD"
+                f"transcribed_on: got {excerpt(self.transcribed_on)}; expected a date YYYY-MM-DD"
             )
         return self
 
@@ -461,7 +479,7 @@ class Schedule(BaseModel):
     @classmethod
     def _half_periods(cls, v: float | None) -> float | None:
         if v is not None and abs(v * 2 - round(v * 2)) > 1e-9:
-            raise ValueError(f"got {v!r}; expected whole or half periods (0.5, 1, 1.5, ...)")
+            raise ValueError(f"got {v:g}; expected whole or half periods (0.5, 1, 1.5, ...)")
         return v
 
     @property
@@ -526,7 +544,7 @@ class GenericRow(RowBase):
     of sub-table (e.g. ``value_status``).  Numbers must be finite.
     """
 
-    model_config = ConfigDict(extra="allow", str_strip_whitespace=True)
+    model_config = ConfigDict(extra="allow", str_strip_whitespace=True, strict=True)
 
     @model_validator(mode="after")
     def _scalars(self) -> GenericRow:
@@ -579,7 +597,7 @@ class TableBase(BaseModel):
     def _name(cls, v: str) -> str:
         if not NAME_RE.match(v):
             raise ValueError(
-                f"got {v!r}; expected lower-case letters, digits, '.', '_' or '-' "
+                f"got {excerpt(v)}; expected lower-case letters, digits, '.', '_' or '-' "
                 "(the file stem)"
             )
         return v
