@@ -333,6 +333,11 @@ class Chamber(_Section):
         description="Duration of that treatment (default 285), at least the hour after the "
         "dive [min]",
     )
+    treatment_extensions: bool | None = Field(
+        None,
+        description="Size the chamber gas for the default treatment (Treatment Table 6) with "
+        "every extension the table allows (not stated: the table without extensions)",
+    )
     treatment_occupants: int | None = Field(
         None, ge=1, le=20, description="People in the treatment lock, patient included "
         "(default 2) [count]"

@@ -211,10 +211,15 @@ def test_schema_states_the_unit_ranges(unit):
 
 def test_whole_example_plans_validate_against_the_schema():
     schema = plan_json_schema()
+    plans = 0
     for path in sorted((ROOT / "examples").glob("*.toml")):
         doc = tomllib.loads(path.read_text("utf-8"))
+        if doc.get("schema") != "supervisor-plan/1":
+            continue  # other example files (a treatment plan, its events) are not job plans
+        plans += 1
         data = json.loads(json.dumps(doc, default=lambda o: o.isoformat()))
         jsonschema.Draft202012Validator(schema).validate(data)
+    assert plans >= 4
 
 
 # -- ranges (issue 12: physically meaningless rates and sizes) -----------------------------

@@ -17,6 +17,7 @@ from supervisor.cli import plan as _plan
 from supervisor.cli import records as _records
 from supervisor.cli import schedule as _schedule
 from supervisor.cli import tables as _tables
+from supervisor.cli import treatment as _treatment
 
 app = typer.Typer(
     name="supervisor",
@@ -44,7 +45,7 @@ def _root(
     """Check proposed dive and chamber schedules before anyone gets wet."""
 
 
-for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log):
+for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log, _treatment):
     _mod.register(app)
 
 

@@ -14,7 +14,8 @@ build     0 written; 2 bad option or a schedule the engine cannot compute.
 lookup    0 a row found; 1 outside the table or no such schedule; 2 bad input.
 screen    0 no row flagged; 1 rows flagged, or the file fails the sanity rules (it is
           still screened: screening is a transcription aid); 2 unreadable file or one
-          that fails the schema.
+          that fails the schema.  A treatment table is screened for its arithmetic: step
+          times against the stated totals, travel against the stated rates.
 """
 
 from __future__ import annotations
@@ -204,6 +205,46 @@ def _show_rows(t: Table) -> list[str]:
     return out
 
 
+def _treatment_conventions(t: Table) -> list[str]:
+    """The planning conventions of a treatment table, for ``tables show``."""
+    c = t.model.conventions
+    out = []
+    if c.table_number:
+        out.append(f"table number: {c.table_number}; {c.citation or 'no citation given'}")
+    if c.indication:
+        out.append(f"use: {c.indication}")
+    if c.compression_rate is not None:
+        out.append(f"compression: {_fmt(c.compression_rate)} {c.depth_unit}/min to the first "
+                   f"step, outside the table time ({c.compression_status})")
+    elif c.compression_in_first_step:
+        out.append("compression: included in the first step's time")
+    if c.stated_total_min is not None:
+        out.append(f"stated total: {_fmt(c.stated_total_min)} min ({c.stated_total_status})"
+                   + (f"; with every extension {_fmt(c.stated_total_extended_min)} min "
+                      f"({c.stated_total_extended_status})"
+                      if c.stated_total_extended_min is not None else ""))
+    if c.plannable:
+        out.append("planning: `supervisor treatment plan " + (c.table_number or "NUMBER")
+                   + " --start HH:MM`")
+    else:
+        out.append("planning: REFUSED; the bundled source lacks: " + "; ".join(c.missing))
+    if c.plannable and c.missing:
+        out.append("not planned: " + "; ".join(c.missing))
+    for e in c.extensions:
+        parts = " + ".join(f"{_fmt(x.minutes)} min {x.gas}" for x in e.periods)
+        out.append(f"extension --extend-{e.option}: up to {e.max_count} x ({parts}) at "
+                   f"{_fmt(e.depth)} {c.depth_unit} after step {e.after_step}: {e.meaning} "
+                   f"[{e.citation}; {e.source_status}]")
+    if not c.extensions:
+        out.append("extensions: none bundled")
+    for a in c.attendant_oxygen:
+        out.append(f"attendant ({a.when}{'' if a.extensions is None else ' ' + str(a.extensions)}"
+                   f"): {a.case} [{a.citation}; {a.source_status}]")
+    if not c.attendant_oxygen:
+        out.append("attendant oxygen rule: none bundled")
+    return out
+
+
 def show_json(t: Table) -> dict[str, Any]:
     """The ``supervisor.tables-show/1`` object: header, provenance, conventions, every row.
 
@@ -254,6 +295,8 @@ def show(
         say(f"bottom time: {c.bottom_time_definition}")
     elif t.kind == "treatment":
         say(f"conventions: {c.depth_unit}; {c.place}; time: {c.time_definition}")
+        for line in _treatment_conventions(t):
+            say(line)
     if t.kind == "decompression":
         say("modes: " + "; ".join(f"{k} = {v}" for k, v in MODE_TITLES.items()))
     for line in _show_rows(t):
@@ -286,6 +329,11 @@ def lookup(
         if mode not in MODE_TITLES:
             raise InputError("--mode", f"got {mode!r}; expected one of {', '.join(MODE_TITLES)}")
         res = lookup_schedule(t, depth, bottom_time, mode=mode)
+    elif t.kind == "treatment":
+        number = t.model.conventions.table_number or "NUMBER"
+        raise InputError("NAME", f"{t.name} is a treatment table; look-up works on no-stop and "
+                         f"decompression tables; plan a treatment with `supervisor treatment plan "
+                         f"{number} --start HH:MM`")
     else:
         raise InputError("NAME", f"{t.name} is a {t.kind} table; look-up works on no-stop and "
                          "decompression tables")
@@ -475,12 +523,16 @@ def build(
 @tables_app.command("screen")
 @guarded
 def screen(
-    file: Path = typer.Argument(..., help="No-stop or decompression table file (TOML)."),
-    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set."),
-    tolerance: float = typer.Option(100 * DEFAULT_TOLERANCE, "--tolerance",
+    file: Path = typer.Argument(..., help="No-stop, decompression or treatment table file "
+                                "(TOML)."),
+    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set "
+                                      "(not used for a treatment table)."),
+    tolerance: float = typer.Option(None, "--tolerance",
                                     help="Flag a row whose surfacing supersaturation differs "
                                     "from every neighbour's by more than this [% of the "
-                                    "M-value gradient]."),
+                                    "M-value gradient, default 10]; for a treatment table, a "
+                                    "total or travel time off by more than this [min, default "
+                                    "1]."),
     descent_rate: float = typer.Option(None, "--descent-rate", help="Descent rate [depth "
                                        "unit/min] (default 75 fsw/min or 23 msw/min)."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON (supervisor.tables-screen/1)."),
@@ -491,6 +543,11 @@ def screen(
     rules (it is screened all the same), 2 for an unreadable file.
     """
     t = load_table(file, strict=False)
+    if t.kind == "treatment":
+        _screen_treatment(t, file, tolerance, as_json)
+        return
+    if tolerance is None:
+        tolerance = 100 * DEFAULT_TOLERANCE
     rep = screen_table(t, model.value, descent_rate, tolerance / 100.0)
     if as_json:
         typer.echo(json_text(rep.to_dict()))
@@ -510,6 +567,31 @@ def screen(
         flagged = sorted({r.row for r in rep.flagged})
         say(f"{len(flagged)} row(s) flagged" + (": " + ", ".join(map(str, flagged))
                                                         if flagged else ""))
+    if rep.validation_errors:
+        say(f"note: {file} also fails validation ({len(rep.validation_errors)} "
+                   "error(s)); run `supervisor tables validate`", err=True)
+    if rep.flagged or rep.validation_errors:
+        raise typer.Exit(EXIT_FAIL)
+
+
+def _screen_treatment(t: Table, file: Path, tolerance: float | None, as_json: bool) -> None:
+    """``tables screen`` on a treatment table: step times, totals and travel against rates."""
+    from supervisor.references.screen_treatment import DEFAULT_TOLERANCE_MIN, screen_treatment
+
+    rep = screen_treatment(t, DEFAULT_TOLERANCE_MIN if tolerance is None else tolerance)
+    if as_json:
+        typer.echo(json_text(rep.to_dict()))
+    else:
+        say(f"{t.name}: treatment table screened: step times against the stated totals "
+                   f"and travel against the stated rates (flag beyond {rep.tolerance_min:g} min)")
+        say(f"{'check':<15} {'what':<34} {'expected':>9} {'found':>7}  note")
+        for ck in rep.checks:
+            def m(x: float | None) -> str:
+                return "-" if x is None else f"{x:g}"
+
+            say(f"{ck.check:<15} {_cut(ck.label, 34):<34} {m(ck.expected):>9} "
+                       f"{m(ck.found):>7}  {'FLAG ' if ck.flagged else ''}{ck.note}".rstrip())
+        say(f"{len(rep.flagged)} check(s) flagged")
     if rep.validation_errors:
         say(f"note: {file} also fails validation ({len(rep.validation_errors)} "
                    "error(s)); run `supervisor tables validate`", err=True)

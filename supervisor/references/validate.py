@@ -434,13 +434,16 @@ def _decompression_monotone(t: DecompressionTable) -> list[Issue]:
 
 def _treatment(t: TreatmentTable) -> list[Issue]:
     out: list[Issue] = []
-    unit = t.conventions.depth_unit
+    c = t.conventions
+    unit = c.depth_unit
     elapsed = 0.0
     for i, s in enumerate(t.rows):
         if s.step != i + 1:
             out.append(_err(t, i, "step", f"got step {s.step}; expected {i + 1} (steps are "
                             "numbered 1, 2, ... in file order)"))
-        if i > 0 and abs(s.from_depth - t.rows[i - 1].to_depth) > _EPS:
+        # a table that cannot be planned may list its stops without the travel between them
+        # (the travel is what conventions.missing names)
+        if i > 0 and c.plannable and abs(s.from_depth - t.rows[i - 1].to_depth) > _EPS:
             out.append(_err(t, i, "from_depth", f"starts at {s.from_depth:g} {unit} but the step "
                             f"before ends at {t.rows[i - 1].to_depth:g} {unit}"))
         if s.from_depth != s.to_depth and s.travel_rate:
@@ -453,6 +456,64 @@ def _treatment(t: TreatmentTable) -> list[Issue]:
         if s.elapsed_min is not None and abs(elapsed - s.elapsed_min) > TOTAL_TOLERANCE_MIN:
             out.append(_err(t, i, "elapsed_min", f"printed {s.elapsed_min:g} min but the step "
                             f"times add up to {elapsed:g} min"))
+    return out + _treatment_planning(t)
+
+
+def _is_o2(gas: str) -> bool:
+    return gas.strip().lower() in ("oxygen", "o2", "100/0")
+
+
+def _treatment_planning(t: TreatmentTable) -> list[Issue]:
+    """Checks of a treatment table's planning conventions: extensions, attendant oxygen."""
+    out: list[Issue] = []
+    c = t.conventions
+    unit = c.depth_unit
+    rows = t.rows
+    if c.plannable and c.table_number:
+        if rows[-1].to_depth > _EPS:
+            out.append(_err(t, len(rows) - 1, "to_depth", f"the last step ends at "
+                            f"{rows[-1].to_depth:g} {unit}; a table that can be planned ends at "
+                            "the surface"))
+        if rows[0].from_depth > _EPS and c.compression_rate is None \
+                and not c.compression_in_first_step:
+            out.append(_err(t, None, "conventions.compression_rate", "the first step starts at "
+                            f"{rows[0].from_depth:g} {unit}: give compression_rate or set "
+                            "compression_in_first_step"))
+    for k, e in enumerate(c.extensions):
+        col = f"conventions.extensions[{k + 1}]"
+        if e.after_step > len(rows):
+            out.append(_err(t, None, f"{col}.after_step", f"got step {e.after_step}; the table "
+                            f"has {len(rows)} steps"))
+            continue
+        at = rows[e.after_step - 1]
+        if abs(at.to_depth - e.depth) > _EPS:
+            out.append(_err(t, None, f"{col}.depth", f"{e.depth:g} {unit} but step "
+                            f"{e.after_step} ends at {at.to_depth:g} {unit}; an extension is "
+                            "inserted where its depth is reached"))
+    n_max = sum(e.max_count for e in c.extensions)
+    base = [a for a in c.attendant_oxygen if a.when != "recent-exposure"]
+    if base:
+        for n in range(n_max + 1):
+            hits = [a.case for a in base if a.applies(n)]
+            if len(hits) != 1:
+                what = "no case applies" if not hits else f"{len(hits)} cases apply"
+                out.append(_err(t, None, "conventions.attendant_oxygen", f"with {n} "
+                                f"extension(s) {what}; exactly one base case must apply"))
+    o2_at: dict[float, float] = defaultdict(float)
+    for r in rows:
+        if r.from_depth == r.to_depth and _is_o2(r.gas):
+            o2_at[r.to_depth] += r.minutes
+    for k, a in enumerate(c.attendant_oxygen):
+        col = f"conventions.attendant_oxygen[{k + 1}]"
+        if a.depth is None or not c.plannable:
+            continue
+        if not any(abs(r.to_depth - a.depth) < _EPS for r in rows):
+            out.append(_err(t, None, f"{col}.depth", f"no step of the table is at "
+                            f"{a.depth:g} {unit}"))
+        elif a.oxygen_min > o2_at.get(a.depth, 0.0) + _EPS:
+            out.append(_err(t, None, f"{col}.oxygen_min", f"{a.oxygen_min:g} min is more than "
+                            f"the patient's {o2_at.get(a.depth, 0.0):g} oxygen minutes at "
+                            f"{a.depth:g} {unit} in the table", severity="warning"))
     return out
 
 

@@ -200,6 +200,40 @@ def test_lookup_modes_no_stop_and_outside():
     assert res.exit_code == 2 and "--mode" in res.output
 
 
+def test_treatment_tables_listed_shown_screened_and_verified(tmp_path):
+    res = _run("list")
+    assert res.exit_code == 0
+    for stem in ("usn-tt5", "usn-tt6", "usn-tt6a", "usn-tt9", "usn-tt4", "usn-tt7", "usn-tt8",
+                 "usn-tt1a", "usn-tt2a", "usn-tt3"):
+        assert any(x.startswith(stem + " ") and " treatment " in x for x in res.stdout.splitlines())
+    res = _run("show", "usn-tt6")
+    assert res.exit_code == 0
+    assert "extension --extend-oxygen: up to 2" in res.stdout
+    assert "attendant (extensions-at-most 1)" in res.stdout
+    assert "stated total: 285 min (FROM MEMORY)" in res.stdout
+    res = _run("show", "usn-tt7")
+    assert "planning: REFUSED" in res.stdout
+    src = next(p for p in (Path(__file__).resolve().parents[2] / "tables" / "treatment").glob(
+        "usn-tt6.toml"))
+    copy = tmp_path / src.name
+    copy.write_bytes(src.read_bytes())
+    assert _run("validate", str(copy)).exit_code == 0
+    res = _run("screen", str(copy))
+    assert res.exit_code == 0 and "0 check(s) flagged" in res.stdout
+    res = _run("screen", str(copy), "--json")
+    assert json.loads(res.stdout)["kind"] == "treatment"
+    res = _run("verify", str(copy), "--rows", "1-2", "--by", "A. Checker", "--method",
+               "read against the figure")
+    assert res.exit_code == 0, res.output
+    doc = tomllib.loads(copy.read_text("utf-8"))
+    assert doc["rows"][0]["verification"] == "verified" and doc["rows"][0]["row_hash"]
+    assert doc["conventions"]["extensions"]  # the extensions survive the edit
+    res = _run("show", str(copy))
+    assert "2 of 12 rows verified" in res.stdout
+    res = _run("lookup", "usn-tt6", "--depth", "60", "--bottom-time", "20")
+    assert res.exit_code == 2 and "supervisor treatment plan 6" in res.stderr
+
+
 # ---- issue 13 / issue 8 §3 ----------------------------------------------------------------
 
 BUNDLED = Path(__file__).resolve().parents[2] / "tables"

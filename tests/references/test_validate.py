@@ -167,6 +167,58 @@ def test_name_must_equal_file_stem(tmp_path):
     assert any(e.column == "name" and "other-name" in e.message for e in errs)
 
 
+def _bundled_doc(stem):
+    src = next(p for p in bundled_paths() if p.stem == stem)
+    return tomllib.loads(src.read_text("utf-8"))
+
+
+@pytest.mark.parametrize(("edit", "column", "words"), [
+    (lambda d: d["conventions"]["extensions"][0].update(after_step=40),
+     "conventions.extensions[1].after_step", "has 12 steps"),
+    (lambda d: d["conventions"]["extensions"][0].update(depth=30.0),
+     "conventions.extensions[1].depth", "step 6 ends at 60"),
+    (lambda d: d["conventions"]["attendant_oxygen"].pop(1),
+     "conventions.attendant_oxygen", "no case applies"),
+    (lambda d: d["conventions"]["attendant_oxygen"][0].update(depth=40.0),
+     "conventions.attendant_oxygen[1].depth", "no step of the table is at 40"),
+    (lambda d: d["conventions"].update(plannable=False, missing=[]),
+     "conventions", "needs missing"),
+    (lambda d: [d["conventions"].pop(k) for k in ("compression_rate", "compression_status")],
+     "conventions.compression_rate", "give compression_rate"),
+    (lambda d: d["rows"][-1].update(to_depth=10),
+     "to_depth", "ends at the surface"),
+    (lambda d: d["conventions"]["extensions"][1].update(option="oxygen"),
+     "conventions", "one entry per option"),
+])
+def test_treatment_planning_rules(tmp_path, edit, column, words):
+    """Extensions, attendant cases and plannability of a treatment table (a bundled copy)."""
+    doc = _bundled_doc("usn-tt6")
+    assert not errors(validate_file(next(p for p in bundled_paths() if p.stem == "usn-tt6")))
+    edit(doc)
+    if doc["rows"][-1]["to_depth"] == 10:
+        doc["rows"][-1]["travel_rate"] = 20 / 30
+    p = write_doc(tmp_path, doc)
+    errs = errors(validate_file(p))
+    assert any(column in (e.column or "") and words in e.message for e in errs), \
+        "; ".join(e.line(p.name) for e in errs)
+
+
+def test_attendant_oxygen_beyond_the_table_is_a_warning(tmp_path):
+    doc = _bundled_doc("usn-tt6")
+    doc["conventions"]["attendant_oxygen"][0]["oxygen_min"] = 150.0
+    issues = validate_file(write_doc(tmp_path, doc))
+    assert not errors(issues)
+    assert any(i.severity == "warning" and "more than the patient's 120" in i.message
+               for i in issues)
+
+
+def test_table_that_cannot_be_planned_may_list_stops_without_travel():
+    src = next(p for p in bundled_paths() if p.stem == "usn-tt4")
+    assert validate_file(src) == []
+    doc = tomllib.loads(src.read_text("utf-8"))
+    assert doc["conventions"]["plannable"] is False and doc["conventions"]["missing"]
+
+
 # ---- issue 13: wrong types are refused, and no sanity rule is skipped because of one
 
 # (kind, id, path, wrong value, row, column, words): each reproducer validated before
