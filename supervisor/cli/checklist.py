@@ -26,6 +26,10 @@ from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, EXIT_OK, fail_inpu
 from supervisor.cli.keys import one_line_errors, passphrase, quiet_libraries, say, warn_loose
 from supervisor.text import printable
 
+# names other command modules import (the record store's commands)
+_passphrase = passphrase
+_quiet_libraries = quiet_libraries
+
 
 class Paper(StrEnum):
     """Page sizes of the checklist."""

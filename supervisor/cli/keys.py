@@ -134,7 +134,14 @@ def warn_loose(path: Path, field: str) -> None:
         say(f"warning: {field}: {path} {problem}", err=True)
 
 
-def _keyrings(option: Path | None, *, company_must_exist: bool = True) -> list[Keyring]:
+def keyrings(option: Path | None, *, company_must_exist: bool = True) -> list[Keyring]:
+    """The per-user keyring and the company keyring (``--keyring``, else the variable).
+
+    Raises
+    ------
+    InputError
+        If a keyring cannot be read, or a company keyring named on purpose is missing.
+    """
     from supervisor.report.keyring import (
         company_keyring_path,
         load_keyring,
@@ -239,7 +246,7 @@ def keys_list(
                                         show_default=False),
 ) -> None:
     """List the trusted supervisor certificates of both keyrings."""
-    for ring in _keyrings(keyring):
+    for ring in keyrings(keyring):
         state = "" if ring.exists else " (no file yet)"
         say(f"{ring.label} {ring.path}{state}: {len(ring.signers)} trusted signer(s)")
         for s in ring.signers:
@@ -288,7 +295,7 @@ def verify(
 
     quiet_libraries()
     expected = load_expected_certificate(cert) if cert is not None else None
-    rings = [] if expected is not None else _keyrings(keyring)
+    rings = [] if expected is not None else keyrings(keyring)
     result = verify_file(file, expected=expected, keyrings=rings)
     if result.status == "unreadable":
         say(f"error: {result.path}: {result.reason}", err=True)
