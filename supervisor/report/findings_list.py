@@ -34,11 +34,14 @@ from supervisor.report.styles import (
     rich,
 )
 from supervisor.report.summary import findings_of
+from supervisor.report.units import UnitSystem, unit_system
 
 
-def _given(value: Any, unit: str | None) -> str:
-    """A finding's measured value or limit; ``None`` means the rule states none."""
-    return "—" if value is None else fmt_quantity(value, unit, 2)
+def _given(value: Any, unit: str | None, units: UnitSystem | None = None) -> str:
+    """A finding's measured value or limit in the plan's units; ``None``: the rule states none."""
+    if value is None:
+        return "—"
+    return units.quantity(value, unit) if units is not None else fmt_quantity(value, unit, 2)
 
 
 def _unit(f: Mapping[str, Any]) -> str | None:
@@ -87,9 +90,9 @@ def group_findings(record: Mapping[str, Any], severities: Sequence[str] = ("fail
     return out
 
 
-def _row(f: Mapping[str, Any]) -> list[object]:
+def _row(f: Mapping[str, Any], units: UnitSystem) -> list[object]:
     unit = _unit(f)
-    measured, limit = _given(f.get("measured"), unit), _given(f.get("limit"), unit)
+    measured, limit = _given(f.get("measured"), unit, units), _given(f.get("limit"), unit, units)
     status = f"({stated(f.get('source_status'))})"
     if f.get("severity") == "info":  # information prints compactly
         return [para(severity_label("info"), SMALL), para(text(f.get("rule")), SMALL),
@@ -120,13 +123,14 @@ def findings_section(record: Mapping[str, Any], width: float) -> list[Flowable]:
         return out + information_lines(record, None, width)
     out.append(para("Worst first within each group. Information is printed in each dive's "
                     "section. " + _tail(record), SMALL))
+    units = unit_system(record)
     w = width
     widths = [0.075 * w, 0.165 * w, 0.43 * w, 0.13 * w, 0.2 * w]
     head = [para(h, CELL_BOLD) for h in ("Result", "Rule", "Finding", "Measured / limit",
                                          "Citation (source status)")]
     for title, items in groups:
         out.append(CondPageBreak(80))
-        rows = [[para(title, CELL_BOLD), "", "", "", ""], head, *(_row(f) for f in items)]
+        rows = [[para(title, CELL_BOLD), "", "", "", ""], head, *(_row(f, units) for f in items)]
         table = grid(rows, widths, extra=[("SPAN", (0, 0), (-1, 0)),
                                           ("BACKGROUND", (0, 1), (-1, 1), HEAD_FILL),
                                           ("BACKGROUND", (0, 0), (-1, 0), PANEL_FILL)])
@@ -164,7 +168,7 @@ def references_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
     return out
 
 
-def _pass_values(items: Sequence[Mapping[str, Any]]) -> str:
+def _pass_values(items: Sequence[Mapping[str, Any]], units: UnitSystem | None = None) -> str:
     """``"limit 58 msw: D1 12, D2 18"`` when the limits agree, else ``"D1 12 / 58; ..."``."""
     def who(f: Mapping[str, Any]) -> str:
         return "job" if f.get("dive") is None else str(f.get("dive"))
@@ -174,10 +178,10 @@ def _pass_values(items: Sequence[Mapping[str, Any]]) -> str:
         return "passed: " + ", ".join(who(f) for f in items)
     if len(limits) == 1 and items[0].get("limit") is not None:
         unit = _unit(items[0])
-        values = ", ".join(f"{who(f)} {_given(f.get('measured'), unit)}" for f in items)
-        return f"limit {_given(items[0].get('limit'), unit)}: {values}"
-    return "; ".join(f"{who(f)} {_given(f.get('measured'), _unit(f))} / "
-                     f"{_given(f.get('limit'), _unit(f))}" for f in items)
+        values = ", ".join(f"{who(f)} {_given(f.get('measured'), unit, units)}" for f in items)
+        return f"limit {_given(items[0].get('limit'), unit, units)}: {values}"
+    return "; ".join(f"{who(f)} {_given(f.get('measured'), _unit(f), units)} / "
+                     f"{_given(f.get('limit'), _unit(f), units)}" for f in items)
 
 
 #: Families whose information findings restate what a dive's section already prints:
@@ -219,7 +223,9 @@ def information_lines(record: Mapping[str, Any], dive_id: object,
                         + " and ".join(elsewhere) + ".", TINY))
     for f in items:
         unit = _unit(f)
-        measured, limit = _given(f.get("measured"), unit), _given(f.get("limit"), unit)
+        units = unit_system(record)
+        measured = _given(f.get("measured"), unit, units)
+        limit = _given(f.get("limit"), unit, units)
         figures = "" if measured == limit == "—" else f" [{measured} / {limit}]"
         out.append(rich([(f"{text(f.get('rule'))}: ", True),
                          (f"{text(f.get('message'))}{figures} — {text(f.get('citation'))} "
@@ -241,9 +247,10 @@ def appendix_passed(record: Mapping[str, Any], width: float) -> list[Flowable]:
                     "that is not VERIFIED still rests on that source.", SMALL))
     out.append(Spacer(1, 2))
     lines = []
+    units = unit_system(record)
     for rule, items in by_rule.items():
         first = items[0]
-        lines.append(rich([(f"{rule}: ", True), (f"{_pass_values(items)} — ", False),
+        lines.append(rich([(f"{rule}: ", True), (f"{_pass_values(items, units)} — ", False),
                            (f"{text(first.get('citation'))} "
                             f"({stated(first.get('source_status'))})", False)], TINY))
     out.append(BalancedColumns(lines, nCols=2, innerPadding=10, leftPadding=0, rightPadding=0,

@@ -105,6 +105,37 @@ class UnitSystem:
             return f"{fmt_number(c * 9 / 5 + 32, 0)} °F ({fmt_number(c, 1)} °C)"
         return f"{fmt_number(c, 1)} °C"
 
+    def quantity(self, value: object, unit: str | None, decimals: int = 2) -> str:
+        """A finding's figure with its unit, in the plan's system, the given one beside it.
+
+        Depths, gauge pressures, free gas and flows stated in the other system
+        print converted, with the figure as stated in parentheses: an msw plan
+        shows ``"12 bar (174 psig)"`` and ``"39.9 msw (130 fsw)"``; an fsw plan
+        ``"371 scf (10503 L)"``.  Any other unit prints as given.  Depth
+        conversion is by pressure (1 fsw = 1.01325/33 bar, 1 msw = 0.1 bar,
+        ``supervisor.constants``).
+        """
+        given = fmt_quantity(value, unit, decimals)
+        if not is_number(value) or unit is None:
+            return given
+        x = float(value)  # type: ignore[arg-type]
+        shown: str | None = None
+        if unit in ("fsw", "msw") and unit != self.depth:
+            bar = x * (C.BAR_PER_FSW if unit == "fsw" else C.BAR_PER_MSW)
+            other = bar / (C.BAR_PER_FSW if self.depth == "fsw" else C.BAR_PER_MSW)
+            shown = fmt_quantity(other, self.depth, 1)
+        elif unit in ("psig", "bar") and unit != self.gauge_unit:
+            shown = self.gauge(x, unit)
+        elif unit == "L" and self.imperial:
+            shown = self.gas(x)
+        elif unit == "scf" and not self.imperial:
+            shown = fmt_quantity(x * L_PER_FT3, "L", 0)
+        elif unit == "L/min" and self.imperial:
+            shown = self.flow(x)
+        elif unit in ("scfm", "acfm") and not self.imperial:
+            shown = fmt_quantity(x * L_PER_FT3, "L/min", 0)
+        return given if shown is None else f"{shown} ({given})"
+
     def by_key(self, key: str, value: Any) -> tuple[str, str] | None:
         """A JSON figure named by its unit suffix, as (label unit, printed value).
 

