@@ -467,3 +467,29 @@ def test_harbour_job_checklist_is_short(harbour_pages: tuple[list[str], dict[str
         pytest.skip("at most 8 pages once the check reports unverified references once per job "
                     "(CONTRACT-8 'references-unverified'); today it repeats them per dive")
     assert len(pages) <= 8
+
+
+def test_longest_accepted_text_and_many_stops_never_crash(runner: CliRunner,
+                                                          tmp_path: Path) -> None:
+    """Issue 13 reproducers: long unbroken text in every named field and 60 water stops."""
+    plan = tomllib.loads(DEMO.read_text(encoding="utf-8"))
+    plan["job"].update(title="T" * 300, site="S" * 300, client="王" * 300,
+                       contractor="Д" * 300)
+    old_supervisor = plan["job"]["supervisor"]
+    plan = _replace_strings(plan, old_supervisor, "M" * 100)
+    plan = _replace_strings(plan, "Teodor Lind", "L" * 100)
+    dive = plan["dives"][1]
+    dive.update(id="I" * 40, max_depth=190, bottom_time_min=10, decompression="in-water",
+                stops=[{"depth": float(d), "minutes": 1.0, "gas": "air", "place": "water"}
+                       for d in range(180, 0, -3)])
+    dive.pop("surface_transfer_min", None)
+    path = tmp_path / "long.toml"
+    path.write_text(tomli_w.dumps(plan), encoding="utf-8")
+    assert runner.invoke(app, ["plan", "validate", str(path)]).exit_code == 0
+    res = runner.invoke(app, ["checklist", str(path), "--out", str(tmp_path / "o")])
+    assert res.exit_code in (0, 1), res.stderr
+    assert "Traceback" not in res.stdout + res.stderr
+    pdf = next((tmp_path / "o").glob("*.pdf"))
+    text = _pdf_text(pdf)
+    assert "".join(text.split()).count("I" * 40) >= 2  # the dive id, whole
+    assert "3 1 air water" in text
