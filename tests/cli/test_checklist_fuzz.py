@@ -5,7 +5,7 @@ Properties: the exit status is one the commands document ({0, 1, 2}, and 3 for
 error is one ``error: FIELD: ...`` line, no control character reaches the
 terminal, and a failed ``checklist`` writes nothing.  Plans start from the
 fictional demo job (examples/demo-job.toml).  The example counts keep the
-suite fast; ``SUPERVISOR_FUZZ_SCALE=20`` runs twenty times as many.
+suite fast; ``make fuzz`` (``SUPERVISOR_FUZZ_EXAMPLES=500``) runs a large random profile.
 """
 
 from __future__ import annotations
@@ -30,9 +30,10 @@ DEMO = ROOT / "examples" / "demo-job.toml"
 HARBOUR = ROOT / "examples" / "harbour-job-msw.toml"
 ENV = "SUPERVISOR_KEY_PASSPHRASE"
 PASS = "fuzz-passphrase-1"
-SCALE = max(1, int(os.environ.get("SUPERVISOR_FUZZ_SCALE", "1")))
+#: ``make fuzz`` sets SUPERVISOR_FUZZ_EXAMPLES for a large random run (tests/test_properties.py)
+FUZZ = int(os.environ.get("SUPERVISOR_FUZZ_EXAMPLES", "0"))
 CONTROL = re.compile(r"[\x00-\x09\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
-SETTINGS = {"deadline": None, "derandomize": True,
+SETTINGS = {"deadline": None, "derandomize": not FUZZ, "database": None,
             "suppress_health_check": [HealthCheck.function_scoped_fixture,
                                       HealthCheck.too_slow]}
 
@@ -60,7 +61,7 @@ _TEXT_FIELDS = (("job", "title"), ("job", "site"), ("job", "client"), ("job", "c
                 ("site", "emergency_contacts", "hospital"), ("dives", 0, "id"))
 
 
-@settings(max_examples=6 * SCALE, **SETTINGS)
+@settings(max_examples=FUZZ or 6, **SETTINGS)
 @given(values=st.lists(_NASTY, min_size=len(_TEXT_FIELDS), max_size=len(_TEXT_FIELDS)))
 def test_checklist_on_accepted_plans(tmp_path_factory: Any, values: list[str]) -> None:
     plan = tomllib.loads(HARBOUR.read_text(encoding="utf-8"))
@@ -108,7 +109,7 @@ def _apply(plan: dict[str, Any], key: str, value: Any) -> None:
         target[parts[-1]] = value
 
 
-@settings(max_examples=8 * SCALE, **SETTINGS)
+@settings(max_examples=FUZZ or 8, **SETTINGS)
 @given(changes=st.lists(_mutations(), min_size=1, max_size=3))
 @example(changes=[("job.title", "Another title")])  # still accepted: exit 0 or 1
 def test_checklist_on_mutated_plans(tmp_path_factory: Any,
@@ -131,7 +132,7 @@ def test_checklist_on_mutated_plans(tmp_path_factory: Any,
         assert not (folder / "out").exists() or not list((folder / "out").iterdir())
 
 
-@settings(max_examples=10 * SCALE, **SETTINGS)
+@settings(max_examples=FUZZ or 10, **SETTINGS)
 @given(name=st.one_of(st.text(max_size=80), _NASTY,
                      st.text(st.characters(blacklist_categories=("Cc", "Cf", "Cs")),
                              min_size=1, max_size=64)),
@@ -165,7 +166,7 @@ def signed(tmp_path_factory: pytest.TempPathFactory) -> dict[str, bytes]:
     return {p.name: p.read_bytes() for p in (folder / "o").iterdir()}
 
 
-@settings(max_examples=16 * SCALE, **SETTINGS)
+@settings(max_examples=FUZZ or 16, **SETTINGS)
 @given(which=st.sampled_from(["pdf", "json", "sig"]),
        kind=st.sampled_from(["flip", "truncate", "insert", "append", "empty"]),
        where=st.floats(0, 1), byte=st.integers(0, 255))
