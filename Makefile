@@ -21,7 +21,7 @@ test: $(STAMP)
 
 # the property suite at a large random size (make test runs it small and derandomised)
 fuzz: $(STAMP)
-	SUPERVISOR_FUZZ_EXAMPLES=$${SUPERVISOR_FUZZ_EXAMPLES:-500} $(PY) -m pytest tests/test_properties.py -q
+	SUPERVISOR_FUZZ_EXAMPLES=$${SUPERVISOR_FUZZ_EXAMPLES:-500} $(PY) -m pytest tests/test_properties.py tests/cli/test_checklist_fuzz.py tests/report/test_long_text.py -q
 
 lint: $(STAMP)
 	$(VENV)/bin/ruff check .

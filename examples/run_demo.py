@@ -1,8 +1,10 @@
 """Run the main job on the bundled demo data (``make demo``), from the project folder.
 
 Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
-key for its fictional supervisor, writes the signed pre-dive checklist (PDF and
-JSON) to ``out/`` and verifies it, then records the plan and two invented dive logs in
+key for its fictional supervisor, adds the demo certificate to a demo company
+keyring (``out/demo-keyring.toml``, never the user's own keyring), writes the
+signed pre-dive checklist (PDF and JSON) to ``out/`` and verifies it against that
+keyring, then records the plan and two invented dive logs in
 a fresh record store ``out/demo-records.sqlite3`` and verifies its hash chain.  Then plans
 the invented demo treatment (Treatment Table 6 in the job's deck chamber,
 ``examples/demo-treatment.toml``), writes its JSON to ``out/demo-treatment-plan.json`` and
@@ -65,13 +67,17 @@ def main() -> int:
     (ROOT / checklists).mkdir(exist_ok=True)
     for old in (ROOT / checklists).glob("*-checklist.*"):
         old.unlink()
-    key = out / "demo-supervisor.p12"
+    # the key is in the name of the demo job's (fictional) supervisor, Mara Okonjo
+    key = out / "demo-mara-okonjo.p12"
     if not (ROOT / key).exists():
-        _run(["keys", "new", "--name", "Demo Supervisor (fictional)", "--out", str(key)], env)
+        _run(["keys", "new", "--name", "Mara Okonjo", "--out", str(key)], env)
+    keyring = out / "demo-keyring.toml"
+    _run(["keys", "trust", str(key.with_name("demo-mara-okonjo.cert.pem")), "--keyring",
+          str(keyring)], env)
     _run(["checklist", str(plan), "--out", str(checklists), "--sign", str(key)], env, ok=(0, 1))
     pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
     for pdf in pdfs:
-        _run(["verify", str(pdf.relative_to(ROOT))], env)
+        _run(["verify", str(pdf.relative_to(ROOT)), "--keyring", str(keyring)], env)
     # after the dive: the timed log of D2 (one cut-short stop, for the audit to come) and the
     # recorder log of D1 go on record with the plan, signed, and the chain is verified
     db = out / "demo-records.sqlite3"

@@ -165,8 +165,11 @@ def add_checklist(
                                 "expected <job>-checklist.json from 'supervisor checklist'")
     verification = None
     if checklist.with_name(checklist.name + ".sig").exists():
-        verification = verify_file(checklist)
-        if verification.status != "valid":
+        from supervisor.cli.keys import keyrings
+
+        # intact is enough to record it; whether the signer is trusted is recorded with it
+        verification = verify_file(checklist, keyrings=keyrings(None))
+        if verification.status not in ("valid", "untrusted"):
             error_line(f"{checklist}: signature does not verify ({verification.reason}); "
                        "nothing recorded")
             raise typer.Exit(EXIT_FAIL)

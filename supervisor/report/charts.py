@@ -162,6 +162,39 @@ def _label(x: float, y: float, text: str, size: float = 6.5, anchor: str = "midd
                   fillColor=INK, textAnchor=anchor)
 
 
+_LEGEND_SIZE = 6.5
+_LEGEND_LINE = 9.0
+_MARK = 18.0  # width of a legend marker [pt]
+
+
+def _legend_rows(items: Sequence[str], room: float) -> list[list[tuple[float, str, int]]]:
+    """Lay legend items out left to right, starting a new row when one would overflow.
+
+    Returns rows of ``(x offset, text, index)``; every item is a marker then its text.
+    """
+    rows: list[list[tuple[float, str, int]]] = [[]]
+    x = 0.0
+    for i, text in enumerate(items):
+        need = _MARK + 4 + stringWidth(text, REGULAR, _LEGEND_SIZE)
+        if rows[-1] and x + need > room:
+            rows.append([])
+            x = 0.0
+        rows[-1].append((x, text, i))
+        x += need + 12
+    return rows
+
+
+def _wrap(text: str, room: float, size: float = _LEGEND_SIZE) -> list[str]:
+    """Split a caption into lines that fit ``room`` [pt]."""
+    lines: list[str] = []
+    for word in text.split():
+        if lines and stringWidth(f"{lines[-1]} {word}", REGULAR, size) <= room:
+            lines[-1] += f" {word}"
+        else:
+            lines.append(word)
+    return lines or [""]
+
+
 def profile_chart(
     chart: Mapping[str, Any] | None,
     unit: str,
@@ -217,7 +250,11 @@ def profile_chart(
     x_ticks = nice_ticks(min(0.0, times[0]), times[-1], 8)
     y_ticks = nice_ticks(0.0, deepest * 1.05, 5)
     x0, x1 = _LEFT, width - _RIGHT
-    y_top, y_bottom = height - _TOP, _BOTTOM
+    legend = ["planned profile", f"model ceiling ({model_label})",
+              "planned depth shallower than the ceiling"]
+    legend_rows = _legend_rows(legend, width - x0 - 4)
+    y_top = height - _TOP - _LEGEND_LINE * (len(legend_rows) - 1)
+    y_bottom = _BOTTOM
 
     def px(tv: float) -> float:
         return x0 + (tv - x_ticks[0]) / (x_ticks[-1] - x_ticks[0]) * (x1 - x0)
@@ -272,15 +309,19 @@ def profile_chart(
     axis_title = Group(_label(0, 0, f"depth [{unit}]"))
     axis_title.transform = (0, 1, -1, 0, 12, (y_top + y_bottom) / 2)  # rotated 90 degrees
     g.add(axis_title)
-    # legend
-    ly = height - 10
-    g.add(Line(x0, ly + 2, x0 + 18, ly + 2, strokeColor=INK, strokeWidth=1.4))
-    g.add(_label(x0 + 22, ly, "planned profile", anchor="start"))
-    g.add(Line(x0 + 100, ly + 2, x0 + 118, ly + 2, strokeColor=CEILING, strokeWidth=1.0,
-               strokeDashArray=[3, 2]))
-    g.add(_label(x0 + 122, ly, f"model ceiling ({model_label})", anchor="start"))
-    g.add(Rect(x0 + 300, ly - 1, 12, 7, fillColor=SHADE, strokeColor=None))
-    g.add(_label(x0 + 316, ly, "planned depth shallower than the ceiling", anchor="start"))
+    # legend, in as many rows as the width needs
+    for r, row in enumerate(legend_rows):
+        ly = height - 10 - r * _LEGEND_LINE
+        for dx, label, i in row:
+            x = x0 + dx
+            if i == 0:
+                g.add(Line(x, ly + 2, x + _MARK, ly + 2, strokeColor=INK, strokeWidth=1.4))
+            elif i == 1:
+                g.add(Line(x, ly + 2, x + _MARK, ly + 2, strokeColor=CEILING, strokeWidth=1.0,
+                           strokeDashArray=[3, 2]))
+            else:
+                g.add(Rect(x + 3, ly - 1, 12, 7, fillColor=SHADE, strokeColor=None))
+            g.add(_label(x + _MARK + 4, ly, label, size=_LEGEND_SIZE, anchor="start"))
     return g
 
 
@@ -320,7 +361,9 @@ def compartment_chart(
     loads = [float(v) for v in values if v is not None]
     top = nice_ticks(0.0, max(110.0, max(loads) * 1.08), 5)
     x0, x1 = _LEFT, width - _RIGHT
-    y0, y1 = _BOTTOM, height - _TOP
+    caption = _wrap("loading at surfacing, percent of the compartment's limit (dashed line: "
+                    "100 %; black bars exceed it)", width - x0 - 4)
+    y0, y1 = _BOTTOM, height - _TOP - _LEGEND_LINE * (len(caption) - 1)
 
     def py(v: float) -> float:
         return y0 + (max(0.0, v) - top[0]) / (top[-1] - top[0]) * (y1 - y0)
@@ -343,7 +386,7 @@ def compartment_chart(
     g.add(Line(x0, y0, x1, y0, strokeColor=INK, strokeWidth=0.6))
     g.add(Line(x0, y0, x0, y1, strokeColor=INK, strokeWidth=0.6))
     g.add(_label((x0 + x1) / 2, 4, "compartment"))
-    ly = height - 10
-    g.add(_label(x0, ly, "loading at surfacing, percent of the compartment's limit "
-                 "(dashed line: 100 %; black bars exceed it)", anchor="start"))
+    for r, line in enumerate(caption):
+        g.add(_label(x0, height - 10 - r * _LEGEND_LINE, line, size=_LEGEND_SIZE,
+                     anchor="start"))
     return g

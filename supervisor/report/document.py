@@ -27,7 +27,7 @@ from pathlib import Path
 from typing import Any
 
 from supervisor.errors import InputError, SupervisorError
-from supervisor.report.templates import Checklist, load_cautions, load_checklist
+from supervisor.report.templates import Checklist, load_caution_entries, load_checklist
 
 CHECK_SCHEMA = "supervisor.check/1"
 RECORD_SCHEMA = "supervisor.checklist/1"
@@ -110,6 +110,11 @@ def sanitize(value: Any) -> Any:
     return str(value)
 
 
+def _caution_key(text: str) -> str:
+    """Caution texts compare equal when they differ only in case and spacing."""
+    return " ".join(text.casefold().split())
+
+
 def _mode_groups(check: Mapping[str, Any], template: Checklist) -> list[dict[str, Any]]:
     dives = check.get("dives") or []
     groups: dict[str | None, dict[str, Any]] = {}
@@ -161,7 +166,9 @@ def build_record(
         Pre-dive items (default: the bundled template).
     cautions : sequence of str, optional
         Cautions (default: the bundled ``cautions.toml``); the check's own
-        ``cautions`` are appended after them.
+        ``cautions`` are appended after them, except those that a bundled
+        caution already says (its ``covers`` list) and exact repeats, so each
+        caution is printed once.
 
     Returns
     -------
@@ -190,10 +197,18 @@ def build_record(
             "run the checklist again",
         )
     template = template or load_checklist()
-    all_cautions = list(cautions if cautions is not None else load_cautions())
+    covered: set[str] = set()
+    if cautions is None:
+        entries = load_caution_entries()
+        all_cautions = [c.text for c in entries]
+        covered = {_caution_key(t) for c in entries for t in c.covers}
+    else:
+        all_cautions = list(cautions)
+    seen = {_caution_key(t) for t in all_cautions} | covered
     for extra in check.get("cautions") or []:
-        if isinstance(extra, str) and extra not in all_cautions:
+        if isinstance(extra, str) and _caution_key(extra) not in seen:
             all_cautions.append(extra)
+            seen.add(_caution_key(extra))
     record = sanitize(check)
     record["plan_sha256"] = plan_sha
     record["plan_text"] = plan_text

@@ -106,6 +106,47 @@ def fmt_stop_minutes(value: object) -> str:
     return fmt_number(math.ceil(x * 10 - 1e-9) / 10, 1)
 
 
+_GAS_SHORT = {"oxygen": "O2", "o2": "O2"}
+
+
+def fmt_periods(periods: object) -> str | None:
+    """A stop's breathing periods, ``"O2 30, air 5, O2 23 min"``; ``None`` if not a list.
+
+    Each period is ``{"gas": str, "minutes": number}``; a period whose
+    minutes are not a number prints as not computed.  Minutes are rounded up
+    to 0.1 min like stop times (:func:`fmt_stop_minutes`).
+    """
+    if not isinstance(periods, list) or not periods:
+        return None
+    parts = []
+    for period in periods:
+        p = period if isinstance(period, Mapping) else {}
+        gas = str(p.get("gas") or MISSING)
+        parts.append(f"{_GAS_SHORT.get(gas.lower(), gas)} {fmt_stop_minutes(p.get('minutes'))}")
+    return ", ".join(parts) + " min"
+
+
+def stops_line(stops: object, unit: str) -> str:
+    """A schedule in one line: ``"water 50 fsw 3 min air; chamber 40 fsw 30 min oxygen: ..."``.
+
+    A stop with breathing periods (air breaks) prints them after its gas; a
+    schedule that is not a list prints as :data:`NOT_COMPUTED`.
+    """
+    if not isinstance(stops, list):
+        return NOT_COMPUTED
+    if not stops:
+        return "no decompression stops"
+    parts = []
+    for stop in stops:
+        s = stop if isinstance(stop, Mapping) else {}
+        periods = fmt_periods(s.get("periods"))
+        gas = str(s.get("gas") or MISSING)
+        what = f"{gas} ({periods})" if periods else gas
+        parts.append(f"{s.get('place') or MISSING} {fmt_stop_depth(s.get('depth'))} {unit} "
+                     f"{fmt_stop_minutes(s.get('minutes'))} min {what}")
+    return "; ".join(parts)
+
+
 def fmt_gf(gf_low: object, gf_high: object) -> str:
     """Gradient factors as percent, ``"30/85"`` (fractions or percent accepted)."""
 

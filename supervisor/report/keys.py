@@ -11,9 +11,9 @@
 
 Both are written atomically with mode 0600 and never overwrite an existing
 file.  The certificate is self-signed: it proves that a signature was made
-with this key, not who holds the key.  Establishing trust in it (a company
-certificate authority, or comparing fingerprints out of band) is outside the
-tool's scope.
+with this key, not who holds the key.  Who may sign is recorded in a keyring
+of trusted certificates (:mod:`supervisor.report.keyring`, ``supervisor keys
+trust``), after comparing the fingerprint with the one the supervisor published.
 """
 
 from __future__ import annotations
@@ -39,6 +39,8 @@ KeyType = Literal["ec", "rsa"]
 MIN_PASSPHRASE = 8
 MAX_NAME = 64  # ub-common-name, RFC 5280 appendix A.1
 KEY_MODE = 0o600
+#: Longest certificate validity accepted by ``keys new --days`` [days] (ten years).
+MAX_DAYS = 3650
 _KDF_ROUNDS = 200_000
 
 
@@ -137,6 +139,21 @@ def check_passphrase(passphrase: str) -> bytes:
     return passphrase.encode("utf-8")
 
 
+def check_days(days: object) -> int:
+    """Validate a certificate validity period [days].
+
+    Raises
+    ------
+    InputError
+        Unless ``days`` is a whole number from 1 to :data:`MAX_DAYS`.
+    """
+    if isinstance(days, bool) or not isinstance(days, int) or not 1 <= days <= MAX_DAYS:
+        shown = days if isinstance(days, int) and abs(days) < 10**12 else "a number that size"
+        raise InputError("--days", f"got {shown}; expected a whole number of days from 1 to "
+                                   f"{MAX_DAYS} (ten years)")
+    return days
+
+
 def new_identity(
     name: str,
     out: Path,
@@ -175,13 +192,13 @@ def new_identity(
     Raises
     ------
     InputError
-        If the name or passphrase is unusable, ``valid_days`` is not
-        positive, either file already exists, or the folder does not exist.
+        If the name or passphrase is unusable, ``valid_days`` is outside
+        1 to :data:`MAX_DAYS`, either file already exists, or the folder does
+        not exist.
     """
     name = _check_name(name)
     secret = check_passphrase(passphrase)
-    if valid_days < 1:
-        raise InputError("--days", f"got {valid_days}; expected a positive number of days")
+    check_days(valid_days)
     cert_out = certificate_path(out)
     for path in (out, cert_out):
         if path.exists():

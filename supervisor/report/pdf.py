@@ -19,18 +19,30 @@ from reportlab.lib.pagesizes import A4, letter
 from reportlab.lib.units import inch
 from reportlab.pdfbase import pdfmetrics
 from reportlab.pdfgen import canvas as rl_canvas
-from reportlab.platypus import PageBreak, SimpleDocTemplate
+from reportlab.platypus import (
+    BaseDocTemplate,
+    CondPageBreak,
+    Frame,
+    LayoutError,
+    PageBreak,
+    PageTemplate,
+)
 
 from supervisor import __version__
-from supervisor.report import sections
+from supervisor.report import findings_list, sections, signoff, summary
+from supervisor.report.blocks import SignerNote
 from supervisor.report.fonts import REGULAR, clean, plain_width, register_fonts, runs
-from supervisor.report.formatting import NOT_COMPUTED, short_hash
-from supervisor.report.sections import SignerNote
-from supervisor.report.styles import H2, para
+from supervisor.report.formatting import (
+    NOT_COMPUTED,
+    count_findings,
+    effective_verdict,
+    short_hash,
+)
+from supervisor.report.pdf_meta import keywords
+from supervisor.report.styles import H2, TEXT_LIMIT, para
 
 PAPER = {"letter": letter, "a4": A4}
 MARGIN = 0.6 * inch
-KEYWORD_PREFIX = "document-sha256:"
 _FOOTER_SIZE = 7.0
 
 
@@ -63,9 +75,16 @@ def _fit(text: str, width: float) -> str:
     """Shorten ``text`` with an ellipsis so that it prints within ``width`` [pt]."""
     if plain_width(text, _FOOTER_SIZE) <= width:
         return text
-    while text and plain_width(text + "…", _FOOTER_SIZE) > width:
-        text = text[:-1]
-    return text + "…"
+    # no glyph is narrower than a fifth of the type size: cut before measuring
+    text = text[: int(width / (_FOOTER_SIZE * 0.2)) + 1]
+    lo, hi = 0, len(text)
+    while lo < hi:  # the longest prefix that fits with the ellipsis
+        mid = (lo + hi + 1) // 2
+        if plain_width(text[:mid] + "…", _FOOTER_SIZE) <= width:
+            lo = mid
+        else:
+            hi = mid - 1
+    return text[:lo] + "…"
 
 
 def _draw_text(canv: rl_canvas.Canvas, x: float, y: float, text: str) -> None:
@@ -113,6 +132,27 @@ def _canvas_maker(document_sha256: str, job_title: str, created: str) -> type:
     return _Numbered
 
 
+class _Document(BaseDocTemplate):
+    """A one-frame document whose frame has no inner padding.
+
+    reportlab's default frame pads its content by 6 pt, so a table as wide as
+    the page's text width stuck out past the paragraphs; with no padding,
+    tables and text share one left edge and the frame is the full text area.
+    """
+
+    def build(self, flowables: list[Any], canvasmaker: Any = rl_canvas.Canvas) -> None:  # noqa: D102
+        self._calc()
+        frame = Frame(self.leftMargin, self.bottomMargin, self.width, self.height, id="normal",
+                      leftPadding=0, rightPadding=0, topPadding=0, bottomPadding=0)
+        self.addPageTemplates([PageTemplate(id="page", frames=[frame],
+                                            pagesize=self.pagesize)])
+        BaseDocTemplate.build(self, flowables, canvasmaker=canvasmaker)
+
+
+#: Longest text of one paragraph piece in the fallback rendering [characters].
+FALLBACK_TEXT_LIMIT = 400
+
+
 def render_pdf(
     record: Mapping[str, Any],
     document_sha256: str,
@@ -120,7 +160,13 @@ def render_pdf(
     signer: SignerNote | None = None,
     paper: str = "letter",
 ) -> bytes:
-    """Render the checklist PDF.
+    """Render the checklist PDF; it never fails on the text a plan holds.
+
+    Every table may split across pages, so any text the plan accepts lays
+    out.  Should the layout still fail (reportlab's ``LayoutError``), the PDF
+    is rendered again with each piece of text cut after
+    :data:`FALLBACK_TEXT_LIMIT` characters and marked as cut; the JSON record
+    keeps every text in full.
 
     Parameters
     ----------
@@ -129,7 +175,7 @@ def render_pdf(
     document_sha256 : str
         SHA-256 of the record's JSON bytes [hex].
     signer : SignerNote, optional
-        Who will sign the PDF, printed in the signature section.
+        Who will sign the PDF, printed on page 1 and in the signature section.
     paper : {"letter", "a4"}
         Page size.
 
@@ -143,13 +189,33 @@ def render_pdf(
     ValueError
         If ``paper`` is not a known size.
     """
+    try:
+        return _render(record, document_sha256, signer=signer, paper=paper)
+    except LayoutError:
+        token = TEXT_LIMIT.set(FALLBACK_TEXT_LIMIT)
+        try:
+            return _render(record, document_sha256, signer=signer, paper=paper)
+        finally:
+            TEXT_LIMIT.reset(token)
+
+
+def _render(
+    record: Mapping[str, Any],
+    document_sha256: str,
+    *,
+    signer: SignerNote | None = None,
+    paper: str = "letter",
+) -> bytes:
+    """Lay the PDF out once (see :func:`render_pdf`)."""
     if paper not in PAPER:
         raise ValueError(f"paper must be one of {sorted(PAPER)}, not {paper!r}")
     register_fonts()
     job = record.get("job") if isinstance(record.get("job"), Mapping) else {}
     title = clean(str(job.get("title") or "untitled job"))
+    counts = count_findings([f for f in record.get("findings") or [] if isinstance(f, Mapping)])
+    verdict, _ = effective_verdict(record.get("verdict"), counts)
     buffer = io.BytesIO()
-    doc = SimpleDocTemplate(
+    doc = _Document(
         buffer,
         pagesize=PAPER[paper],
         leftMargin=MARGIN,
@@ -161,32 +227,28 @@ def render_pdf(
         subject="Pre-dive checklist and schedule check",
         creator=f"supervisor {__version__}",
         producer=f"supervisor {__version__} (reportlab)",
-        keywords=[f"{KEYWORD_PREFIX}{document_sha256}"],
+        keywords=keywords(document_sha256, verdict, counts),
         invariant=1,
         lang="en",
         initialFontName=REGULAR,
     )
     width = doc.width
-    story: list[Any] = []
-    story += sections.title_block(record, document_sha256)
-    story.append(sections.header_table(record, document_sha256, width))
-    story += sections.references_table(record, width)
-    story += sections.verdict_block(record, width)
-    story += sections.caution_lead(record)
-    story += sections.findings_table(record, width)
+    story: list[Any] = summary.summary_page(record, document_sha256, width, signer)
+    story.append(PageBreak())
+    story += findings_list.findings_section(record, width)
+    story += findings_list.references_table(record, width)
     for dive in record.get("dives") or []:
         if isinstance(dive, Mapping):
-            story.append(PageBreak())
             story += sections.dive_section(dive, record, width)
     if not record.get("dives"):
         story.append(para("Dives: " + NOT_COMPUTED, H2))
-    story.append(PageBreak())
-    story += sections.team_and_chamber(record, width)
-    story.append(PageBreak())
-    story += sections.predive_checklist(record, width)
-    story.append(PageBreak())
-    story += sections.cautions_section(record)
-    story += sections.signature_section(record, width, signer)
+    story += signoff.chamber_section(record, width)
+    story.append(CondPageBreak(120))
+    story += signoff.predive_checklist(record, width)
+    story.append(CondPageBreak(90))
+    story += signoff.cautions_section(record)
+    story += signoff.signature_section(record, width, signer)
+    story += findings_list.appendix_passed(record, width)
     maker = _canvas_maker(document_sha256, title, pdf_date(record.get("generated_at")))
     doc.build(story, canvasmaker=maker)
     return buffer.getvalue()

@@ -1,38 +1,45 @@
-"""The sections of the checklist PDF, each built from the checklist record.
+"""The per-dive sections of the checklist PDF, each built from the checklist record.
 
-Every function takes parts of the record (a ``supervisor.check/1`` object
-with ``plan_text`` and ``checklist`` added, see :mod:`supervisor.report.document`)
-and the usable page width [pt], and returns reportlab flowables.  A section
-whose data are missing prints :data:`~supervisor.report.formatting.NOT_COMPUTED`.
+A dive's section holds its facts, the proposed, reference-table and model
+schedules side by side (a stop with air breaks prints as its breathing
+periods, never as one continuous oxygen stop), the ceiling check, the
+profile and compartment charts, oxygen exposure (a lower bound marked as one;
+chamber oxygen counted against the chamber procedure, never as an in-water
+CNS percentage), gas supply in the plan's unit system, and the contingency
+schedules.  Sections start where there is room, not on a new page each, and
+every table may split across pages.  A section whose data are missing
+prints :data:`~supervisor.report.formatting.NOT_COMPUTED`.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
 from typing import Any
 
 from reportlab.platypus import CondPageBreak, Flowable, KeepTogether, Spacer, Table
 
+from supervisor import constants as C
 from supervisor.report import charts
+from supervisor.report.blocks import SignerNote, kv_lines, m, model_label, not_computed, stated
+from supervisor.report.blocks import text as _text
+from supervisor.report.findings_list import information_lines
 from supervisor.report.fonts import REGULAR
 from supervisor.report.formatting import (
-    MISSING,
     NOT_COMPUTED,
     VERDICT_LABEL,
     count_findings,
     effective_verdict,
     flatten,
-    fmt_gf,
     fmt_number,
+    fmt_periods,
     fmt_quantity,
     fmt_scalar,
     fmt_stop_depth,
     fmt_stop_minutes,
     humanize_key,
     is_number,
-    severity_label,
-    severity_rank,
+    stops_line,
 )
 from supervisor.report.styles import (
     BODY,
@@ -40,221 +47,43 @@ from supervisor.report.styles import (
     CELL_BOLD,
     H2,
     H3,
-    PANEL_FILL,
-    RULE,
     SMALL,
-    SUBTITLE,
-    TITLE,
-    VERDICT,
-    TickBox,
+    TINY,
     grid,
     para,
     rich,
 )
+from supervisor.report.units import UnitSystem, unit_system
 
+__all__ = ["SignerNote", "dive_section", "has_surface_interval", "model_label"]
 
-@dataclass(frozen=True)
-class SignerNote:
-    """Who applies the digital signature, printed in the signature section."""
+_m = m
+_stated = stated
+_not_computed = not_computed
+_kv_lines = kv_lines
 
-    name: str
-    fingerprint_sha256: str
-    self_signed: bool
-
-
-def _m(value: Any) -> Mapping[str, Any]:
-    return value if isinstance(value, Mapping) else {}
-
-
-def _text(value: Any) -> str:
-    return MISSING if value is None or value == "" else str(value)
-
-
-def _stated(value: Any) -> str:
-    """A descriptive field (status, edition) that the source may leave out."""
-    return "not stated" if value is None or value == "" else str(value)
-
-
-def _given(value: Any, unit: str | None) -> str:
-    """A finding's measured value or limit; ``None`` means the rule states none."""
-    return "—" if value is None else fmt_quantity(value, unit, 2)
-
-
-def _not_computed(what: str) -> Flowable:
-    return rich([(f"{what}: ", False), (NOT_COMPUTED, True)], BODY)
-
-
-def model_label(model: Mapping[str, Any]) -> str:
-    """``"zhl16c GF 30/85"`` from the record's ``model`` entry."""
-    name = _text(model.get("name"))
-    return f"{name} GF {fmt_gf(model.get('gf_low'), model.get('gf_high'))}"
-
-
-# ----------------------------------------------------------------------------- page 1
-
-
-def title_block(record: Mapping[str, Any], document_sha256: str) -> list[Flowable]:
-    """Title and job line."""
-    job = _m(record.get("job"))
-    return [
-        para(_m(record.get("checklist")).get("title") or "Pre-dive checklist", TITLE),
-        para(_text(job.get("title")), SUBTITLE),
-    ]
-
-
-def header_table(record: Mapping[str, Any], document_sha256: str, width: float) -> Table:
-    """Job, site, people, plan file, tool and document identity."""
-    job = _m(record.get("job"))
-    pairs = [
-        ("Job", job.get("title")),
-        ("Site", job.get("site")),
-        ("Date", job.get("date")),
-        ("Client", job.get("client")),
-        ("Contractor", job.get("contractor")),
-        ("Diving supervisor", job.get("supervisor")),
-        ("Jurisdiction", job.get("jurisdiction")),
-        ("Depth unit", record.get("unit")),
-        ("Tool version", f"supervisor {_text(record.get('tool_version'))}"),
-        ("Check generated (UTC)", record.get("generated_at")),
-    ]
-    rows: list[list[object]] = []
-    for i in range(0, len(pairs), 2):
-        row: list[object] = []
-        for key, value in pairs[i : i + 2]:
-            row += [para(key, CELL_BOLD), para(_text(value), CELL)]
-        rows.append(row)
-    wide = [
-        ("Plan file", record.get("plan_path")),
-        ("Plan sha256", record.get("plan_sha256")),
-        ("Document sha256", document_sha256),
-    ]
-    for key, value in wide:
-        rows.append([para(key, CELL_BOLD), para(_text(value), CELL), "", ""])
-    key_w = 0.17 * width
-    val_w = width / 2 - key_w
-    extra = [("SPAN", (1, r), (3, r)) for r in range(len(rows) - len(wide), len(rows))]
-    return grid(rows, [key_w, val_w, key_w, val_w], header=False, extra=extra)
-
-
-def references_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
-    """Reference tables and coefficient sets used, with edition and status."""
-    out: list[Flowable] = [para("Reference tables and model", H3)]
-    refs = record.get("references")
-    if not isinstance(refs, list) or not refs:
-        out.append(_not_computed("References used"))
-    else:
-        rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
-                                     ("Name", "Title", "Edition", "Source status", "Verification")]]
-        for ref in refs:
-            ref = _m(ref)
-            rows.append([para(_stated(ref.get(k)), CELL) for k in
-                         ("name", "title", "edition", "source_status", "verification")])
-        w = width
-        out.append(grid(rows, [0.19 * w, 0.31 * w, 0.22 * w, 0.14 * w, 0.14 * w]))
-    model = record.get("model")
-    if isinstance(model, Mapping):
-        out.append(Spacer(1, 3))
-        out.append(rich([("Model: ", True), (model_label(model), False),
-                         ("; coefficient status: ", False),
-                         (_text(model.get("coefficient_status")), True),
-                         (" (printed beside every model figure below)", False)], SMALL))
-    else:
-        out.append(_not_computed("Decompression model"))
-    return out
-
-
-def verdict_block(record: Mapping[str, Any], width: float) -> list[Flowable]:
-    """The verdict with the count of findings by severity."""
-    findings = [f for f in record.get("findings") or [] if isinstance(f, Mapping)]
-    counts = count_findings(findings)
-    verdict, changed = effective_verdict(record.get("verdict"), counts)
-    lines: list[Flowable] = [
-        rich([("Verdict: ", False), (VERDICT_LABEL[verdict], True)], VERDICT),
-        para(f"{counts['fail']} fail, {counts['warn']} warn, {counts['info']} info, "
-             f"{counts['pass']} pass", BODY),
-    ]
-    stated = _m(record.get("counts"))
-    if changed or any(stated.get(k) not in (None, v) for k, v in counts.items()):
-        lines.append(para(
-            f"Stated by the check: verdict {_text(record.get('verdict'))}, counts "
-            + ", ".join(f"{k} {fmt_scalar(stated.get(k))}" for k in counts)
-            + ". The verdict and counts above are recomputed from the findings listed; "
-            "the worse of the two is shown.", SMALL))
-    lines.append(para("The tool supports the supervisor's decision; it does not make it. "
-                      "See the cautions before the signature blocks.", SMALL))
-    panel = Table([[lines]], colWidths=[width])
-    panel.setStyle([("FONTNAME", (0, 0), (-1, -1), REGULAR),
-                    ("BOX", (0, 0), (-1, -1), 0.8, RULE),
-                    ("BACKGROUND", (0, 0), (-1, -1), PANEL_FILL),
-                    ("LEFTPADDING", (0, 0), (-1, -1), 6),
-                    ("TOPPADDING", (0, 0), (-1, -1), 5),
-                    ("BOTTOMPADDING", (0, 0), (-1, -1), 6)])
-    return [Spacer(1, 6), panel]
-
-
-def findings_table(record: Mapping[str, Any], width: float) -> list[Flowable]:
-    """All findings, worst first, each with its citation and source status."""
-    out: list[Flowable] = [para("Findings, worst first", H2)]
-    raw = record.get("findings")
-    if not isinstance(raw, list):
-        return out + [_not_computed("Findings")]
-    findings = sorted((f for f in raw if isinstance(f, Mapping)),
-                      key=lambda f: severity_rank(f.get("severity")))
-    if not findings:
-        return out + [para("The check reported no findings. That is not a pass: "
-                           "the supervisor reviews the plan in full.", BODY)]
-    rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
-                                 ("Result", "Rule / dive", "Finding", "Measured / limit",
-                                  "Citation (source status)")]]
-    if any(f.get("severity") == "pass" for f in findings):
-        out.append(para("Passed checks are listed last in smaller type, as measured / limit.",
-                        SMALL))
-    for f in findings:
-        unit = f.get("unit") if isinstance(f.get("unit"), str) else None
-        measured = _given(f.get("measured"), unit)
-        limit = _given(f.get("limit"), unit)
-        dive = f.get("dive")
-        status = f"({_stated(f.get('source_status'))})"
-        if f.get("severity") == "pass":
-            # passed checks print compactly, one paragraph per cell
-            where = f" (dive {dive})" if dive is not None else ""
-            rows.append([
-                para(severity_label("pass"), SMALL),
-                para(f"{_text(f.get('rule'))}{where}", SMALL),
-                para(_text(f.get("message")), SMALL),
-                para("—" if measured == limit == "—" else f"{measured} / {limit}", SMALL),
-                para(f"{_text(f.get('citation'))} {status}", SMALL),
-            ])
-            continue
-        rule_cell = [para(_text(f.get("rule")), CELL)]
-        if dive is not None:
-            rule_cell.append(para(f"dive {dive}", CELL))
-        rows.append([
-            para(severity_label(f.get("severity")), CELL_BOLD),
-            rule_cell,
-            para(_text(f.get("message")), CELL),
-            [para(f"measured: {measured}", CELL), para(f"limit: {limit}", CELL)],
-            [para(_text(f.get("citation")), CELL), para(status, CELL)],
-        ])
-    w = width
-    out.append(grid(rows, [0.08 * w, 0.17 * w, 0.36 * w, 0.16 * w, 0.23 * w]))
-    return out
-
-
-def caution_lead(record: Mapping[str, Any]) -> list[Flowable]:
-    """The first caution, printed on page 1."""
-    cautions = _m(record.get("checklist")).get("cautions") or []
-    if not cautions:
-        return []
-    return [Spacer(1, 4), rich([("Caution. ", True), (cautions[0], False)], SMALL)]
+#: Height of each chart of a dive (drawn side by side) [pt].
+CHART_HEIGHT = 108.0
 
 
 # ----------------------------------------------------------------------------- dives
 
 
+def stop_gas_cell(stop: Mapping[str, Any]) -> list[Flowable]:
+    """A stop's gas, or its breathing periods when it has them (air breaks).
+
+    A stop with ``periods`` never prints as one continuous gas: the periods
+    replace the gas name (``"O2 15, air 5, O2 15 min"``).
+    """
+    periods = fmt_periods(stop.get("periods"))
+    if periods is None:
+        return [para(_text(stop.get("gas")), CELL)]
+    return [para(periods, CELL), para("(air breaks)" if "air" in periods.lower() else
+                                      "(periods)", SMALL)]
+
+
 def _stops_table(stops: Any, unit: str, width: float) -> Flowable:
-    if stops is None:
-        return para(NOT_COMPUTED, CELL_BOLD)
+    """A schedule's stops, one row each; a stop with air breaks shows its periods."""
     if not isinstance(stops, list):
         return para(NOT_COMPUTED, CELL_BOLD)
     if not stops:
@@ -265,13 +94,9 @@ def _stops_table(stops: Any, unit: str, width: float) -> Flowable:
         stop = _m(stop)
         rows.append([para(fmt_stop_depth(stop.get("depth")), CELL),
                      para(fmt_stop_minutes(stop.get("minutes")), CELL),
-                     para(_text(stop.get("gas")), CELL),
+                     stop_gas_cell(stop),
                      para(_text(stop.get("place")), CELL)])
-    return grid(rows, [0.24 * width, 0.18 * width, 0.3 * width, 0.28 * width], repeat=False)
-
-
-def _kv_lines(pairs: Sequence[tuple[str, str]]) -> list[Flowable]:
-    return [rich([(f"{k}: ", True), (v, False)], CELL) for k, v in pairs]
+    return grid(rows, [0.22 * width, 0.16 * width, 0.36 * width, 0.26 * width], repeat=False)
 
 
 def _minutes(value: Any) -> str:
@@ -296,28 +121,40 @@ def reference_gaps(ref: Mapping[str, Any]) -> list[str]:
     return gaps
 
 
-def reference_cells(ref: Any, unit: str, width: float) -> list[Flowable]:
+def _stops(stops: Any, unit: str, width: float, compact: bool, lead: str = "") -> Flowable:
+    if not compact:
+        return _stops_table(stops, unit, width)
+    line = stops_line(stops, unit)
+    return rich([(f"{lead}: " if lead else "", True), (line, line == NOT_COMPUTED)], CELL)
+
+
+def reference_cells(ref: Any, unit: str, width: float, *,
+                    compact: bool = False, lead: str = "",
+                    brief_row: bool = False) -> list[Flowable]:
     """A reference-table schedule: its stops, or why there are none, and its row.
 
     "no decompression stops" is printed only for a whole schedule (no
     ``reason``, inside the table, stops given); a missing or partial one
     prints its reason and "needs review" instead, and a row that is not
-    verified says so.
+    verified says so.  ``compact`` prints the stops and the row in lines
+    instead of a table (contingency schedules).
     """
     if not isinstance(ref, Mapping):
-        return [para(NOT_COMPUTED, CELL_BOLD)]
+        return [rich([(f"{lead}: " if lead else "", True), (NOT_COMPUTED, True)], CELL)]
     cells: list[Flowable] = []
     gaps = reference_gaps(ref)
     stops = ref.get("stops")
     if gaps:
         if isinstance(stops, list) and stops:
-            cells.append(_stops_table(stops, unit, width))
+            cells.append(_stops(stops, unit, width, compact, lead))
             cells.append(para("Partial reference schedule — needs review:", CELL_BOLD))
         else:
+            if lead:
+                cells.append(para(lead, CELL_BOLD))
             cells.append(para("No reference schedule — needs review:", CELL_BOLD))
         cells += [para(gap, CELL) for gap in gaps]
     else:
-        cells.append(_stops_table(stops, unit, width))
+        cells.append(_stops(stops, unit, width, compact, lead))
     verification = ref.get("row_verification")
     if verification == "unverified":
         cells.append(para("row unverified — needs review", CELL_BOLD))
@@ -337,30 +174,40 @@ def reference_cells(ref: Any, unit: str, width: float) -> list[Flowable]:
         asked.append(_minutes(asked_time))
     if asked:
         row += f" (looked up for {', '.join(asked)})"
+    if compact or brief_row:
+        cells.append(para(f"row {row}; repetitive group {_text(ref.get('repetitive_group'))}; "
+                          f"source {_stated(ref.get('source_status'))}", SMALL))
+        return cells
     cells += _kv_lines([("row", row), ("repetitive group", _text(ref.get("repetitive_group"))),
                         ("source status", _stated(ref.get("source_status")))])
     return cells
 
 
 def _model_cells(sched: Any, unit: str, width: float, *,
-                 totals: Sequence[tuple[str, str]] = ()) -> list[Flowable]:
+                 totals: Sequence[tuple[str, str]] = (),
+                 compact: bool = False, lead: str = "") -> list[Flowable]:
     """A model schedule's stops and totals, or why it was not computed."""
+    head = [para(lead, CELL_BOLD)] if lead else []
     if not isinstance(sched, Mapping):
-        return [para(NOT_COMPUTED, CELL_BOLD)]
+        return [*head, para(NOT_COMPUTED, CELL_BOLD)]
     error = sched.get("error")
     if error:
-        return [para(NOT_COMPUTED, CELL_BOLD), para(str(error), CELL)]
+        return [*head, para(NOT_COMPUTED, CELL_BOLD), para(str(error), CELL)]
     if "total_stop_min" in sched and sched.get("total_stop_min") is None \
             and not sched.get("stops"):
-        return [para(NOT_COMPUTED, CELL_BOLD)]  # an empty list here means "no schedule"
-    cells: list[Flowable] = [_stops_table(sched.get("stops"), unit, width)]
-    cells += _kv_lines([
+        return [*head, para(NOT_COMPUTED, CELL_BOLD)]  # an empty list here means "no schedule"
+    cells: list[Flowable] = [_stops(sched.get("stops"), unit, width, compact, lead)]
+    pairs = [
         ("total stop time", _minutes(sched.get("total_stop_min"))),
         ("total ascent time", _minutes(sched.get("total_ascent_min"))),
         ("no-stop limit", "not reported" if sched.get("no_stop_limit_min") is None
          else _minutes(sched.get("no_stop_limit_min"))),
         *totals,
-    ])
+    ]
+    if compact:
+        cells.append(para("; ".join(f"{k} {v}" for k, v in pairs), SMALL))
+    else:
+        cells += _kv_lines(pairs)
     return cells
 
 
@@ -374,7 +221,7 @@ def schedules_side_by_side(dive: Mapping[str, Any], record: Mapping[str, Any],
     ref = dive.get("reference_schedule")
 
     proposed = [_stops_table(dive.get("proposed_stops"), unit, inner)]
-    ref_cells = reference_cells(ref, unit, inner)
+    ref_cells = reference_cells(ref, unit, inner, brief_row=True)
     ref_head = (f"Reference table: {_text(_m(ref).get('table'))}" if isinstance(ref, Mapping)
                 else "Reference table")
     model_cells = _model_cells(dive.get("model_schedule"), unit, inner)
@@ -387,25 +234,21 @@ def schedules_side_by_side(dive: Mapping[str, Any], record: Mapping[str, Any],
     return grid(rows, [col, col, col], repeat=False)
 
 
-def dive_facts(dive: Mapping[str, Any], record: Mapping[str, Any], width: float) -> Table:
-    """Diver, mode, gas, depth, bottom time and decompression mode."""
+def dive_facts(dive: Mapping[str, Any], record: Mapping[str, Any], width: float) -> Flowable:
+    """Diver, mode, gas, depth, bottom time and decompression mode, in one line."""
     unit = _text(record.get("unit"))
     pairs = [
         ("Diver", _text(dive.get("diver"))),
-        ("Mode", _text(dive.get("mode"))),
-        ("Breathing gas", _text(dive.get("gas"))),
-        ("Maximum depth", fmt_quantity(dive.get("max_depth"), unit)),
-        ("Bottom time", _minutes(dive.get("bottom_time_min"))),
-        ("Decompression", _text(dive.get("decompression"))),
+        ("mode", _text(dive.get("mode"))),
+        ("gas", _text(dive.get("gas"))),
+        ("maximum depth", fmt_quantity(dive.get("max_depth"), unit)),
+        ("bottom time", _minutes(dive.get("bottom_time_min"))),
+        ("decompression", _text(dive.get("decompression"))),
     ]
-    rows = []
-    for i in range(0, len(pairs), 3):
-        row: list[object] = []
-        for key, value in pairs[i : i + 3]:
-            row += [para(key, CELL_BOLD), para(value, CELL)]
-        rows.append(row)
-    k, v = 0.15 * width, width / 3 - 0.15 * width
-    return grid(rows, [k, v, k, v, k, v], header=False)
+    parts: list[tuple[object, bool]] = []
+    for n, (key, value) in enumerate(pairs):
+        parts += [(("" if n == 0 else "; ") + f"{key}: ", True), (value, False)]
+    return rich(parts, BODY)
 
 
 def has_surface_interval(dive: Mapping[str, Any]) -> bool:
@@ -470,26 +313,96 @@ def model_margin(dive: Mapping[str, Any], record: Mapping[str, Any]) -> list[Flo
     return [rich(parts, BODY)]
 
 
+def _atm(bar: object) -> str:
+    """A PO2 given in bar, printed in atm (ata), the unit of the oxygen limits."""
+    if not is_number(bar):
+        return fmt_number(bar)
+    return fmt_number(float(bar) / C.P_ATM_BAR, 2)  # type: ignore[arg-type]
+
+
+def cns_text(oxygen: Mapping[str, Any]) -> tuple[str, bool]:
+    """The CNS figure as printed, and whether it needs attention (bold).
+
+    A lower bound (``cns_is_lower_bound``) prints as ``"at least 13.8
+    (lower bound)"``, rounded down; a missing figure as not computed.
+    """
+    value = oxygen.get("cns_percent")
+    if not is_number(value):
+        return NOT_COMPUTED, True
+    if oxygen.get("cns_is_lower_bound") is True:
+        low = math.floor(float(value) * 10 + 1e-9) / 10  # type: ignore[arg-type]
+        return f"at least {fmt_number(low, 1)} (lower bound)", True
+    return fmt_number(value, 1), False
+
+
+def chamber_oxygen_text(chamber: Mapping[str, Any]) -> str:
+    """Chamber oxygen as the chamber procedure counts it: minutes, periods, PO2, limit."""
+    parts = [f"{fmt_quantity(chamber.get('minutes'), 'min', 0)} in "
+             f"{fmt_number(chamber.get('periods'), 1)} period(s)"]
+    if is_number(chamber.get("max_po2_atm")):
+        parts.append(f"PO2 up to {fmt_number(chamber.get('max_po2_atm'), 2)} atm")
+    counted = chamber.get("counted_by")
+    parts.append(f"counted by {counted}" if counted else "counting rule not stated — needs "
+                 "review")
+    limit = chamber.get("limit")
+    parts.append(f"limit: {limit}" if limit else "limit: none stated — needs review")
+    return "; ".join(parts)
+
+
 def oxygen_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
-    """PO2 per phase, CNS % and OTU."""
+    """PO2 per phase [atm], CNS % (in-water, a lower bound marked), chamber oxygen, OTU."""
     out: list[Flowable] = [para("Oxygen exposure", H3)]
     oxygen = dive.get("oxygen")
     if not isinstance(oxygen, Mapping):
         return out + [_not_computed("Oxygen exposure")]
     by_phase = oxygen.get("po2_by_phase")
-    rows: list[list[object]] = [[para("Phase", CELL_BOLD), para("PO2 [bar]", CELL_BOLD)]]
+    rows: list[list[object]] = [[para("Phase", CELL_BOLD), para("PO2 [atm]", CELL_BOLD)]]
+    surd = has_surface_interval(dive)
     if isinstance(by_phase, Mapping) and by_phase:
-        for phase, value in by_phase.items():
-            rows.append([para(str(phase), CELL), para(fmt_number(value, 2), CELL)])
+        order = ("bottom", "decompression", "chamber")
+        phases = sorted(by_phase.items(), key=lambda kv: (order.index(kv[0])
+                                                          if kv[0] in order else 3))
+        for phase, value in phases:
+            if phase == "chamber" and value is None and not surd:
+                continue  # no chamber phase in this dive
+            rows.append([para(str(phase), CELL), para(_atm(value), CELL)])
     else:
         rows.append([para("by phase", CELL), para(NOT_COMPUTED, CELL_BOLD)])
-    rows.append([para("maximum PO2 [bar]", CELL_BOLD), para(fmt_number(oxygen.get("max_po2"), 2),
-                                                          CELL)])
-    rows.append([para("CNS [% of limit]", CELL_BOLD),
-                 para(fmt_number(oxygen.get("cns_percent"), 1), CELL)])
+    top = oxygen.get("max_po2_atm")
+    rows.append([para("maximum PO2 [atm]", CELL_BOLD),
+                 para(fmt_number(top, 2) if is_number(top) else _atm(oxygen.get("max_po2")),
+                      CELL)])
+    chamber = oxygen.get("chamber_oxygen")
+    chamber_po2 = _m(by_phase).get("chamber")
+    cns, attention = cns_text(oxygen)
+    if isinstance(chamber, Mapping):
+        label = "in-water CNS [% of limit]"
+    elif "chamber_oxygen" not in oxygen and is_number(chamber_po2):
+        label = "CNS [% of limit], water and chamber counted on the in-water table"
+        attention = True
+    else:
+        label = "in-water CNS [% of limit]" if "chamber_oxygen" in oxygen else "CNS [% of limit]"
+    rows.append([para(label, CELL_BOLD), para(cns, CELL_BOLD if attention else CELL)])
+    if isinstance(chamber, Mapping):
+        rows.append([para("chamber oxygen (no CNS %: counted against the chamber procedure)",
+                          CELL_BOLD), para(chamber_oxygen_text(chamber), CELL)])
+    elif "chamber_oxygen" not in oxygen and is_number(chamber_po2):
+        rows.append([para("chamber oxygen", CELL_BOLD),
+                      para("not counted against the chamber procedure's limits by this check — "
+                           "needs review", CELL_BOLD)])
     rows.append([para("pulmonary dose [OTU]", CELL_BOLD),
                  para(fmt_number(oxygen.get("otu"), 0), CELL)])
-    return out + [grid(rows, [0.6 * width, 0.4 * width], repeat=False)]
+    notes = []
+    if oxygen.get("cns_note"):
+        notes.append(str(oxygen["cns_note"]))
+    above = oxygen.get("minutes_above_table")
+    if is_number(above) and float(above) > 0:
+        tol = oxygen.get("po2_tolerance_atm")
+        notes.append(f"{fmt_number(above, 1)} min in the water above the CNS table's top row"
+                     + (f" (PO2 tolerance {fmt_number(tol, 3)} atm)" if is_number(tol) else ""))
+    out.append(grid(rows, [0.55 * width, 0.45 * width], repeat=False))
+    out += [para(n, SMALL) for n in notes]
+    return out
 
 
 def _has_oxygen_stops(dive: Mapping[str, Any]) -> bool:
@@ -499,10 +412,9 @@ def _has_oxygen_stops(dive: Mapping[str, Any]) -> bool:
     return any("oxygen" in str(_m(s).get("gas", "")).lower() for s in stops)
 
 
-def _supply_row(label: str, have: Any, need: Any, unit: str) -> list[object]:
+def _supply_row(label: str, have: Any, need: Any, shown: tuple[str, str]) -> list[object]:
     """One "available against need" row; any missing figure prints as not computed."""
-    have_text = fmt_quantity(have, unit, 0)
-    need_text = fmt_quantity(need, unit, 0)
+    have_text, need_text = shown
     if is_number(have) and is_number(need) and float(need) > 0:
         short = float(have) < float(need)
         style = CELL_BOLD if short else CELL
@@ -524,23 +436,47 @@ _SUPPLY_SHOWN = ("need_l", "available_l", "primary_kind", "primary_delivery_lpm"
                  "bailout_psig", "bailout_required_psig")
 
 
-_SUPPLY_LABELS: dict[str, tuple[str, str | None]] = {
-    "rmv_lpm": ("breathing rate assumed", "L/min"),
-    "people": ("people counted", None),
-    "diver_need_l": ("one diver's need, whole dive", "L"),
-    "need_l": ("need of all counted, whole dive", "L"),
-    "over_bottom_psig": ("over-bottom pressure", "psig"),
-    "mmp_psig": ("minimum manifold pressure", "psig"),
-    "bailout_required_psig_rounded": ("bailout required, rounded up", "psig"),
+_SUPPLY_LABELS: dict[str, str] = {
+    "rmv_lpm": "breathing rate assumed",
+    "people": "people counted",
+    "diver_need_l": "one diver's need, whole dive",
+    "need_l": "need of all counted, whole dive",
+    "over_bottom_psig": "over-bottom pressure",
+    "mmp_psig": "minimum manifold pressure",
+    "bailout_required_psig_rounded": "bailout required, rounded up",
+    "bottom_psig": "water pressure at the bottom",
+    "chamber_required": "chamber required",
 }
 
 
-def gas_supply_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
+def supply_details(supply: Mapping[str, Any], shown: set[str], units: UnitSystem) -> str:
+    """The other gas-supply figures in one line, each in the plan's unit system."""
+    parts = []
+    if supply.get("basis"):  # the basis already names the breathing rate and the people counted
+        shown = shown | {"rmv_lpm", "people"}
+    for key, value in flatten({k: v for k, v in supply.items() if k not in shown}):
+        if value is None or value == [] or value == "":
+            continue
+        converted = units.by_key(key, value)
+        label = _SUPPLY_LABELS.get(key) or humanize_key(key)[0]
+        if converted is not None:
+            parts.append(f"{label} {converted[1]}")
+        else:
+            unit = humanize_key(key)[1]
+            value_text = fmt_quantity(value, unit, 1) if is_number(value) else fmt_scalar(value)
+            parts.append(f"{label} {value_text}" if key != "basis" else f"basis: {value_text}")
+    return "; ".join(parts)
+
+
+def gas_supply_table(dive: Mapping[str, Any], width: float,
+                     units: UnitSystem) -> list[Flowable]:
     """Gas supply against need: what the check compares, then the other figures.
 
     A compressor is compared by flow (its delivery against the peak flow the
     divers need at the maximum depth), a bank or cylinder by free gas against
-    the need; a figure the check does not give prints as not computed.
+    the need; a figure the check does not give prints as not computed.  Free
+    gas prints in litres (msw plans) or standard cubic feet (fsw plans),
+    gauge pressures in bar or psig.
     """
     out: list[Flowable] = [para("Gas supply against need", H3)]
     supply = dive.get("gas_supply")
@@ -548,15 +484,23 @@ def gas_supply_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
         return out + [_not_computed("Gas supply")]
     rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
                                  ("Supply", "available", "needed", "available / needed")]]
+
+    def flows(a: str, b: str) -> tuple[str, str]:
+        return units.flow(supply.get(a)), units.flow(supply.get(b))
+
+    def gases(a: str, b: str) -> tuple[str, str]:
+        return units.gas(supply.get(a)), units.gas(supply.get(b))
+
     kind = supply.get("primary_kind")
     if _is_compressor(supply, "primary"):
         rows.append(_supply_row("primary compressor: delivery against peak flow",
                                 supply.get("primary_delivery_lpm"), supply.get("peak_flow_lpm"),
-                                "L/min"))
+                                flows("primary_delivery_lpm", "peak_flow_lpm")))
     else:
         label = f"primary {kind}" if isinstance(kind, str) and kind else "primary"
         rows.append(_supply_row(f"{label}: free gas against the whole dive",
-                                supply.get("available_l"), supply.get("need_l"), "L"))
+                                supply.get("available_l"), supply.get("need_l"),
+                                gases("available_l", "need_l")))
     if any(k.startswith("secondary_") for k in supply):
         second = supply.get("secondary_kind")
         if second is None:
@@ -564,35 +508,35 @@ def gas_supply_table(dive: Mapping[str, Any], width: float) -> list[Flowable]:
         elif _is_compressor(supply, "secondary"):
             rows.append(_supply_row("secondary compressor: delivery against peak flow",
                                     supply.get("secondary_delivery_lpm"),
-                                    supply.get("peak_flow_lpm"), "L/min"))
+                                    supply.get("peak_flow_lpm"),
+                                    flows("secondary_delivery_lpm", "peak_flow_lpm")))
         else:
             rows.append(_supply_row(f"secondary {second}: free gas against the ascent and "
                                     "decompression", supply.get("secondary_available_l"),
-                                    supply.get("recovery_need_l"), "L"))
+                                    supply.get("recovery_need_l"),
+                                    gases("secondary_available_l", "recovery_need_l")))
     if "oxygen_need_l" in supply:
         if supply.get("oxygen_need_l") is None and not _has_oxygen_stops(dive):
             rows.append([para("decompression oxygen", CELL),
                          para("no oxygen stops in the plan", CELL), "", ""])
         else:
             rows.append(_supply_row("decompression oxygen", supply.get("oxygen_available_l"),
-                                    supply.get("oxygen_need_l"), "L"))
+                                    supply.get("oxygen_need_l"),
+                                    gases("oxygen_available_l", "oxygen_need_l")))
     if "bailout_psig" in supply or "bailout_required_psig" in supply:
         rows.append(_supply_row("bailout cylinder: charge against required",
                                 supply.get("bailout_psig"), supply.get("bailout_required_psig"),
-                                "psig"))
+                                (units.gauge(supply.get("bailout_psig"), "psig"),
+                                 units.gauge(supply.get("bailout_required_psig"), "psig"))))
     w = width
     out.append(grid(rows, [0.4 * w, 0.19 * w, 0.19 * w, 0.22 * w], repeat=False,
                     extra=[("SPAN", (1, r), (3, r)) for r, row in enumerate(rows)
                            if r and row[2] == ""]))
     shown = set(_SUPPLY_SHOWN) - ({"need_l"} if _is_compressor(supply, "primary") else set())
-    details: list[list[object]] = []
-    for key, value in flatten({k: v for k, v in supply.items() if k not in shown}):
-        label, unit = _SUPPLY_LABELS.get(key) or humanize_key(key)
-        details.append([para(f"{label} [{unit}]" if unit else label, CELL),
-                        para(fmt_scalar(value), CELL)])
+    details = supply_details(supply, shown, units)
     if details:
-        out.append(Spacer(1, 3))
-        out.append(grid(details, [0.55 * width, 0.45 * width], header=False, repeat=False))
+        out.append(Spacer(1, 2))
+        out.append(para(details, TINY))
     return out
 
 
@@ -606,33 +550,42 @@ _CONTINGENCY_SHOWN = ("kind", "depth", "bottom_time_min", "basis", "stops", "tot
                       "total_ascent_min", "no_stop_limit_min", "oxygen", "reference", "error")
 
 
+_NOT_APPLICABLE = "not applicable: the plan breathes no oxygen at its stops"
+
+
+def _not_applicable(key: str, sched: Any, dive: Mapping[str, Any]) -> bool:
+    """Loss of oxygen for a dive that breathes none at its stops (and the check gave none)."""
+    return (key == "oxygen_failure" and sched is None
+            and dive.get("decompression") in ("none", "in-water")
+            and not _has_oxygen_stops(dive))
+
+
 def _contingency_cell(key: str, title: str, sched: Any, dive: Mapping[str, Any], unit: str,
                       width: float) -> list[Flowable]:
     cell: list[Flowable] = [para(title, CELL_BOLD)]
     if not isinstance(sched, Mapping):
-        if key == "oxygen_failure" and sched is None \
-                and dive.get("decompression") in ("none", "in-water") \
-                and not _has_oxygen_stops(dive):
-            return cell + [para("not applicable: the plan breathes no oxygen at its stops",
-                                CELL)]
+        if _not_applicable(key, sched, dive):
+            return cell + [para(_NOT_APPLICABLE, CELL)]
         return cell + [para(NOT_COMPUTED, CELL_BOLD)]
     depth, time = sched.get("depth"), sched.get("bottom_time_min")
+    basis = f" ({sched['basis']})" if sched.get("basis") else ""
     if is_number(depth) and is_number(time):
-        cell += _kv_lines([("dive", f"{fmt_quantity(depth, unit)} for {_minutes(time)}")])
+        cell.append(rich([("dive: ", True), (f"{fmt_quantity(depth, unit)} for {_minutes(time)}",
+                                             False), (basis, False)], CELL))
     else:
         cell += _kv_lines([("depth", fmt_quantity(depth, unit)), ("bottom time", _minutes(time))])
-    if sched.get("basis"):
-        cell.append(para(str(sched["basis"]), SMALL))
+        if basis:
+            cell.append(para(basis.strip(" ()"), SMALL))
     oxygen = _m(sched.get("oxygen"))
-    cell.append(para("Model schedule", CELL_BOLD))
+    cns, _ = cns_text(oxygen)
     cell += _model_cells(sched, unit, width, totals=[
-        ("CNS", fmt_quantity(oxygen.get("cns_percent"), "%", 1)),
+        ("in-water CNS" if "chamber_oxygen" in oxygen else "CNS",
+         cns + (" %" if is_number(oxygen.get("cns_percent")) else "")),
         ("OTU", fmt_number(oxygen.get("otu"), 0)),
-    ])
-    cell.append(para("Reference table" + (f": {sched['reference']['table']}"
-                                          if _m(sched.get("reference")).get("table") else ""),
-                     CELL_BOLD))
-    cell += reference_cells(sched.get("reference"), unit, width)
+    ], compact=True, lead="Model")
+    table = _m(sched.get("reference")).get("table")
+    cell += reference_cells(sched.get("reference"), unit, width, compact=True,
+                            lead=f"Table {table}" if table else "Reference table")
     for k, value in flatten({k: v for k, v in sched.items() if k not in _CONTINGENCY_SHOWN}):
         label, u = humanize_key(k)
         shown = fmt_quantity(value, u, 1) if is_number(value) else fmt_scalar(value)
@@ -648,10 +601,16 @@ def contingency_section(dive: Mapping[str, Any], record: Mapping[str, Any],
     cont = dive.get("contingency")
     if not isinstance(cont, Mapping):
         return out + [_not_computed("Contingency schedules")]
-    col = width / 3
+    keys = [(key, title) for key, title in _CONTINGENCIES
+            if not _not_applicable(key, cont.get(key), dive)]
+    col = width / len(keys) if keys else width
     cells = [_contingency_cell(key, title, cont.get(key), dive, unit, col - 8)
-             for key, title in _CONTINGENCIES]
-    out.append(grid([cells], [col, col, col], header=False))
+             for key, title in keys]
+    if cells:
+        out.append(grid([cells], [col] * len(cells), header=False))
+    for key, title in _CONTINGENCIES:
+        if _not_applicable(key, cont.get(key), dive):
+            out.append(rich([(f"{title}: ", True), (_NOT_APPLICABLE, False)], SMALL))
     return [KeepTogether(out)]
 
 
@@ -663,243 +622,65 @@ def dive_verdict(dive: Mapping[str, Any], record: Mapping[str, Any]) -> Flowable
     verdict, _ = effective_verdict(dive.get("verdict"), counts)
     return rich([("Dive verdict: ", False), (VERDICT_LABEL[verdict], True), (
         f" ({counts['fail']} fail, {counts['warn']} warn, {counts['info']} info, "
-        f"{counts['pass']} pass, counting this dive's findings and the job-wide ones)", False)],
+        f"{counts['pass']} pass; this dive's findings and the job-wide ones)", False)],
         BODY)
+
+
+def _side_by_side(left: object, right: object, width: float, split: float = 0.5) -> Table:
+    """Two blocks next to each other; the row may split across pages."""
+    pair = Table([[left, right]], colWidths=[width * split, width * (1 - split)], splitInRow=1)
+    pair.setStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 0),
+                   ("RIGHTPADDING", (0, 0), (-1, -1), 6),
+                   ("FONTNAME", (0, 0), (-1, -1), REGULAR)])
+    return pair
+
+
+def dive_charts(dive: Mapping[str, Any], record: Mapping[str, Any], width: float) -> Flowable:
+    """The depth-time profile with the model ceiling beside the compartment loading."""
+    model = _m(record.get("model"))
+    status = _text(model.get("coefficient_status"))
+    surd = has_surface_interval(dive)
+    w_left, w_right = 0.58 * width - 6, 0.42 * width - 6
+    profile = charts.profile_chart(dive.get("chart"), _text(record.get("unit")),
+                                   model_label(model), width=w_left, height=CHART_HEIGHT,
+                                   surface_interval=surd)
+    left: list[Flowable] = [
+        para(f"Planned profile and model ceiling ({status})", H3),
+        profile if profile is not None else _not_computed("Depth-time chart")]
+    if surd:
+        left.append(para("Dotted box: the surface interval of surface decompression, "
+                         "excluded from the ceiling check (see the ceiling check above); "
+                         "shading marks only breaks outside it.", SMALL))
+    bars = charts.compartment_chart(dive.get("compartments"), width=w_right, height=CHART_HEIGHT)
+    right: list[Flowable] = [
+        para(f"Compartment loading at surfacing ({status})", H3),
+        bars if bars is not None else _not_computed("Compartment loading")]
+    pair = Table([[left, right]], colWidths=[width * 0.58, width * 0.42])
+    pair.setStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 0),
+                   ("FONTNAME", (0, 0), (-1, -1), REGULAR)])
+    return pair  # one row that never splits: a chart stays with its heading
 
 
 def dive_section(dive: Mapping[str, Any], record: Mapping[str, Any],
                  width: float) -> list[Flowable]:
-    """Everything about one dive."""
-    model = _m(record.get("model"))
-    status = _text(model.get("coefficient_status"))
+    """Everything about one dive; it starts on the current page when there is room."""
     out: list[Flowable] = [
+        CondPageBreak(150),
         para(f"Dive {_text(dive.get('id'))}: {_text(dive.get('diver'))}", H2),
         dive_verdict(dive, record),
         Spacer(1, 3),
         dive_facts(dive, record, width),
         para("Schedules", H3),
         schedules_side_by_side(dive, record, width),
-        Spacer(1, 4),
+        Spacer(1, 3),
+        *model_margin(dive, record),
+        dive_charts(dive, record, width),
     ]
-    out += model_margin(dive, record)
-    surd = has_surface_interval(dive)
-    profile = charts.profile_chart(dive.get("chart"), _text(record.get("unit")),
-                                   model_label(model), width=width, surface_interval=surd)
-    head = para(f"Planned depth-time profile and model ceiling (coefficients {status})", H3)
-    block: list[Flowable] = [head, profile if profile is not None
-                             else _not_computed("Depth-time chart")]
-    if surd:
-        block.append(para("Dotted box: the surface interval of surface decompression, "
-                          "excluded from the ceiling check (see the ceiling check above); "
-                          "shading marks only breaks outside it.", SMALL))
-    out.append(KeepTogether(block))
-    bars = charts.compartment_chart(dive.get("compartments"), width=width)
-    head = para(f"Compartment loading at surfacing (coefficients {status})", H3)
-    out.append(KeepTogether([head, bars if bars is not None
-                             else _not_computed("Compartment loading")]))
-    half = width / 2 - 6
-    left = oxygen_table(dive, half)
-    right = gas_supply_table(dive, half)
-    pair = Table([[left, right]], colWidths=[width / 2, width / 2])
-    pair.setStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 0),
-                   ("FONTNAME", (0, 0), (-1, -1), REGULAR)])
-    out.append(pair)
+    units = unit_system(record)
+    # kept on one page when it fits one: the figures of a table stay with its heading
+    out.append(KeepTogether([_side_by_side(oxygen_table(dive, width * 0.45 - 6),
+                                           gas_supply_table(dive, width * 0.55 - 6, units),
+                                           width, 0.45)]))
     out += contingency_section(dive, record, width)
-    return out
-
-
-# ----------------------------------------------------------------------------- team, checklist
-
-
-def team_and_chamber(record: Mapping[str, Any], width: float) -> list[Flowable]:
-    """Dive team with roles and first-aid training, and the chamber section of the plan."""
-    out: list[Flowable] = [para("Team and chamber", H2), para("Dive team", H3)]
-    team = record.get("team")
-    if not isinstance(team, list) or not team:
-        out.append(_not_computed("Dive team"))
-    else:
-        rows: list[list[object]] = [[para(h, CELL_BOLD) for h in
-                                     ("Name", "Role", "CPR and first aid")]]
-        for member in team:
-            member = _m(member)
-            cpr = member.get("first_aid_cpr")
-            rows.append([para(_text(member.get("name")), CELL),
-                         para(", ".join(_roles(member)) or MISSING, CELL),
-                         para("yes" if cpr is True else "no" if cpr is False else "not stated",
-                              CELL_BOLD if cpr is not True else CELL)])
-        out.append(grid(rows, [0.5 * width, 0.3 * width, 0.2 * width]))
-    out.append(para("Chamber", H3))
-    chamber = record.get("chamber")
-    if not isinstance(chamber, Mapping) or not chamber:
-        out.append(_not_computed("Chamber"))
-    else:
-        rows = [[para("Item", CELL_BOLD), para("As planned", CELL_BOLD)]]
-        for key, value in flatten(chamber):
-            label, unit = humanize_key(key)
-            rows.append([para(f"{label} [{unit}]" if unit else label, CELL),
-                         para(fmt_scalar(value), CELL)])
-        out.append(grid(rows, [0.4 * width, 0.6 * width]))
-    return out
-
-
-_MODE_TITLE = {
-    "scuba": "SCUBA",
-    "surface-supplied-air": "surface-supplied air",
-    "mixed-gas": "mixed gas",
-}
-
-
-def _item_groups(items: Sequence[Any]) -> list[tuple[str, list[Mapping[str, Any]]]]:
-    """Consecutive items with the same ``group``, in template order."""
-    groups: list[tuple[str, list[Mapping[str, Any]]]] = []
-    for raw in items:
-        item = _m(raw)
-        name = _text(item.get("group"))
-        if not groups or groups[-1][0] != name:
-            groups.append((name, []))
-        groups[-1][1].append(item)
-    return groups
-
-
-def _item_cells(item: Mapping[str, Any]) -> list[object]:
-    body = [para(_text(item.get("text")), CELL)]
-    if item.get("applies_when"):
-        body.append(para(f"Applies when: {item['applies_when']}.", SMALL))
-    status = _stated(item.get("source_status"))
-    cite = [para("; ".join(str(c) for c in item.get("citations") or []) or MISSING, CELL),
-            para(f"({status})", CELL_BOLD if status != "VERIFIED" else CELL)]
-    if item.get("status_note"):
-        cite.append(para(str(item["status_note"]), SMALL))
-    return [body, cite]
-
-
-def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]:
-    """The pre-dive items for each diving mode of the job, with tick boxes."""
-    section = _m(record.get("checklist"))
-    out: list[Flowable] = []
-    groups = section.get("modes") or []
-    for group in groups:
-        group = _m(group)
-        mode = group.get("mode")
-        dives = [str(d) for d in group.get("dives") or []]
-        if mode in _MODE_TITLE:
-            title = f"Pre-dive checklist: {_MODE_TITLE[mode]}"
-        else:
-            given = ", ".join(str(m) for m in group.get("mode_as_given") or []) or "none given"
-            title = f"Pre-dive checklist: mode not recognised ({given}), every item shown"
-        out.append(para(title, H2))
-        if dives:
-            out.append(para("Dives: " + ", ".join(dives), BODY))
-        out.append(para(_text(section.get("note")), SMALL))
-        out.append(Spacer(1, 4))
-        w = width
-        widths = [0.055 * w, 0.055 * w, 0.58 * w, 0.31 * w]
-        out.append(grid([[para("done", CELL_BOLD), para("n/a", CELL_BOLD), para("Item", CELL_BOLD),
-                          para("Citation (source status)", CELL_BOLD)]], widths, repeat=False))
-        for name, items in _item_groups(group.get("items") or []):
-            rows: list[list[object]] = [[para(name, CELL_BOLD), "", "", ""]]
-            for item in items:
-                rows.append([TickBox(), TickBox(), *_item_cells(item)])
-            # one table per group: its heading repeats if the group runs onto a new page,
-            # and a group never starts in the last few lines of a page
-            out.append(CondPageBreak(70))
-            out.append(grid(rows, widths, extra=[("SPAN", (0, 0), (-1, 0)),
-                                                 ("BACKGROUND", (0, 0), (-1, 0), PANEL_FILL),
-                                                 ("ALIGN", (0, 1), (1, -1), "CENTER")]))
-    return out
-
-
-def cautions_section(record: Mapping[str, Any]) -> list[Flowable]:
-    """All cautions, numbered."""
-    cautions = _m(record.get("checklist")).get("cautions") or []
-    out: list[Flowable] = [para("Cautions", H2)]
-    if not cautions:
-        return out + [_not_computed("Cautions")]
-    for n, text in enumerate(cautions, start=1):
-        out.append(rich([(f"{n}. ", True), (str(text), False)], BODY))
-        out.append(Spacer(1, 2))
-    return out
-
-
-def _roles(member: Mapping[str, Any]) -> list[str]:
-    role = member.get("role")
-    items = role if isinstance(role, list) else [role]
-    return [str(r) for r in items if r is not None and str(r).strip()]
-
-
-def _signers(record: Mapping[str, Any]) -> list[str | None]:
-    """Names for a diver's acknowledgement: each dive's diver, then divers and standby divers."""
-    names: list[str | None] = []
-    for dive in record.get("dives") or []:
-        name = _m(dive).get("diver")
-        if isinstance(name, str) and name.strip() and name not in names:
-            names.append(name)
-    for member in record.get("team") or []:
-        member = _m(member)
-        name = member.get("name")
-        for role in _roles(member):
-            words = role.lower().replace("_", " ").replace("-", " ").split()
-            if ("diver" in words or "standby" in words) and isinstance(name, str) \
-                    and name.strip() and name not in names:
-                names.append(name)
-    return names or [None]
-
-
-def _sig_block(role: str, name: object, statement: str, width: float) -> Flowable:
-    line = "_" * 34
-    rows = [
-        [para(role, CELL_BOLD)],
-        [para(statement, SMALL)],
-        [rich([("Printed name: ", True), (name if name else line, False)], CELL)],
-        [Spacer(1, 12)],
-        [rich([("Signature: ", True), (line, False)], CELL)],
-        [Spacer(1, 6)],
-        [rich([("Date and time: ", True), ("_" * 28, False)], CELL)],
-    ]
-    table = Table(rows, colWidths=[width])
-    table.setStyle([("FONTNAME", (0, 0), (-1, -1), REGULAR),
-                    ("BOX", (0, 0), (-1, -1), 0.6, RULE),
-                    ("LEFTPADDING", (0, 0), (-1, -1), 5),
-                    ("TOPPADDING", (0, 0), (-1, -1), 1.5),
-                    ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5)])
-    return table
-
-
-def signature_section(record: Mapping[str, Any], width: float,
-                      signer: SignerNote | None) -> list[Flowable]:
-    """Signature blocks: supervisor, client's representative, each diver."""
-    job = _m(record.get("job"))
-    col = width / 2 - 6
-    blocks = [
-        _sig_block("Diving supervisor", job.get("supervisor"),
-                   "I have reviewed this plan and the findings above and decide whether the "
-                   "dive proceeds.", col),
-        _sig_block(f"Client's representative ({_text(job.get('client'))})", None,
-                   "I have received this plan and its findings.", col),
-    ]
-    for name in _signers(record):
-        blocks.append(_sig_block("Diver's acknowledgement", name,
-                                 "I have been briefed on this plan, its schedules and the "
-                                 "emergency procedures, and I know of nothing that makes me "
-                                 "unfit to dive.", col))
-    rows = [blocks[i : i + 2] + ([""] if len(blocks[i : i + 2]) == 1 else [])
-            for i in range(0, len(blocks), 2)]
-    out: list[Flowable] = [CondPageBreak(180), para("Signatures", H2)]
-    table = Table(rows, colWidths=[width / 2, width / 2])
-    table.setStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 0),
-                    ("BOTTOMPADDING", (0, 0), (-1, -1), 8),
-                    ("FONTNAME", (0, 0), (-1, -1), REGULAR)])
-    out.append(table)
-    if signer is not None:
-        kind = ("a self-signed certificate: compare its fingerprint with the one the supervisor "
-                "published; trust in the certificate is not checked by this tool"
-                if signer.self_signed else "a certificate issued by another party")
-        out.append(rich([("Digital signature. ", True), (
-            f"This PDF carries a PDF (PAdES) signature by {signer.name}, and its JSON record a "
-            f"detached CMS signature; certificate SHA-256 fingerprint "
-            f"{signer.fingerprint_sha256}; {kind}. Check both with 'supervisor verify'.",
-            False)], SMALL))
-    else:
-        out.append(rich([("Digital signature. ", True),
-                         ("This copy carries no digital signature.", False)], SMALL))
+    out += information_lines(record, dive.get("id"), width)
     return out

@@ -20,8 +20,8 @@ import io
 from pyhanko.pdf_utils.incremental_writer import IncrementalPdfFileWriter
 from pyhanko.sign import fields, signers
 
+from supervisor.report.blocks import SignerNote
 from supervisor.report.keys import SigningIdentity
-from supervisor.report.sections import SignerNote
 
 FIELD_NAME = "SupervisorSignature"
 DIGEST = "sha256"

@@ -7,6 +7,7 @@ rules: the page must photocopy and fax legibly.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from contextvars import ContextVar
 
 from reportlab.lib import colors
 from reportlab.lib.styles import ParagraphStyle
@@ -22,8 +23,12 @@ PANEL_FILL = colors.Color(0.96, 0.96, 0.96)
 
 BODY = ParagraphStyle("body", fontName=REGULAR, fontSize=8.5, leading=11)
 SMALL = ParagraphStyle("small", parent=BODY, fontSize=7.2, leading=9)
+TINY_CELL = ParagraphStyle("tiny-cell", parent=BODY, fontSize=6.6, leading=8)
+TINY = ParagraphStyle("tiny", parent=BODY, fontSize=6.4, leading=7.8, leftIndent=8,
+                      firstLineIndent=-8, spaceAfter=1)
 CELL = ParagraphStyle("cell", parent=BODY, fontSize=7.6, leading=9.4)
 CELL_BOLD = ParagraphStyle("cell-bold", parent=CELL, fontName=BOLD)
+ITEM = ParagraphStyle("item", parent=CELL, fontSize=7.4, leading=9)
 TITLE = ParagraphStyle("title", parent=BODY, fontName=BOLD, fontSize=16, leading=20,
                        spaceAfter=2)
 SUBTITLE = ParagraphStyle("subtitle", parent=BODY, fontSize=10.5, leading=13, spaceAfter=8)
@@ -34,14 +39,28 @@ H3 = ParagraphStyle("h3", parent=BODY, fontName=BOLD, fontSize=9, leading=11.5,
 VERDICT = ParagraphStyle("verdict", parent=BODY, fontName=BOLD, fontSize=14, leading=17)
 
 
+#: Longest text of one paragraph piece while laying out the fallback rendering
+#: (:func:`supervisor.report.pdf.render_pdf`); ``None`` prints every text in full.
+TEXT_LIMIT: ContextVar[int | None] = ContextVar("supervisor_report_text_limit", default=None)
+CUT_NOTE = " … [cut here; the full text is in the JSON record]"
+
+
+def _limited(text: object) -> object:
+    limit = TEXT_LIMIT.get()
+    if limit is None or text is None:
+        return text
+    value = str(text)
+    return value if len(value) <= limit else value[:limit] + CUT_NOTE
+
+
 def para(text: object, style: ParagraphStyle = BODY, *, bold: bool = False) -> Paragraph:
     """A paragraph that prints ``text`` literally (escaped, font fallback applied)."""
-    return Paragraph(markup("" if text is None else text, bold=bold), style)
+    return Paragraph(markup("" if text is None else _limited(text), bold=bold), style)
 
 
 def rich(parts: Sequence[tuple[object, bool]], style: ParagraphStyle = BODY) -> Paragraph:
     """A paragraph of several literal pieces, each ``(text, bold)``."""
-    return Paragraph("".join(markup(t, bold=b) for t, b in parts), style)
+    return Paragraph("".join(markup(_limited(t), bold=b) for t, b in parts), style)
 
 
 def grid(
@@ -52,8 +71,14 @@ def grid(
     repeat: bool = True,
     extra: Sequence[tuple[object, ...]] = (),
 ) -> Table:
-    """A ruled table; the first row is shaded and repeated on a new page when ``header``."""
-    table = Table(rows, colWidths=list(widths), repeatRows=1 if header and repeat else 0)
+    """A ruled table; the first row is shaded and repeated on a new page when ``header``.
+
+    Rows may split across pages (``splitInRow``), so a cell taller than a page
+    (a very long text, a schedule of many stops) flows on instead of stopping
+    the layout.
+    """
+    table = Table(rows, colWidths=list(widths), repeatRows=1 if header and repeat else 0,
+                  splitInRow=1)
     commands: list[tuple[object, ...]] = [
         ("FONTNAME", (0, 0), (-1, -1), REGULAR),  # for plain-string cells (reportlab: Helvetica)
         ("GRID", (0, 0), (-1, -1), 0.4, RULE),

@@ -58,6 +58,7 @@ class ChecklistItem:
     modes: tuple[str, ...]
     applies_when: str | None = None
     status_note: str | None = None
+    stated_by: tuple[str, ...] = ()
 
     def to_json(self) -> dict[str, object]:
         """Return the item as a JSON-ready dict."""
@@ -69,6 +70,7 @@ class ChecklistItem:
             "source_status": self.source_status,
             "status_note": self.status_note,
             "applies_when": self.applies_when,
+            "stated_by": list(self.stated_by),
         }
 
 
@@ -179,6 +181,11 @@ def load_checklist(base: Path | None = None) -> Checklist:
             raise TemplateError(
                 f"{where} ({item_id}): 'modes' must be a non-empty subset of {MODES}"
             )
+        stated_by = entry.get("stated_by", [])
+        if not isinstance(stated_by, list) or not all(
+                isinstance(p, str) and p.strip() for p in stated_by):
+            raise TemplateError(f"{where} ({item_id}): 'stated_by' must list plan paths such as "
+                                "'site.resuscitator'")
         items.append(
             ChecklistItem(
                 id=item_id,
@@ -189,6 +196,7 @@ def load_checklist(base: Path | None = None) -> Checklist:
                 modes=tuple(modes),
                 applies_when=_text(entry, "applies_when", where, required=False),
                 status_note=_text(entry, "status_note", where, required=False),
+                stated_by=tuple(stated_by),
             )
         )
     return Checklist(
@@ -199,8 +207,17 @@ def load_checklist(base: Path | None = None) -> Checklist:
     )
 
 
-def load_cautions(base: Path | None = None) -> tuple[str, ...]:
-    """Load and validate ``cautions.toml``.
+@dataclass(frozen=True)
+class Caution:
+    """One caution, and the check's caution texts it already says (printed once)."""
+
+    id: str
+    text: str
+    covers: tuple[str, ...] = ()
+
+
+def load_caution_entries(base: Path | None = None) -> tuple[Caution, ...]:
+    """Load and validate ``cautions.toml`` with each caution's ``covers`` list.
 
     Parameters
     ----------
@@ -209,8 +226,8 @@ def load_cautions(base: Path | None = None) -> tuple[str, ...]:
 
     Returns
     -------
-    tuple of str
-        The caution texts in their printed order.
+    tuple of Caution
+        In their printed order.
 
     Raises
     ------
@@ -223,9 +240,26 @@ def load_cautions(base: Path | None = None) -> tuple[str, ...]:
     entries = data.get("cautions")
     if not isinstance(entries, list) or not entries:
         raise TemplateError("cautions.toml: needs at least one [[cautions]] entry")
-    texts = []
+    out = []
     for n, entry in enumerate(entries, start=1):
+        where = f"cautions.toml caution {n}"
         if not isinstance(entry, dict):
-            raise TemplateError(f"cautions.toml caution {n}: must be a table")
-        texts.append(str(_text(entry, "text", f"cautions.toml caution {n}")))
-    return tuple(texts)
+            raise TemplateError(f"{where}: must be a table")
+        covers = entry.get("covers", [])
+        if not isinstance(covers, list) or not all(isinstance(c, str) for c in covers):
+            raise TemplateError(f"{where}: 'covers' must list caution texts")
+        out.append(Caution(id=str(entry.get("id", n)), text=str(_text(entry, "text", where)),
+                           covers=tuple(covers)))
+    return tuple(out)
+
+
+def load_cautions(base: Path | None = None) -> tuple[str, ...]:
+    """Load and validate ``cautions.toml``: the caution texts in their printed order.
+
+    Raises
+    ------
+    TemplateError
+        If the file is missing, has the wrong schema or holds no caution.
+    """
+    return tuple(c.text for c in load_caution_entries(base))
+

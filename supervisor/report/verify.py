@@ -1,26 +1,33 @@
-"""Check a signed checklist PDF or JSON record: valid, who signed, when, changed or not.
+"""Check a signed checklist PDF or JSON record: intact, who signed, trusted, what it says.
 
-Integrity is checked strictly; trust is not checked at all.
-
-**PDF.**  Exactly one signature, whose byte range starts at byte 0 and ends
-at the last byte of the file, so nothing was appended after signing.  The
-gap the byte range leaves out must hold exactly the signature's DER bytes in
-hexadecimal, of one letter case, padded with zeros: this closes the one
-region of a signed PDF that a PDF signature does not itself cover (a changed
-padding digit, or a hex digit changed only in case, leaves the signature
-readable and "valid").  pyHanko then checks the digest of the signed range
-and the signature itself, and that the signed revision is the whole file.
+**PDF.**  The signatures are read from the PDF's structure (pyHanko's
+reader), never by searching the bytes, so text a user typed into the plan
+cannot pass for a signature.  There must be exactly one, whose byte range
+starts at byte 0 and ends at the last byte of the file, so nothing was
+appended after signing.  The gap the byte range leaves out must hold exactly
+the signature's DER bytes in hexadecimal, of one letter case, padded with
+zeros: this closes the one region of a signed PDF that a PDF signature does
+not itself cover (a changed padding digit, or a hex digit changed only in
+case, leaves the signature readable and "valid").  pyHanko then checks the
+digest of the signed range and the signature itself, and that the signed
+revision is the whole file.
 
 **JSON.**  The detached CMS signature ``<file>.sig`` must be canonical DER
 with no trailing bytes, and must verify over the exact bytes of the JSON
 file, certificate binding included.
 
-**Trust.**  Checklists are signed with self-signed certificates.  A valid
-signature proves the file has not changed since someone holding that key
-signed it; it does not prove who that was.  The report gives the signer's
-name and certificate fingerprint and says whether the certificate is
-self-signed; compare the fingerprint with the one the supervisor published,
-or pass that certificate with ``--cert`` to require it.
+**Trust.**  An intact signature proves the file has not changed since
+someone holding that key signed it, not that this person may approve dives.
+The signer is *trusted* when its certificate is the one given with
+``--cert`` (a one-off check) or is in a keyring of trusted supervisor
+certificates (:mod:`supervisor.report.keyring`).  An intact signature by
+anyone else is reported as ``untrusted`` (exit status 3), never as valid.
+
+**What was signed.**  The report gives the checklist's verdict and counts
+(from the PDF's keywords, or recomputed from the JSON record's findings, the
+worse of stated and recomputed), and the plan's supervisor beside the
+signer, so a valid signature on a plan that does not conform, or by someone
+other than the plan's supervisor, cannot read as approval.
 """
 
 from __future__ import annotations
@@ -31,9 +38,10 @@ import hashlib
 import io
 import json
 import re
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Literal
+from typing import Any, Literal
 
 from asn1crypto import cms
 from asn1crypto import x509 as asn1_x509
@@ -47,14 +55,17 @@ from pyhanko.sign.validation import (
 )
 from pyhanko_certvalidator import ValidationContext
 
-from supervisor.errors import InputError
+from supervisor.report.formatting import VERDICT_LABEL, count_findings, effective_verdict
+from supervisor.report.keyring import Keyring, load_certificate
 from supervisor.report.keys import fingerprint, is_self_signed, subject_name
-from supervisor.report.pdf import KEYWORD_PREFIX
+from supervisor.report.pdf_meta import read_keywords, same_person
+from supervisor.text import printable
 
-Status = Literal["valid", "invalid", "unreadable"]
-EXIT = {"valid": 0, "invalid": 1, "unreadable": 2}
-
-_BYTE_RANGE = re.compile(rb"/ByteRange\s*\[\s*(\d+)\s+(\d+)\s+(\d+)\s+(\d+)\s*\]")
+Status = Literal["valid", "untrusted", "invalid", "unreadable"]
+#: Exit status of ``supervisor verify`` per outcome (3: intact, signer not trusted).
+EXIT = {"valid": 0, "invalid": 1, "unreadable": 2, "untrusted": 3}
+_HEAD = {"valid": "VALID", "untrusted": "UNTRUSTED SIGNER", "invalid": "INVALID",
+         "unreadable": "UNREADABLE"}
 
 
 @dataclass
@@ -72,44 +83,63 @@ class Verification:
     document_sha256: str | None = None
     job_title: str | None = None
     notes: list[str] = field(default_factory=list)
+    trust: str | None = None
+    plan_supervisor: str | None = None
+    verdict: str | None = None
+    counts: dict[str, int] | None = None
 
     @property
     def exit_code(self) -> int:
-        """0 valid, 1 invalid or changed, 2 unreadable."""
+        """0 valid and trusted, 1 invalid or changed, 2 unreadable, 3 intact but untrusted."""
         return EXIT[self.status]
 
+    def verdict_text(self) -> str:
+        """``"NEEDS REVIEW (0 fail, 9 warn, 12 info, 103 pass)"`` or why it is unknown."""
+        if self.verdict is None:
+            return "not recorded in this file; read page 1 of the checklist"
+        label = VERDICT_LABEL.get(self.verdict, self.verdict)
+        if not self.counts:
+            return label
+        c = self.counts
+        return (f"{label} ({c.get('fail', 0)} fail, {c.get('warn', 0)} warn, "
+                f"{c.get('info', 0)} info, {c.get('pass', 0)} pass)")
+
     def lines(self) -> list[str]:
-        """The report as printed by ``supervisor verify``."""
-        head = {"valid": "VALID", "invalid": "INVALID", "unreadable": "UNREADABLE"}[self.status]
-        out = [f"{head}: {self.path} ({self.kind}): {self.reason}"]
+        """The report as printed by ``supervisor verify``, every line terminal-safe."""
+        head = f"{_HEAD[self.status]}: {self.path} ({self.kind}): {self.reason}"
+        if self.status in ("valid", "untrusted") and self.verdict is not None:
+            head += f"; checklist verdict {VERDICT_LABEL.get(self.verdict, self.verdict)}"
+        out = [head]
         if self.signer is not None:
             out.append(f"  signed by:        {self.signer}")
+        if self.plan_supervisor is not None and self.signer is not None:
+            same = same_person(self.signer, self.plan_supervisor)
+            out.append(f"  plan supervisor:  {self.plan_supervisor}"
+                       + ("" if same else " (NOT the signer: signed in place of the plan's "
+                                          "supervisor)"))
         if self.fingerprint_sha256:
-            out.append(f"  certificate:      SHA-256 {self.fingerprint_sha256}")
-        if self.self_signed is not None:
-            out.append("  trust:            " + (
-                "self-signed certificate; trust is not checked (compare the fingerprint with "
-                "the one the supervisor published)" if self.self_signed else
-                "certificate issued by another party; its chain of trust is not checked"))
+            out.append(f"  certificate:      SHA-256 {self.fingerprint_sha256}"
+                       + (" (self-signed)" if self.self_signed else ""))
+        if self.trust is not None:
+            out.append(f"  trust:            {self.trust}")
         if self.signed_at is not None:
             out.append(f"  signed at:        {self.signed_at.astimezone(dt.UTC):%Y-%m-%d %H:%M:%S}"
                        " UTC (signer's clock)")
         if self.job_title:
             out.append(f"  job:              {self.job_title}")
+        if self.status in ("valid", "untrusted"):
+            out.append(f"  checklist:        {self.verdict_text()}")
+            if self.verdict == "does-not-conform":
+                out.append("  note: the plan does NOT conform; a valid signature records who "
+                           "signed it, not that the dives may proceed as planned")
         if self.document_sha256:
             out.append(f"  document sha256:  {self.document_sha256}")
         out += [f"  note: {n}" for n in self.notes]
-        return out
+        return [printable(line) for line in out]
 
 
 class _Invalid(Exception):
     """Raised inside the checks; its message becomes the reason."""
-
-
-def _load_cert(data: bytes) -> x509.Certificate:
-    if b"-----BEGIN" in data:
-        return x509.load_pem_x509_certificate(data)
-    return x509.load_der_x509_certificate(data)
 
 
 def load_expected_certificate(path: Path) -> x509.Certificate:
@@ -120,17 +150,11 @@ def load_expected_certificate(path: Path) -> x509.Certificate:
     InputError
         If the file cannot be read or holds no certificate.
     """
-    try:
-        return _load_cert(path.read_bytes())
-    except OSError as exc:
-        raise InputError("--cert", f"cannot read {path} ({exc.strerror or exc})") from None
-    except ValueError:
-        raise InputError("--cert", f"{path} holds no X.509 certificate; expected the "
-                                   ".cert.pem file written by 'supervisor keys new'") from None
+    return load_certificate(path, field="--cert")
 
 
 def _identity(result: Verification, cert: asn1_x509.Certificate,
-              expected: x509.Certificate | None) -> None:
+              expected: x509.Certificate | None) -> x509.Certificate:
     pyca = x509.load_der_x509_certificate(cert.dump())
     result.signer = subject_name(pyca)
     result.fingerprint_sha256 = fingerprint(pyca)
@@ -144,6 +168,28 @@ def _identity(result: Verification, cert: asn1_x509.Certificate,
             raise _Invalid("the reported signing time is outside the certificate's validity")
     if pyca.not_valid_after_utc < dt.datetime.now(dt.UTC):
         result.notes.append(f"the certificate expired on {pyca.not_valid_after_utc:%Y-%m-%d}")
+    return pyca
+
+
+def _judge_trust(result: Verification, cert: x509.Certificate,
+                 expected: x509.Certificate | None, keyrings: Sequence[Keyring]) -> None:
+    """Mark an intact result trusted (valid) or untrusted, saying why."""
+    if expected is not None:  # _identity already refused any other certificate
+        result.trust = "trusted for this check: the certificate given with --cert"
+        return
+    for ring in keyrings:
+        entry = ring.find(cert)
+        if entry is not None:
+            result.trust = f"trusted: in the {ring.label} {ring.path} (added {entry.added_on})"
+            return
+    result.status = "untrusted"
+    where = "; ".join(f"{r.label} {r.path}" + ("" if r.exists else " (none yet)")
+                      for r in keyrings) or "no keyring"
+    result.reason = ("signature intact, but the signer's certificate is in no keyring of "
+                     "trusted supervisors: NOT an approval")
+    result.trust = (f"not trusted; looked in: {where}. If this is the supervisor's certificate "
+                    "(compare the fingerprint with the one they published), add it with "
+                    "'supervisor keys trust CERT', or check once with --cert CERT")
 
 
 def _trust_self(cert: asn1_x509.Certificate) -> ValidationContext:
@@ -208,24 +254,57 @@ def _check_gap(data: bytes, gap_start: int, gap_end: int) -> bytes:
     return der
 
 
-def _verify_pdf(result: Verification, data: bytes, expected: x509.Certificate | None) -> None:
-    ranges = _BYTE_RANGE.findall(data)
-    if not ranges:
+def _info(reader: PdfFileReader) -> Mapping[str, Any]:
+    info = reader.trailer_view.get("/Info")
+    if info is not None and hasattr(info, "get_object"):
+        info = info.get_object()
+    return info if isinstance(info, Mapping) else {}
+
+
+def pdf_facts(data: bytes) -> tuple[bool, str | None]:
+    """Whether a PDF's structure holds a signature (pyHanko's reader), and its job title.
+
+    Parameters
+    ----------
+    data : bytes
+        A checklist PDF.
+
+    Returns
+    -------
+    tuple
+        ``True`` when the PDF holds at least one signature field with a
+        signature (read from its structure, never by searching the bytes),
+        and the job title from the document title (``None`` without one).
+
+    Raises
+    ------
+    Exception
+        Whatever pyHanko raises for a file it cannot parse.
+    """
+    reader = PdfFileReader(io.BytesIO(data), strict=True)
+    title = str(_info(reader).get("/Title", ""))
+    prefix = "Pre-dive checklist: "
+    return bool(reader.embedded_signatures), (title[len(prefix):]
+                                              if title.startswith(prefix) else None)
+
+
+def _verify_pdf(result: Verification, data: bytes,
+                expected: x509.Certificate | None) -> x509.Certificate:
+    reader = PdfFileReader(io.BytesIO(data), strict=True)
+    sigs = reader.embedded_signatures
+    if not sigs:
         raise _Invalid("the PDF carries no digital signature")
-    if len(ranges) != 1:
-        raise _Invalid(f"the PDF carries {len(ranges)} signatures; a checklist has exactly one")
-    a, b, c, d = (int(x) for x in ranges[0])
+    if len(sigs) != 1:
+        raise _Invalid(f"the PDF carries {len(sigs)} signatures; a checklist has exactly one")
+    sig = sigs[0]
+    try:
+        a, b, c, d = (int(x) for x in sig.byte_range)
+    except (TypeError, ValueError):
+        raise _Invalid("the signature's byte range is not four numbers") from None
     if a != 0 or not 0 < b < c or c + d != len(data):
         raise _Invalid("the signed byte range does not cover the whole file: something was "
                        "added or removed after signing")
     _check_gap(data, b, c)
-    reader = PdfFileReader(io.BytesIO(data), strict=True)
-    sigs = reader.embedded_signatures
-    if len(sigs) != 1:
-        raise _Invalid(f"the PDF carries {len(sigs)} signatures; a checklist has exactly one")
-    sig = sigs[0]
-    if list(sig.byte_range) != [a, b, c, d]:
-        raise _Invalid("the signature's byte range is not the one found in the file")
     result.signed_at = sig.self_reported_timestamp
     status = validate_pdf_signature(sig, _trust_self(sig.signer_cert))
     if not status.intact:
@@ -234,27 +313,39 @@ def _verify_pdf(result: Verification, data: bytes, expected: x509.Certificate | 
         raise _Invalid("the signature value does not verify")
     if status.coverage != SignatureCoverageLevel.ENTIRE_FILE:
         raise _Invalid("the signature does not cover the whole file")
-    info = reader.trailer_view.get("/Info")
-    if info is not None and hasattr(info, "get_object"):
-        info = info.get_object()
-    keywords = str(info.get("/Keywords", "")) if info is not None else ""
-    for word in keywords.replace(",", " ").split():
-        if word.startswith(KEYWORD_PREFIX):
-            result.document_sha256 = word[len(KEYWORD_PREFIX):]
-    title = str(info.get("/Title", "")) if info is not None else ""
+    info = _info(reader)
+    meta = read_keywords(str(info.get("/Keywords", "")))
+    result.document_sha256 = meta.document_sha256
+    result.verdict, result.counts = meta.verdict, meta.counts
+    title = str(info.get("/Title", ""))
     if title:
         result.job_title = title.removeprefix("Pre-dive checklist: ")
-    _identity(result, sig.signer_cert, expected)
+    author = str(info.get("/Author", ""))
+    result.plan_supervisor = author or None
+    return _identity(result, sig.signer_cert, expected)
+
+
+def _record_facts(result: Verification, record: object) -> None:
+    """Title, supervisor, verdict and counts of a JSON checklist record."""
+    if not isinstance(record, dict):
+        return
+    job = record.get("job") if isinstance(record.get("job"), dict) else {}
+    title, supervisor = job.get("title"), job.get("supervisor")
+    result.job_title = title if isinstance(title, str) else None
+    result.plan_supervisor = supervisor if isinstance(supervisor, str) else None
+    findings = record.get("findings")
+    if isinstance(findings, list):
+        counts = count_findings([f for f in findings if isinstance(f, dict)])
+        result.verdict, _ = effective_verdict(record.get("verdict"), counts)
+        result.counts = counts
 
 
 def _verify_json(result: Verification, data: bytes, sig_path: Path,
-                 expected: x509.Certificate | None) -> None:
+                 expected: x509.Certificate | None) -> x509.Certificate:
     result.document_sha256 = hashlib.sha256(data).hexdigest()
     try:
-        record = json.loads(data.decode("utf-8"))
-        title = record.get("job", {}).get("title") if isinstance(record, dict) else None
-        result.job_title = title if isinstance(title, str) else None
-    except (UnicodeDecodeError, ValueError, AttributeError):
+        _record_facts(result, json.loads(data.decode("utf-8")))
+    except (UnicodeDecodeError, ValueError, RecursionError):
         result.notes.append("the JSON file no longer parses")
     try:
         sig = sig_path.read_bytes()
@@ -262,12 +353,12 @@ def _verify_json(result: Verification, data: bytes, sig_path: Path,
         raise _Invalid(f"not signed: no detached signature {sig_path.name} beside it") from None
     except OSError as exc:
         raise _Invalid(f"cannot read the signature {sig_path} ({exc.strerror or exc})") from None
-    _check_detached(result, data, sig, f"signature file {sig_path.name}", "JSON file",
-                    expected)
+    return _check_detached(result, data, sig, f"signature file {sig_path.name}", "JSON file",
+                           expected)
 
 
 def _check_detached(result: Verification, data: bytes, sig: bytes, sig_name: str,
-                    content: str, expected: x509.Certificate | None) -> None:
+                    content: str, expected: x509.Certificate | None) -> x509.Certificate:
     try:
         info = cms.ContentInfo.load(sig, strict=True)
         if info.dump(force=True) != sig:
@@ -294,7 +385,7 @@ def _check_detached(result: Verification, data: bytes, sig: bytes, sig_name: str
         raise _Invalid(f"the {content} was changed after signing (digest mismatch)")
     if not status.valid:
         raise _Invalid("the signature value does not verify")
-    _identity(result, status.signing_cert, expected)
+    return _identity(result, status.signing_cert, expected)
 
 
 def verify_detached(data: bytes, signature: bytes, *,
@@ -348,7 +439,11 @@ def _kind(path: Path, head: bytes) -> Literal["pdf", "json", "sig", "unknown"]:
     return "unknown"
 
 
-def verify_file(path: Path, *, expected: x509.Certificate | None = None) -> Verification:
+_INTACT = "signature intact; nothing changed after signing"
+
+
+def verify_file(path: Path, *, expected: x509.Certificate | None = None,
+                keyrings: Sequence[Keyring] = ()) -> Verification:
     """Check a signed checklist PDF, or a JSON record with its ``.sig`` beside it.
 
     Parameters
@@ -357,14 +452,20 @@ def verify_file(path: Path, *, expected: x509.Certificate | None = None) -> Veri
         ``<job>-checklist.pdf``, ``<job>-checklist.json`` or
         ``<job>-checklist.json.sig``.
     expected : x509.Certificate, optional
-        Require the signature to be made with this certificate.
+        Require the signature to be made with this certificate, and trust it
+        for this check.
+    keyrings : sequence of Keyring
+        Keyrings of trusted supervisor certificates, used when ``expected``
+        is not given.
 
     Returns
     -------
     Verification
-        ``status`` is ``"valid"``, ``"invalid"`` (not signed, changed after
-        signing, or signed by another certificate) or ``"unreadable"`` (the
-        file cannot be read, or is neither a PDF nor a JSON record).
+        ``status`` is ``"valid"`` (intact, signer trusted), ``"untrusted"``
+        (intact, signer in no keyring), ``"invalid"`` (not signed, changed
+        after signing, or signed by another certificate than ``expected``)
+        or ``"unreadable"`` (the file cannot be read, or is neither a PDF nor
+        a JSON record).
     """
     json_path = path
     if path.name.lower().endswith(".json.sig"):
@@ -379,11 +480,13 @@ def verify_file(path: Path, *, expected: x509.Certificate | None = None) -> Veri
         return Verification(path, "unknown", "unreadable",
                             "neither a PDF nor a JSON checklist record")
     if kind == "pdf":
-        result = Verification(path, "pdf", "valid", "")
-        if b"%PDF-" not in data[:1024] and b"/ByteRange" not in data:
+        result = Verification(path, "pdf", "valid", _INTACT)
+        # a PDF starts with its header and ends with its end-of-file marker; a signed PDF
+        # with either changed is a changed file (invalid), anything else is not a PDF
+        if b"%PDF-" not in data[:1024] and not data[-32:].rstrip().endswith(b"%%EOF"):
             return Verification(path, "pdf", "unreadable", "not a PDF file")
         try:
-            _verify_pdf(result, data, expected)
+            cert = _verify_pdf(result, data, expected)
         except _Invalid as exc:
             result.status, result.reason = "invalid", str(exc)
             return result
@@ -391,13 +494,13 @@ def verify_file(path: Path, *, expected: x509.Certificate | None = None) -> Veri
             result.status = "invalid"
             result.reason = f"the PDF is damaged or was changed after signing ({exc})"
             return result
-        result.reason = "signature intact; nothing changed after signing"
-        return result
-    result = Verification(json_path, "json", "valid", "")
-    try:
-        _verify_json(result, data, json_path.with_name(json_path.name + ".sig"), expected)
-    except _Invalid as exc:
-        result.status, result.reason = "invalid", str(exc)
-        return result
-    result.reason = "signature intact; nothing changed after signing"
+    else:
+        result = Verification(json_path, "json", "valid", _INTACT)
+        try:
+            cert = _verify_json(result, data, json_path.with_name(json_path.name + ".sig"),
+                                expected)
+        except _Invalid as exc:
+            result.status, result.reason = "invalid", str(exc)
+            return result
+    _judge_trust(result, cert, expected, keyrings)
     return result

@@ -198,10 +198,14 @@ def test_schemas_print(capsys) -> None:
 def test_signed_checklist_is_recorded_with_its_signer(capsys, tmp_path: Path,
                                                       monkeypatch: pytest.MonkeyPatch) -> None:
     monkeypatch.setenv("SUPERVISOR_KEY_PASSPHRASE", PASS)
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))  # a private keyring
+    monkeypatch.delenv("SUPERVISOR_COMPANY_KEYRING", raising=False)
     db = str(tmp_path / "r.sqlite3")
     key = tmp_path / "mara.p12"
     assert run(["keys", "new", "--name", "Mara Okonjo (fictional)", "--out", str(key)],
                capsys)[0] == 0
+    # the signer is trusted (per-user keyring), so the record says "valid", not "untrusted"
+    assert run(["keys", "trust", str(tmp_path / "mara.cert.pem")], capsys)[0] == 0
     out_dir = tmp_path / "cl"
     code, _out, err = run(["checklist", str(EX / "demo-job.toml"), "--out", str(out_dir),
                            "--sign", str(key)], capsys)
@@ -233,3 +237,23 @@ def test_elapsed_time_log_needs_its_start(recorded: str, capsys, tmp_path: Path)
     assert code == 0, err
     with RecordStore.open(recorded) as store:
         assert store.get(4).occurred_at == "2026-06-03T08:40:00"
+
+
+def test_checklist_by_an_untrusted_signer_is_recorded_as_untrusted(
+        capsys, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    """An intact signature by a signer in no keyring is recorded, with that status."""
+    monkeypatch.setenv("SUPERVISOR_KEY_PASSPHRASE", PASS)
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "config"))
+    monkeypatch.delenv("SUPERVISOR_COMPANY_KEYRING", raising=False)
+    db = str(tmp_path / "r.sqlite3")
+    key = tmp_path / "ivo.p12"
+    assert run(["keys", "new", "--name", "Ivo Strand (fictional)", "--out", str(key)],
+               capsys)[0] == 0
+    code, _out, err = run(["checklist", str(EX / "demo-job.toml"), "--out",
+                           str(tmp_path / "cl"), "--sign", str(key)], capsys)
+    assert code in (0, 1), err
+    checklist = next((tmp_path / "cl").glob("*-checklist.json"))
+    code, _out, err = run(["records", "add", "checklist", str(checklist)], capsys, db)
+    assert code == 0, err
+    with RecordStore.open(db) as store:
+        assert store.get(3).body["signature_status"] == "untrusted"

@@ -193,3 +193,19 @@ def signed_checklist(tmp_path_factory: pytest.TempPathFactory,
     out = tmp_path_factory.mktemp("signed")
     return make_checklist(_check(hashlib.sha256(plan).hexdigest()), plan, out,
                           identity=identity)
+
+
+@pytest.fixture(scope="session")
+def trusted(tmp_path_factory: pytest.TempPathFactory,
+            identity_files: tuple[Path, str]) -> Any:
+    """A company keyring holding the session key's certificate (a list for ``keyrings=``)."""
+    from supervisor.report import keyring
+    from supervisor.report.keys import certificate_path
+
+    path = tmp_path_factory.mktemp("keyring") / "company.toml"
+    empty = keyring.load_keyring(path, label="company keyring", field="--keyring",
+                                 must_exist=False)
+    cert = keyring.load_certificate(certificate_path(identity_files[0]), field="CERT")
+    keyring.trust(empty, cert)
+    return [keyring.load_keyring(path, label="company keyring", field="--keyring",
+                                 must_exist=True)]

@@ -32,11 +32,11 @@ def test_unsigned_checklist_files(check_result: dict[str, Any], plan_bytes: byte
     assert verify_file(files.pdf).status == "invalid"  # not signed
 
 
-def test_signed_checklist_verifies(signed_checklist: ChecklistFiles) -> None:
+def test_signed_checklist_verifies(signed_checklist: ChecklistFiles, trusted: Any) -> None:
     assert signed_checklist.signature is not None
     assert signed_checklist.signature.name.endswith("-checklist.json.sig")
     for path in (signed_checklist.pdf, signed_checklist.json, signed_checklist.signature):
-        result = verify_file(path)
+        result = verify_file(path, keyrings=trusted)
         assert result.status == "valid", result.reason
         assert result.signer == "Dana Whitcombe"
         assert result.document_sha256 == signed_checklist.document_sha256
@@ -91,3 +91,33 @@ def test_out_must_be_a_usable_folder(check_result: dict[str, Any], plan_bytes: b
         make_checklist(check_result, plan_bytes, a_file)
     with pytest.raises(InputError, match="does not exist"):
         make_checklist(check_result, plan_bytes, tmp_path / "a" / "b")
+
+
+def test_another_jobs_unsigned_checklist_with_the_same_file_name_is_refused(
+        check_result: dict[str, Any], plan_bytes: bytes, tmp_path: Path) -> None:
+    """Issue 13: "Pier 7 — Zoë" and "Pier 7: Zoe" give one file name; neither replaces the other."""
+    check_result["job"]["title"] = "Pier 7 — Zoë"
+    first = make_checklist(check_result, plan_bytes, tmp_path)
+    before = {p.name: p.read_bytes() for p in tmp_path.iterdir()}
+    check_result["job"]["title"] = "Pier 7: Zoe"
+    with pytest.raises(InputError, match="unsigned checklist of another job .'Pier 7 — Zoë'.") \
+            as err:
+        make_checklist(check_result, plan_bytes, tmp_path)
+    assert err.value.field == "--out"
+    assert {p.name: p.read_bytes() for p in tmp_path.iterdir()} == before
+    # only the JSON left behind: still refused, by its recorded title
+    first.pdf.unlink()
+    with pytest.raises(InputError, match="another job"):
+        make_checklist(check_result, plan_bytes, tmp_path)
+    # the same job (same title) is regenerated
+    check_result["job"]["title"] = "Pier 7 — Zoë"
+    assert make_checklist(check_result, plan_bytes, tmp_path).pdf.exists()
+
+
+@pytest.mark.parametrize("name", ["pdf", "json"])
+def test_a_file_that_is_not_a_checklist_is_never_replaced(
+        check_result: dict[str, Any], plan_bytes: bytes, tmp_path: Path, name: str) -> None:
+    (tmp_path / f"harbour-outfall-inspection-checklist.{name}").write_bytes(b"my notes")
+    with pytest.raises(InputError, match="is not a checklist .* so it is not replaced"):
+        make_checklist(check_result, plan_bytes, tmp_path)
+    assert [p.read_bytes() for p in tmp_path.iterdir()] == [b"my notes"]

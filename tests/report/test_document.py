@@ -132,3 +132,15 @@ def test_write_atomically_cleans_up_when_rename_fails(tmp_path: Path,
         document.write_atomically([(old, b"new", None)])
     assert old.read_bytes() == b"previous"
     assert [p.name for p in tmp_path.iterdir()] == ["old.pdf"]
+
+
+def test_cautions_are_printed_once(check_result: dict[str, Any], plan_bytes: bytes) -> None:
+    """A check caution that a bundled caution covers, or repeats in other case, is not added."""
+    from supervisor.check import CAUTIONS
+
+    check_result["cautions"] = [*CAUTIONS, "Demo job: all names and numbers are fictional.",
+                                "DEMO JOB:  all names and numbers are fictional."]
+    cautions = document.build_record(check_result, plan_bytes)["checklist"]["cautions"]
+    assert not set(CAUTIONS) & set(cautions)
+    assert cautions.count("Demo job: all names and numbers are fictional.") == 1
+    assert len(cautions) == len(set(c.casefold() for c in cautions)) == 7

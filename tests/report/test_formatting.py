@@ -104,3 +104,21 @@ def test_fmt_scalar_for_extra_details() -> None:
     assert f.fmt_scalar(stops) == "40/3 air water; 20/12"
     assert f.fmt_scalar({"a": 1, "b": None}) == "a 1, b —"
     assert f.humanize_key("bailout_psig") == ("bailout", "psig")
+
+
+def test_periods_print_each_breathing_period() -> None:
+    periods = [{"gas": "oxygen", "minutes": 30}, {"gas": "air", "minutes": 5},
+               {"gas": "oxygen", "minutes": 23.01}]
+    assert f.fmt_periods(periods) == "O2 30, air 5, O2 23.1 min"  # rounded up like stops
+    assert f.fmt_periods([]) is None and f.fmt_periods(None) is None
+    assert f.fmt_periods([{"gas": "air"}]) == f"air {f.MISSING} min"
+
+
+def test_stops_line() -> None:
+    stops = [{"depth": 50, "minutes": 3, "gas": "air", "place": "water"},
+             {"depth": 40, "minutes": 35, "gas": "oxygen", "place": "chamber",
+              "periods": [{"gas": "oxygen", "minutes": 30}, {"gas": "air", "minutes": 5}]}]
+    assert f.stops_line(stops, "fsw") == ("water 50 fsw 3 min air; chamber 40 fsw 35 min "
+                                          "oxygen (O2 30, air 5 min)")
+    assert f.stops_line([], "msw") == "no decompression stops"
+    assert f.stops_line(None, "msw") == f.NOT_COMPUTED

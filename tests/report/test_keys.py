@@ -108,3 +108,21 @@ def test_certificate_validity_is_enforced(tmp_path: Path) -> None:
 def test_certificate_path() -> None:
     assert keys.certificate_path(Path("a/dana.p12")) == Path("a/dana.cert.pem")
     assert keys.certificate_path(Path("dana")) == Path("dana.cert.pem")
+
+
+@pytest.mark.parametrize("days", [0, -1, 3651, 3_000_000, 10**30])
+def test_validity_period_is_bounded(tmp_path: Path, days: int) -> None:
+    """Issue 13: ``--days 3000000`` ended in OverflowError; now one clear error."""
+    with pytest.raises(InputError, match="expected a whole number of days from 1 to 3650") \
+            as err:
+        keys.new_identity("A Name", tmp_path / "k.p12", PASS, valid_days=days)
+    assert err.value.field == "--days"
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_longest_validity_period(tmp_path: Path) -> None:
+    start = dt.datetime(2030, 1, 1, tzinfo=dt.UTC)
+    files = keys.new_identity("A Name", tmp_path / "k.p12", PASS, valid_days=keys.MAX_DAYS,
+                              now=start)
+    cert = x509.load_pem_x509_certificate(files.certificate.read_bytes())
+    assert cert.not_valid_after_utc - cert.not_valid_before_utc == dt.timedelta(days=3650)

@@ -8,8 +8,8 @@ import pytest
 from reportlab.platypus import Paragraph, Table
 
 from supervisor.report import sections
-from supervisor.report.document import build_record
 from supervisor.report.formatting import NOT_COMPUTED
+from supervisor.report.units import UnitSystem
 
 
 def _texts(flowables: Any) -> list[str]:
@@ -25,17 +25,9 @@ def _texts(flowables: Any) -> list[str]:
                     out += _texts(cell)
         elif isinstance(item, list | tuple):
             out += _texts(item)
+        elif hasattr(item, "_content"):  # KeepTogether, BalancedColumns
+            out += _texts(item._content)
     return out
-
-
-def test_signers_are_each_diver_then_standby_without_duplicates(
-        check_result: dict[str, Any]) -> None:
-    check_result["team"].append({"name": "Morgan Ellery", "role": ["diver", "tender"],
-                                 "first_aid_cpr": True})
-    check_result["team"].append({"name": "Kit Jarvis", "role": ["standby-diver"],
-                                 "first_aid_cpr": True})
-    assert sections._signers(check_result) == ["Morgan Ellery", "Sam Okafor", "Kit Jarvis"]
-    assert sections._signers({"dives": [], "team": []}) == [None]
 
 
 def test_stops_table_missing_empty_and_filled() -> None:
@@ -116,17 +108,21 @@ def test_contingency_reference_and_model_gaps(check_result: dict[str, Any]) -> N
     assert "no decompression stops" not in text
     assert _SURD_REASON in text and "outside the table" in text
     assert "coefficients could not be loaded" in text
-    assert text.count(NOT_COMPUTED) == 4  # model and reference of "deeper" and "oxygen failure"
+    # model and reference of "deeper" and "oxygen failure" (the overrun's CNS is missing too)
+    assert sum(t.count(NOT_COMPUTED) for t in text) == 5
+    assert "Reference table: " + NOT_COMPUTED in text
 
 
 def test_oxygen_failure_not_applicable_only_without_oxygen(check_result: dict[str, Any]) -> None:
     dive = check_result["dives"][0]
     text = _texts(sections.contingency_section(dive, check_result, 500)[0]._content)
-    assert "not applicable: the plan breathes no oxygen at its stops" in text
+    assert "Loss of decompression oxygen: not applicable: the plan breathes no oxygen at its " \
+        "stops" in text
+    assert "Loss of decompression oxygen" not in text  # one line, not a third column
     dive["proposed_stops"][-1]["gas"] = "oxygen"
     text = _texts(sections.contingency_section(dive, check_result, 500)[0]._content)
-    assert "not applicable: the plan breathes no oxygen at its stops" not in text
-    assert NOT_COMPUTED in text
+    assert not any("not applicable" in t for t in text)
+    assert "Loss of decompression oxygen" in text and NOT_COMPUTED in text
 
 
 def test_stop_depths_and_minutes_are_rounded() -> None:
@@ -150,10 +146,10 @@ def test_model_margin_ceiling_broken(check_result: dict[str, Any]) -> None:
 def test_gas_supply_short_of_need(check_result: dict[str, Any]) -> None:
     dive = check_result["dives"][0]
     dive["gas_supply"] = {"need_l": 10000, "available_l": 8000}
-    text = _texts(sections.gas_supply_table(dive, 300))
+    text = _texts(sections.gas_supply_table(dive, 300, UnitSystem("msw")))
     assert "0.8 (short of need)" in text
     dive["gas_supply"] = {"need_l": None, "available_l": 8000}
-    assert NOT_COMPUTED in _texts(sections.gas_supply_table(dive, 300))
+    assert NOT_COMPUTED in _texts(sections.gas_supply_table(dive, 300, UnitSystem("msw")))
 
 
 _COMPRESSOR = {"need_l": 15401.0, "available_l": None, "primary_kind": "compressor",
@@ -164,20 +160,39 @@ _COMPRESSOR = {"need_l": 15401.0, "available_l": None, "primary_kind": "compress
                "oxygen_available_l": None}
 
 
-def test_gas_supply_compressor_compares_flow(check_result: dict[str, Any]) -> None:
+def test_gas_supply_compressor_compares_flow_in_litres_and_bar_for_msw(
+        check_result: dict[str, Any]) -> None:
     dive = check_result["dives"][0]
     dive["gas_supply"] = dict(_COMPRESSOR)
-    text = _texts(sections.gas_supply_table(dive, 300))
+    text = _texts(sections.gas_supply_table(dive, 300, UnitSystem("msw")))
     assert NOT_COMPUTED not in text
     row = text.index("primary compressor: delivery against peak flow")
     assert text[row + 1 : row + 4] == ["900 L/min", "344 L/min", "2.62"]
     row = text.index("secondary hp-bank: free gas against the ascent and decompression")
     assert text[row + 1 : row + 4] == ["55459 L", "1900 L", "29.19"]
     row = text.index("bailout cylinder: charge against required")
-    assert text[row + 1 : row + 4] == ["2901 psig", "2531 psig", "1.15"]
+    # 2901 psig x 0.0689475729 bar/psi = 200.0 bar; 2531 psig = 174.5 bar (NIST SP 811 factor)
+    assert text[row + 1 : row + 4] == ["200 bar", "174.5 bar", "1.15"]
     assert "no oxygen stops in the plan" in text
-    assert "need of all counted, whole dive [L]" in text and "15401" in text
-    assert "minimum manifold pressure [psig]" in text
+    details = text[-1]
+    assert "need of all counted, whole dive 15401 L" in details
+    assert "minimum manifold pressure 12.7 bar" in details  # 184 psig
+    assert "psig" not in " ".join(text) and "scf" not in " ".join(text)
+
+
+def test_gas_supply_in_scf_and_psig_for_fsw(check_result: dict[str, Any]) -> None:
+    dive = check_result["dives"][0]
+    dive["gas_supply"] = dict(_COMPRESSOR)
+    text = _texts(sections.gas_supply_table(dive, 300, UnitSystem("fsw")))
+    row = text.index("primary compressor: delivery against peak flow")
+    # 1 ft = 0.3048 m exactly, so 1 ft3 = 28.316846592 L: 900 L/min = 31.8 scfm
+    assert text[row + 1 : row + 4] == ["31.8 scfm", "12.1 scfm", "2.62"]
+    row = text.index("secondary hp-bank: free gas against the ascent and decompression")
+    assert text[row + 1 : row + 4] == ["1959 scf", "67 scf", "29.19"]  # 55459 L, 1900 L
+    row = text.index("bailout cylinder: charge against required")
+    assert text[row + 1 : row + 4] == ["2901 psig", "2531 psig", "1.15"]
+    assert "need of all counted, whole dive 544 scf" in text[-1]
+    assert " L" not in " ".join(text).replace(" L/", "")
 
 
 @pytest.mark.parametrize("missing", ["primary_delivery_lpm", "peak_flow_lpm"])
@@ -185,7 +200,7 @@ def test_gas_supply_compressor_without_figures_is_not_computed(
         check_result: dict[str, Any], missing: str) -> None:
     dive = check_result["dives"][0]
     dive["gas_supply"] = {**_COMPRESSOR, missing: None}
-    text = _texts(sections.gas_supply_table(dive, 300))
+    text = _texts(sections.gas_supply_table(dive, 300, UnitSystem("msw")))
     row = text.index("primary compressor: delivery against peak flow")
     assert text[row + 3] == NOT_COMPUTED
 
@@ -195,7 +210,7 @@ def test_gas_supply_oxygen_needed_but_not_given_is_not_computed(
     dive = check_result["dives"][0]
     dive["proposed_stops"][-1]["gas"] = "oxygen"
     dive["gas_supply"] = dict(_COMPRESSOR)
-    text = _texts(sections.gas_supply_table(dive, 300))
+    text = _texts(sections.gas_supply_table(dive, 300, UnitSystem("msw")))
     row = text.index("decompression oxygen")
     assert text[row + 3] == NOT_COMPUTED
 
@@ -216,34 +231,6 @@ def test_surface_interval_is_stated_for_surface_decompression(
     del dive["model_margin"]["surface_interval_max_gf_percent"]
     dive["model_margin"]["surface_interval_max_gf"] = 0.5
     assert "peak supersaturation 50 %" in _texts(sections.model_margin(dive, check_result))[0]
-
-
-def test_team_lists_roles_and_unstated_training(check_result: dict[str, Any]) -> None:
-    check_result["team"][0]["role"] = ["supervisor", "tender"]
-    text = _texts(sections.team_and_chamber(check_result, 500))
-    assert "supervisor, tender" in text
-    assert "not stated" in text  # Riley Haugen's first_aid_cpr is None
-    assert "depth capability [fsw]" in text and "165" in text
-
-
-def test_checklist_groups_items_with_tick_boxes(check_result: dict[str, Any],
-                                                plan_bytes: bytes) -> None:
-    record = build_record(check_result, plan_bytes)
-    flow = sections.predive_checklist(record, 500)
-    tables = [f for f in flow if isinstance(f, Table)]
-    items = record["checklist"]["modes"][0]["items"]
-    boxes = sum(isinstance(c, sections.TickBox) for t in tables for row in t._cellvalues
-                for c in row)
-    assert boxes == 2 * len(items)  # done and n/a for every item
-    groups = {i["group"] for i in items}
-    assert groups <= set(_texts(flow))
-
-
-def test_signature_section_states_the_signer(check_result: dict[str, Any]) -> None:
-    note = sections.SignerNote("Dana Whitcombe", "AB:CD", self_signed=True)
-    text = " ".join(_texts(sections.signature_section(check_result, 500, note)))
-    assert "PDF (PAdES) signature by Dana Whitcombe" in text
-    assert "AB:CD" in text and "self-signed" in text
 
 
 def test_dive_verdict_counts_its_own_and_job_wide_findings(check_result: dict[str, Any]) -> None:

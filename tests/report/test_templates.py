@@ -122,3 +122,25 @@ def test_wrong_schema_and_missing_file(tmp_path: Path) -> None:
     _write(tmp_path, "cautions.toml", 'schema = "other/1"\n')
     with pytest.raises(TemplateError, match="schema"):
         load_cautions(tmp_path)
+
+
+def test_every_check_caution_is_covered_or_printed_once() -> None:
+    """The check's own cautions (supervisor.check.CAUTIONS) repeat bundled ones: each is covered."""
+    from supervisor.check import CAUTIONS
+    from supervisor.report.templates import load_caution_entries
+
+    covered = {text for c in load_caution_entries() for text in c.covers}
+    assert set(CAUTIONS) <= covered, set(CAUTIONS) - covered
+
+
+def test_stated_by_lists_plan_paths(tmp_path: Path) -> None:
+    items = [i for i in load_checklist().items if i.stated_by]
+    assert {i.id for i in items} >= {"safe-practices-manual", "emergency-contacts", "first-aid",
+                                     "standby-diver", "code-flag-a"}
+    from supervisor.resources import templates_dir
+
+    text = (templates_dir() / "predive-checklist.toml").read_text(encoding="utf-8")
+    _write(tmp_path, "predive-checklist.toml",
+           text.replace('stated_by = ["site.safe_practices_manual"]', "stated_by = [3]"))
+    with pytest.raises(TemplateError, match="'stated_by' must list plan paths"):
+        load_checklist(tmp_path)

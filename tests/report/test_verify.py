@@ -2,16 +2,19 @@
 
 from __future__ import annotations
 
+import json
 import re
 import shutil
 from pathlib import Path
+from typing import Any
 
 import pytest
 from asn1crypto import algos, cms
 from cryptography import x509
 
 from supervisor.report import keys
-from supervisor.report.checklist import ChecklistFiles
+from supervisor.report.checklist import ChecklistFiles, make_checklist
+from supervisor.report.document import record_bytes
 from supervisor.report.signing import sign_detached
 from supervisor.report.verify import load_expected_certificate, verify_file
 
@@ -46,13 +49,41 @@ def _layout(pdf: bytes) -> dict[str, int]:
             "der_end": b + 1 + len(der_digits.group(1))}
 
 
-def test_valid_pdf_reports_signer_time_and_trust(copy: dict[str, Path]) -> None:
-    result = verify_file(copy["pdf"])
+def test_valid_pdf_reports_signer_time_trust_and_verdict(copy: dict[str, Path],
+                                                          trusted: Any) -> None:
+    result = verify_file(copy["pdf"], keyrings=trusted)
     assert result.status == "valid" and result.exit_code == 0
     assert result.signer == "Dana Whitcombe" and result.self_signed is True
     assert result.signed_at is not None and result.job_title == "Harbour outfall inspection"
-    text = "\n".join(result.lines())
-    assert "self-signed certificate; trust is not checked" in text
+    assert result.plan_supervisor == "Dana Whitcombe"
+    # the fixture check: 1 fail, 2 warn, 1 info, 1 pass, does not conform
+    assert result.verdict == "does-not-conform"
+    assert result.counts == {"fail": 1, "warn": 2, "info": 1, "pass": 1}
+    lines = result.lines()
+    assert lines[0].startswith("VALID: ")
+    assert lines[0].endswith("; checklist verdict DOES NOT CONFORM")
+    text = "\n".join(lines)
+    assert f"trusted: in the company keyring {trusted[0].path}" in text
+    assert "checklist:        DOES NOT CONFORM (1 fail, 2 warn, 1 info, 1 pass)" in text
+    assert "the plan does NOT conform; a valid signature records who signed it" in text
+    assert "NOT the signer" not in text
+
+
+def test_json_reports_the_recomputed_verdict(copy: dict[str, Path], trusted: Any) -> None:
+    result = verify_file(copy["json"], keyrings=trusted)
+    assert result.status == "valid"
+    assert result.verdict == "does-not-conform"
+    assert result.counts == {"fail": 1, "warn": 2, "info": 1, "pass": 1}
+
+
+def test_intact_signature_without_trust_is_untrusted_exit_3(copy: dict[str, Path]) -> None:
+    for path in (copy["pdf"], copy["json"]):
+        result = verify_file(path)
+        assert result.status == "untrusted" and result.exit_code == 3
+        lines = result.lines()
+        assert lines[0].startswith("UNTRUSTED SIGNER: ")
+        assert "NOT an approval" in lines[0]
+        assert any("supervisor keys trust CERT" in line for line in lines)
 
 
 @pytest.mark.parametrize(
@@ -142,30 +173,74 @@ def test_json_without_signature_is_not_valid(copy: dict[str, Path]) -> None:
     assert result.status == "invalid" and "not signed" in result.reason
 
 
-def test_signature_file_path_checks_its_json(copy: dict[str, Path]) -> None:
-    assert verify_file(copy["sig"]).status == "valid"
+def test_signature_file_path_checks_its_json(copy: dict[str, Path], trusted: Any) -> None:
+    assert verify_file(copy["sig"], keyrings=trusted).status == "valid"
 
 
 def test_required_certificate(copy: dict[str, Path], identity_files: tuple[Path, str],
                               tmp_path: Path) -> None:
     own = load_expected_certificate(keys.certificate_path(identity_files[0]))
-    assert verify_file(copy["pdf"], expected=own).status == "valid"
+    result = verify_file(copy["pdf"], expected=own)
+    assert result.status == "valid"  # --cert is a one-off trust, no keyring needed
+    assert "the certificate given with --cert" in "\n".join(result.lines())
     other = keys.new_identity("Dana Whitcombe", tmp_path / "other.p12", "other-passphrase")
     stranger = x509.load_pem_x509_certificate(other.certificate.read_bytes())
     result = verify_file(copy["json"], expected=stranger)
     assert result.status == "invalid" and "different certificate" in result.reason
 
 
-def test_json_re_signed_by_someone_else_shows_their_fingerprint(
-        copy: dict[str, Path], identity_files: tuple[Path, str], tmp_path: Path) -> None:
+def test_altered_json_re_signed_by_someone_else_is_not_approval(
+        copy: dict[str, Path], identity_files: tuple[Path, str], tmp_path: Path,
+        trusted: Any) -> None:
+    """An altered record re-signed with another key (same printed name) is untrusted."""
     other = keys.new_identity("Dana Whitcombe", tmp_path / "x.p12", "other-passphrase")
     forger = keys.load_identity(other.key, "other-passphrase")
+    record = json.loads(copy["json"].read_bytes())
+    record["verdict"] = "conforms"
+    record["findings"] = [f for f in record["findings"] if f["severity"] == "pass"]
+    copy["json"].write_bytes(record_bytes(record))
     copy["sig"].write_bytes(sign_detached(copy["json"].read_bytes(), forger))
-    result = verify_file(copy["json"])
+    result = verify_file(copy["json"], keyrings=trusted)
     original = keys.load_identity(*identity_files)
-    assert result.status == "valid"  # intact: trust is out of scope ...
-    assert result.fingerprint_sha256 == forger.fingerprint_sha256  # ... so compare this
+    assert result.status == "untrusted" and result.exit_code == 3
+    assert result.fingerprint_sha256 == forger.fingerprint_sha256
     assert result.fingerprint_sha256 != original.fingerprint_sha256
+    assert not result.lines()[0].startswith("VALID")
+
+
+def test_altered_pdf_re_signed_by_someone_else_is_not_approval(
+        check_result: dict[str, Any], plan_bytes: bytes, tmp_path: Path,
+        trusted: Any) -> None:
+    """A checklist made again with the verdict "conforms" and signed by a stranger."""
+    other = keys.new_identity("Dana Whitcombe", tmp_path / "y.p12", "other-passphrase")
+    forger = keys.load_identity(other.key, "other-passphrase")
+    check_result["verdict"] = "conforms"
+    check_result["findings"] = [f for f in check_result["findings"] if f["severity"] == "pass"]
+    files = make_checklist(check_result, plan_bytes, tmp_path / "forged", identity=forger)
+    result = verify_file(files.pdf, keyrings=trusted)
+    assert result.status == "untrusted" and result.exit_code == 3
+    assert result.verdict == "conforms"  # what the forged page says, reported as untrusted
+
+
+@pytest.mark.parametrize("title", ["Survey /ByteRange [0 10 20 30] check",
+                                   "/ByteRange [0 1 2 3] /ByteRange [4 5 6 7]",
+                                   "/Type /Sig /Contents <00ff> /ByteRange [0 99 99 0]"])
+def test_title_with_signature_syntax_signs_and_verifies(
+        check_result: dict[str, Any], plan_bytes: bytes, tmp_path: Path,
+        identity_files: tuple[Path, str], trusted: Any, title: str) -> None:
+    """Issue 13 reproducer: signatures are read from the PDF's structure, not its bytes."""
+    check_result["job"]["title"] = title
+    unsigned = make_checklist(check_result, plan_bytes, tmp_path / "u")
+    assert verify_file(unsigned.pdf).reason == "the PDF carries no digital signature"
+    # the unsigned checklist is not taken for a signed one: it can be regenerated
+    again = make_checklist(check_result, plan_bytes, tmp_path / "u")
+    assert again.pdf.read_bytes() == unsigned.pdf.read_bytes()
+    identity = keys.load_identity(*identity_files)
+    signed = make_checklist(check_result, plan_bytes, tmp_path / "s", identity=identity)
+    for path in (signed.pdf, signed.json):
+        result = verify_file(path, keyrings=trusted)
+        assert result.status == "valid", result.reason
+        assert result.job_title == title
 
 
 def test_unreadable_files(tmp_path: Path) -> None:
