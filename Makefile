@@ -4,7 +4,7 @@ VENV ?= .venv
 PY := $(VENV)/bin/python
 STAMP := $(VENV)/.installed
 
-.PHONY: demo test lint bench clean
+.PHONY: demo test lint bench fuzz clean
 
 $(STAMP): pyproject.toml
 	test -x $(PY) || $(PYTHON) -m venv $(VENV)
@@ -18,6 +18,10 @@ demo: $(STAMP)
 test: $(STAMP)
 	$(VENV)/bin/ruff check .
 	$(PY) -m pytest
+
+# the property suite at a large random size (make test runs it small and derandomised)
+fuzz: $(STAMP)
+	SUPERVISOR_FUZZ_EXAMPLES=$${SUPERVISOR_FUZZ_EXAMPLES:-500} $(PY) -m pytest tests/test_properties.py -q
 
 lint: $(STAMP)
 	$(VENV)/bin/ruff check .

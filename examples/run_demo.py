@@ -2,8 +2,13 @@
 
 Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
 key for its fictional supervisor, writes the signed pre-dive checklist (PDF and
-JSON) to ``out/`` and verifies it.  The demo key's passphrase is a fixed demo
-value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never use it for a real key.
+JSON) to ``out/`` and verifies it, then records the plan and two invented dive logs in
+a fresh record store ``out/demo-records.sqlite3`` and verifies its hash chain.  Then plans
+the invented demo treatment (Treatment Table 6 in the job's deck chamber,
+``examples/demo-treatment.toml``), writes its JSON to ``out/demo-treatment-plan.json`` and
+logs it as run (``examples/demo-treatment-events.toml``, one late air break).  The demo
+key's passphrase is a fixed demo value unless ``SUPERVISOR_KEY_PASSPHRASE`` is set; never
+use it for a real key.
 """
 
 from __future__ import annotations
@@ -24,6 +29,25 @@ def _run(args: list[str], env: dict[str, str], ok: tuple[int, ...] = (0,)) -> in
     if code not in ok:
         raise SystemExit(code)
     return code
+
+
+TREATMENT_PLAN = ["treatment", "plan", "6", "--start", "21:40", "--plan",
+                  str(Path("examples") / "demo-job.toml"), "--attendant-recent-dive",
+                  "depth=50,bottom=30,since=4:30"]
+
+
+def _treatment(env: dict[str, str], out: Path) -> None:
+    """Plan the demo treatment, keep its JSON, and log the treatment as run."""
+    _run(TREATMENT_PLAN, env)
+    proc = subprocess.run([sys.executable, "-m", "supervisor", *TREATMENT_PLAN, "--json"],
+                          cwd=ROOT, env=env, check=False, capture_output=True, text=True)
+    if proc.returncode != 0:
+        raise SystemExit(proc.returncode)
+    plan_json = out / "demo-treatment-plan.json"
+    (ROOT / plan_json).write_text(proc.stdout, "utf-8")
+    print(f"treatment plan JSON written to {plan_json}")
+    _run(["treatment", "log", str(plan_json),
+          str(Path("examples") / "demo-treatment-events.toml")], env)
 
 
 def main() -> int:
@@ -48,10 +72,27 @@ def main() -> int:
     pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
     for pdf in pdfs:
         _run(["verify", str(pdf.relative_to(ROOT))], env)
+    # after the dive: the timed log of D2 (one cut-short stop, for the audit to come) and the
+    # recorder log of D1 go on record with the plan, signed, and the chain is verified
+    db = out / "demo-records.sqlite3"
+    for old in (ROOT / out).glob("demo-records.sqlite3*"):
+        old.unlink()
+    store = ["--db", str(db)]
+    _run(["records", "add", "plan", str(plan), *store], env)
+    logs = Path("examples") / "logs"
+    _run(["records", "add", "dive", str(logs / "demo-d2-log.toml"), "--sign", str(key), *store],
+         env)
+    _run(["records", "add", "dive", str(logs / "demo-d1-recorder.csv"), "--job",
+          "2026-06-03-outfall-diffuser-inspection-and-riser-clamp-change", "--dive", "D1",
+          "--diver", "Teodor Lind", "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
+          "--no-exposure-24h", *store], env)
+    _run(["records", "list", *store], env)
+    _run(["records", "verify", *store], env)
+    _treatment(env, out)
     source = "SUPERVISOR_KEY_PASSPHRASE" if "SUPERVISOR_KEY_PASSPHRASE" in os.environ else (
         repr(DEMO_PASSPHRASE))
-    print(f"\nsigned checklist written to {checklists}/ (demo key passphrase: {source}; "
-          "demo only)")
+    print(f"\nsigned checklist written to {checklists}/, dive records to {db} (demo key "
+          f"passphrase: {source}; demo only)")
     return 0
 
 

@@ -403,7 +403,7 @@ def run_check(
     if isinstance(plan, Plan):
         return check_plan(plan, now=now, families=families, providers=providers)
     raw = read_plan_bytes(plan)
-    parsed = parse_plan_bytes(raw, str(plan))
+    parsed = parse_plan_bytes(raw, str(plan), Path(plan).absolute().parent)
     return check_plan(
         parsed,
         plan_path=str(plan),

@@ -37,6 +37,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from supervisor import constants as C
 from supervisor.errors import InputError
+from supervisor.text import excerpt
 from supervisor.units import (
     DepthUnit,
     Water,
@@ -136,7 +137,9 @@ def parse_gas(text: str, field: str = "gas") -> Gas:
     if isinstance(text, Gas):
         return text
     if not isinstance(text, str):
-        raise InputError(field, f"got {text!r}; expected a gas such as air, oxygen, 32/0 or 16/84")
+        raise InputError(
+            field, f"got {excerpt(text)}; expected a gas such as air, oxygen, 32/0 or 16/84"
+        )
     t = text.strip().lower()
     if t == "air":
         return AIR
@@ -151,7 +154,7 @@ def parse_gas(text: str, field: str = "gas") -> Gas:
         return _checked(float(m.group(1)) / 100.0, float(m.group(2)) / 100.0, field, text)
     raise InputError(
         field,
-        f"unknown gas {text!r}; expected air, oxygen, nitroxNN or O2/He percentages "
+        f"unknown gas {excerpt(text)}; expected air, oxygen, nitroxNN or O2/He percentages "
         "such as 32/0, 16/84 or 18/45",
     )
 
@@ -160,7 +163,7 @@ def _checked(fo2: float, fhe: float, field: str, text: str) -> Gas:
     try:
         return Gas(fo2, fhe)
     except InputError as exc:
-        raise InputError(field, f"{text!r}: {exc.message}") from None
+        raise InputError(field, f"{excerpt(text)}: {exc.message}") from None
 
 
 

@@ -46,7 +46,6 @@ import datetime as _dt
 import hashlib
 import json
 import math
-import tomllib
 import typing
 from pathlib import Path
 from typing import Annotated, Any, Literal
@@ -57,8 +56,10 @@ from pydantic import (
     BeforeValidator,
     ConfigDict,
     Field,
+    PrivateAttr,
     ValidationError,
     ValidationInfo,
+    WithJsonSchema,
     model_validator,
 )
 
@@ -66,7 +67,31 @@ from supervisor import constants as C
 from supervisor.errors import InputError, PlanError
 from supervisor.gas import Gas, parse_gas
 from supervisor.plan_errors import Problems, problems_from, show
+from supervisor.plan_fields import (  # noqa: F401  (re-exported: the plan module's API)
+    MAX_DIVES,
+    MAX_PLAN_DEPTH_FSW,
+    MAX_STOP_MIN,
+    MAX_STOPS,
+    MAX_TEAM,
+    MAX_TIMELINE_MIN,
+    MAX_TOTAL_STOP_MIN,
+    REFERENCE_TABLE_KINDS,
+    Depth,
+    GasText,
+    PositiveDepth,
+    Rate,
+    bundled_reference_tables,
+    check_reference_table,
+    ctx_unit,
+    depth_field,
+    looks_like_path,
+    resolve_table_path,
+    unit_overlay,
+)
+from supervisor.plan_fields import cap as text_cap
 from supervisor.profile import Profile
+from supervisor.text import excerpt
+from supervisor.tomlfile import MAX_NESTING, TomlError, nesting_depth, parse_toml
 from supervisor.units import altitude_pressure, convert_pressure
 
 SCHEMA_ID = "supervisor-plan/1"
@@ -86,9 +111,6 @@ SourceKind = Literal["hp-bank", "cylinders", "compressor"]
 ROLES: tuple[str, ...] = typing.get_args(Role)
 MODES: tuple[str, ...] = typing.get_args(Mode)
 
-#: Deepest depth a plan may state [fsw]; anything deeper is taken as a typing error.
-MAX_PLAN_DEPTH_FSW = 2000.0
-
 #: Chamber compression rate used to draw a surface-decompression profile [fsw/min]:
 #: "compress in the chamber to 50 fsw at up to 100 fsw/min", U.S. Navy Diving Manual
 #: Rev 7 ch. 9 surface decompression on oxygen (SECONDARY).  The plan has no field for
@@ -100,9 +122,6 @@ CHAMBER_COMPRESSION_FSW_PER_MIN = 100.0
 #: (SECONDARY).  A plan that states no ``surface_transfer_min`` is drawn with the rest of
 #: this interval on deck.
 SURD_INTERVAL_MIN = 5.0
-
-#: Kinds of bundled table a plan may name as its ``policy.reference_table``.
-REFERENCE_TABLE_KINDS: tuple[str, ...] = ("no-stop", "decompression")
 
 # Policy defaults per unit: (fsw value, msw value).
 _UNIT_DEFAULTS: dict[str, tuple[float, float]] = {
@@ -140,43 +159,11 @@ class PlanValidationError(PlanError):
 
 
 # ---------------------------------------------------------------------------
-# field types
+# field types (ranges and caps: supervisor.plan_fields)
 
-
-def _ctx_unit(info: ValidationInfo | None) -> str:
-    ctx = info.context if info is not None else None
-    unit = ctx.get("unit") if isinstance(ctx, dict) else None
-    return unit if unit in ("fsw", "msw") else "plan unit"
-
-
-def _max_depth_in(unit: str) -> float:
-    if unit == "msw":
-        return round(float(convert_pressure(MAX_PLAN_DEPTH_FSW, "fsw", "msw")), 1)
-    return MAX_PLAN_DEPTH_FSW
-
-
-def _check_depth(value: float, info: ValidationInfo) -> float:
-    unit = _ctx_unit(info)
-    if value < 0:
-        raise ValueError(f"got {value:g}; expected a depth >= 0 {unit}")
-    top = _max_depth_in(unit if unit != "plan unit" else "fsw")
-    if value > top:
-        raise ValueError(f"got {value:g}; expected a depth <= {top:g} {unit}")
-    return value
-
-
-def _check_rate(value: float, info: ValidationInfo) -> float:
-    unit = _ctx_unit(info)
-    if value <= 0:
-        raise ValueError(f"got {value:g}; expected a rate > 0 {unit}/min")
-    if value > 300:
-        raise ValueError(f"got {value:g}; expected a rate <= 300 {unit}/min")
-    return value
-
-
-def _check_gas(value: str, info: ValidationInfo) -> str:
-    parse_gas(value, field=info.field_name or "gas")
-    return value.strip()
+_ctx_unit = ctx_unit
+_check_reference_table = check_reference_table
+_depth_field = depth_field
 
 
 def _to_date(value: Any) -> Any:
@@ -184,7 +171,7 @@ def _to_date(value: Any) -> Any:
         try:
             return _dt.date.fromisoformat(value.strip())
         except ValueError:
-            raise ValueError(f"got {value!r}; expected a date such as 2026-05-14") from None
+            raise ValueError(f"got {excerpt(value)}; expected a date such as 2026-05-14") from None
     if isinstance(value, _dt.datetime):
         return value.date()
     return value
@@ -192,53 +179,6 @@ def _to_date(value: Any) -> Any:
 
 def _to_roles(value: Any) -> Any:
     return [value] if isinstance(value, str) else value
-
-
-def bundled_reference_tables() -> dict[str, str]:
-    """Bundled table names by kind folder: ``{name: kind}`` (files are not loaded)."""
-    from supervisor.resources import tables_dir
-
-    try:
-        root = tables_dir()
-    except FileNotFoundError:
-        return {}
-    return {
-        f.stem: f.parent.name
-        for f in sorted(root.rglob("*.toml"))
-        if not f.name.startswith(".") and f.parent != root
-    }
-
-
-def _check_reference_table(value: str | None) -> str | None:
-    """Accept a bundled no-stop or decompression table name, or an existing table file."""
-    if value is None:
-        return None
-    text = value.strip()
-    tables = bundled_reference_tables()
-    usable = sorted(n for n, k in tables.items() if k in REFERENCE_TABLE_KINDS)
-    form = (f"expected a bundled table name ({', '.join(usable) or 'none bundled'}) or the "
-            "path of a table file (.toml)")
-    if not text:
-        raise ValueError(f"got empty text; {form}")
-    path = Path(text)
-    if path.suffix == ".toml" or len(path.parts) > 1 or path.exists():
-        if not path.is_file():
-            raise ValueError(f"got {text!r}: no such file; {form}")
-        return text
-    kind = tables.get(text)
-    if kind is None:
-        raise ValueError(f"got {text!r}: no bundled table of that name; {form}")
-    if kind not in REFERENCE_TABLE_KINDS:
-        raise ValueError(
-            f"got {text!r}, a bundled {kind} table; expected a no-stop or decompression "
-            f"table: {', '.join(usable)}"
-        )
-    return text
-
-
-Depth = Annotated[float, AfterValidator(_check_depth)]
-Rate = Annotated[float, AfterValidator(_check_rate)]
-GasText = Annotated[str, AfterValidator(_check_gas)]
 
 
 def _ceil2(x: float) -> float:
@@ -261,15 +201,18 @@ class _Section(BaseModel):
 class Job(_Section):
     """Who, where and under which rules."""
 
-    title: str = Field(min_length=1, description="Job title")
-    site: str = Field(min_length=1, description="Dive site name")
+    title: str = Field(min_length=1, max_length=text_cap("title"), description="Job title")
+    site: str = Field(min_length=1, max_length=text_cap("title"), description="Dive site name")
     date: Annotated[_dt.date, BeforeValidator(_to_date)] = Field(
         description="Planned date, a TOML date such as 2026-05-14"
     )
-    client: str = Field("", description="Client")
-    contractor: str = Field(min_length=1, description="Diving contractor")
+    client: str = Field("", max_length=text_cap("title"), description="Client")
+    contractor: str = Field(
+        min_length=1, max_length=text_cap("title"), description="Diving contractor"
+    )
     supervisor: str = Field(
-        min_length=1, description="Name of the diving supervisor (a team member)"
+        min_length=1, max_length=text_cap("name"),
+        description="Name of the diving supervisor (a team member)",
     )
     jurisdiction: Jurisdiction = Field(
         description="Rule set: osha-1910-t (29 CFR 1910 Subpart T), uscg-46-197-b "
@@ -280,11 +223,22 @@ class Job(_Section):
 class EmergencyContacts(_Section):
     """Call numbers kept at the site; an empty or missing entry counts as absent."""
 
-    chamber: str | None = Field(None, description="Operational chamber (needed when none on site)")
-    hospital: str | None = Field(None, description="Hospital")
-    physician: str | None = Field(None, description="Diving physician")
-    transport: str | None = Field(None, description="Emergency transport")
-    uscg_rcc: str | None = Field(None, description="Nearest USCG Rescue Coordination Center")
+    chamber: str | None = Field(
+        None, max_length=text_cap("contact"),
+        description="Operational chamber (needed when none on site)",
+    )
+    hospital: str | None = Field(
+        None, max_length=text_cap("contact"), description="Hospital"
+    )
+    physician: str | None = Field(
+        None, max_length=text_cap("contact"), description="Diving physician"
+    )
+    transport: str | None = Field(
+        None, max_length=text_cap("contact"), description="Emergency transport"
+    )
+    uscg_rcc: str | None = Field(
+        None, max_length=text_cap("contact"), description="Nearest USCG Rescue Coordination Center"
+    )
 
 
 class Site(_Section):
@@ -369,7 +323,7 @@ class Chamber(_Section):
         max_length=4,
         description="Internal volume of each lock, the treatment (inner) lock first [L]",
     )
-    treatment_depth: Depth | None = _depth_field(
+    treatment_depth: PositiveDepth | None = _depth_field(
         "Depth of the treatment the chamber gas is sized for (default 60 fsw, 18.3 msw)", None
     )
     treatment_min: float | None = Field(
@@ -378,6 +332,11 @@ class Chamber(_Section):
         le=2880,
         description="Duration of that treatment (default 285), at least the hour after the "
         "dive [min]",
+    )
+    treatment_extensions: bool | None = Field(
+        None,
+        description="Size the chamber gas for the default treatment (Treatment Table 6) with "
+        "every extension the table allows (not stated: the table without extensions)",
     )
     treatment_occupants: int | None = Field(
         None, ge=1, le=20, description="People in the treatment lock, patient included "
@@ -426,8 +385,11 @@ class Chamber(_Section):
 class Member(_Section):
     """A team member."""
 
-    name: str = Field(min_length=1, description="Name")
-    role: Annotated[list[Role], BeforeValidator(_to_roles)] = Field(
+    name: str = Field(min_length=1, max_length=text_cap("name"), description="Name")
+    role: Annotated[list[Role], BeforeValidator(_to_roles), WithJsonSchema({"anyOf": [
+        {"enum": list(ROLES)},
+        {"type": "array", "items": {"enum": list(ROLES)}, "minItems": 1},
+    ]})] = Field(
         min_length=1,
         description="Role or list of roles: supervisor, diver, standby-diver, tender, "
         "chamber-operator",
@@ -514,7 +476,9 @@ class Cylinder(_Section):
 class Bailout(Cylinder):
     """A bailout cylinder carried by one diver (diver-carried reserve)."""
 
-    diver: str = Field(min_length=1, description="Name of the diver carrying it")
+    diver: str = Field(
+        min_length=1, max_length=text_cap("name"), description="Name of the diver carrying it"
+    )
 
 
 class GasSupply(_Section):
@@ -524,7 +488,9 @@ class GasSupply(_Section):
     secondary: GasSource | None = Field(
         None, description="Secondary (dive-location reserve) source"
     )
-    bailout: list[Bailout] = Field(default_factory=list, description="Bailout cylinder per diver")
+    bailout: list[Bailout] = Field(
+        default_factory=list, max_length=MAX_TEAM, description="Bailout cylinder per diver"
+    )
     oxygen_decompression: Cylinder | None = Field(
         None, description="Oxygen for in-water or chamber decompression"
     )
@@ -547,14 +513,15 @@ class Policy(_Section):
     end_max: Depth | None = _depth_field("Equivalent narcotic depth limit", None)
     reference_table: Annotated[str | None, AfterValidator(_check_reference_table)] = Field(
         None,
+        max_length=text_cap("path"),
         description="Reference table in use: a bundled no-stop or decompression table name, "
-        "or the path of a table file",
+        "or the path of a table file; a relative path is read from the plan file's folder",
     )
     descent_rate_max: Rate | None = Field(None, description="Fastest descent [plan unit/min]")
     ascent_rate: Rate | None = Field(None, description="Planned ascent rate [plan unit/min]")
     ascent_rate_min: Rate | None = Field(None, description="Slowest ascent [plan unit/min]")
     ascent_rate_max: Rate | None = Field(None, description="Fastest ascent [plan unit/min]")
-    stop_step: Depth | None = _depth_field("Spacing of decompression stops", None)
+    stop_step: PositiveDepth | None = _depth_field("Spacing of decompression stops", None)
     last_stop: Depth | None = _depth_field("Shallowest water stop", None)
 
     @model_validator(mode="after")
@@ -595,19 +562,21 @@ class Policy(_Section):
 class Stop(_Section):
     """A planned decompression stop."""
 
-    depth: Depth = _depth_field("Stop depth (chamber stops: chamber pressure)")
-    minutes: float = Field(gt=0, le=1440, description="Stop time [min]")
+    depth: PositiveDepth = _depth_field("Stop depth (chamber stops: chamber pressure)")
+    minutes: float = Field(gt=0, le=MAX_STOP_MIN, description="Stop time [min]")
     gas: GasText | None = Field(None, description="Gas at the stop; the dive's gas if absent")
     place: StopPlace = Field("water", description="water or chamber")
 
 
 def _mode_gas_problem(mode: str, gas: Gas, text: str) -> str | None:
     if mode == "surface-supplied-air" and gas.name != "air":
-        return f"got {text!r}; expected air for mode {mode}"
+        return f"got {excerpt(text)}; expected air for mode {mode}"
     if mode == "surface-supplied-nitrox" and (gas.fhe > 0 or gas.fo2 <= C.FO2_AIR + 1e-9):
-        return f"got {text!r}; expected nitrox (more than 21 % O2, no helium) for mode {mode}"
+        return (f"got {excerpt(text)}; expected nitrox (more than 21 % O2, no helium) for mode "
+                f"{mode}")
     if mode == "surface-supplied-heliox" and (gas.fhe <= 0 or gas.fn2 > 0.005):
-        return f"got {text!r}; expected heliox O2/He percentages adding up to 100 for mode {mode}"
+        return (f"got {excerpt(text)}; expected heliox O2/He percentages adding up to 100 for "
+                f"mode {mode}")
     return None
 
 
@@ -626,11 +595,15 @@ def _descent_problem(dive: Dive, descent: float, unit: str) -> str | None:
 class Dive(_Section):
     """One proposed dive."""
 
-    id: str = Field(min_length=1, description="Dive identifier, unique in the plan")
-    diver: str = Field(min_length=1, description="Name of the diver (a team member)")
+    id: str = Field(
+        min_length=1, max_length=text_cap("id"), description="Dive identifier, unique in the plan"
+    )
+    diver: str = Field(
+        min_length=1, max_length=text_cap("name"), description="Name of the diver (a team member)"
+    )
     mode: Mode = Field(description="Diving mode")
     gas: GasText = Field(description="Bottom gas such as air, nitrox32, 32/0 or 16/84")
-    max_depth: Depth = _depth_field("Maximum depth")
+    max_depth: PositiveDepth = _depth_field("Maximum depth")
     bottom_time_min: float = Field(
         gt=0, le=1440, description="From leaving the surface to leaving the bottom [min]"
     )
@@ -639,12 +612,14 @@ class Dive(_Section):
     decompression: Decompression = Field(
         description="none, in-water, in-water-oxygen or surface-oxygen"
     )
-    stops: list[Stop] = Field(default_factory=list, description="Planned stops, deepest first")
+    stops: list[Stop] = Field(
+        default_factory=list, max_length=MAX_STOPS, description="Planned stops, deepest first"
+    )
     surface_interval_min: float | None = Field(
         None, ge=0, le=10080, description="Surface interval before this dive (repetitive) [min]"
     )
     previous_dive: str | None = Field(
-        None, description="Id of the dive the surface interval follows"
+        None, max_length=text_cap("id"), description="Id of the dive the surface interval follows"
     )
     surface_transfer_min: float | None = Field(
         None,
@@ -655,11 +630,19 @@ class Dive(_Section):
     cold: bool = Field(False, description="Diver cold during the dive")
     strenuous: bool = Field(False, description="Strenuous work")
     line_tended: bool = Field(description="Line-tended from the surface")
-    buddy: str | None = Field(None, description="In-water buddy in visual contact (a team member)")
-    standby_diver: str | None = Field(None, description="Standby diver (a team member)")
-    tender: str | None = Field(None, description="Tender (a team member)")
+    buddy: str | None = Field(
+        None, max_length=text_cap("name"),
+        description="In-water buddy in visual contact (a team member)",
+    )
+    standby_diver: str | None = Field(
+        None, max_length=text_cap("name"), description="Standby diver (a team member)"
+    )
+    tender: str | None = Field(
+        None, max_length=text_cap("name"), description="Tender (a team member)"
+    )
     entry_diver: str | None = Field(
-        None, description="Diver at the underwater entry point of a confined space"
+        None, max_length=text_cap("name"),
+        description="Diver at the underwater entry point of a confined space",
     )
     heavy_gear: bool = Field(False, description="Heavy gear worn")
     bell: Bell = Field("none", description="Bell used: none, open or closed")
@@ -716,6 +699,12 @@ class Dive(_Section):
             msg = _descent_problem(self, self.descent_rate, unit)
             if msg:
                 problems.append(("bottom_time_min", msg))
+        total = sum(s.minutes for s in self.stops)
+        if total > MAX_TOTAL_STOP_MIN:
+            problems.append(
+                ("stops", f"got {total:g} min of stops in all; expected at most "
+                 f"{MAX_TOTAL_STOP_MIN:g} min for one dive (longer than any Navy treatment table)")
+            )
         if self.previous_dive is not None and self.surface_interval_min is None:
             problems.append(
                 (
@@ -788,10 +777,12 @@ class Plan(_Section):
     job: Job = Field(description="The job")
     site: Site = Field(description="Site conditions")
     chamber: Chamber = Field(description="Recompression chamber")
-    team: list[Member] = Field(min_length=1, description="Team members")
+    team: list[Member] = Field(min_length=1, max_length=MAX_TEAM, description="Team members")
     gas_supply: GasSupply = Field(description="Gas supply")
     policy: Policy = Field(default_factory=Policy, description="The contractor's policy limits")
-    dives: list[Dive] = Field(min_length=1, description="Proposed dives in order")
+    dives: list[Dive] = Field(
+        min_length=1, max_length=MAX_DIVES, description="Proposed dives in order"
+    )
 
     @model_validator(mode="after")
     def _references(self) -> Plan:
@@ -800,22 +791,28 @@ class Plan(_Section):
         known = set(names)
         for i, name in enumerate(names):
             if name in names[:i]:
-                problems.append((f"team[{i}].name", f"got {name!r} twice; expected unique names"))
+                problems.append(
+                    (f"team[{i}].name", f"got {excerpt(name)} twice; expected unique names")
+                )
         ids: list[str] = []
         for i, d in enumerate(self.dives):
             if d.id in ids:
-                problems.append((f"dives[{i}].id", f"got {d.id!r} twice; expected unique ids"))
+                problems.append(
+                    (f"dives[{i}].id", f"got {excerpt(d.id)} twice; expected unique ids")
+                )
             for fld in ("diver", "buddy", "standby_diver", "tender", "entry_diver"):
                 who = getattr(d, fld)
                 if who is not None and who not in known:
                     problems.append(
-                        (f"dives[{i}].{fld}", f"got {who!r}; expected the name of a team member")
+                        (f"dives[{i}].{fld}",
+                         f"got {excerpt(who)}; expected the name of a team member")
                     )
             if d.standby_diver is not None and d.standby_diver == d.diver:
                 problems.append(
                     (
                         f"dives[{i}].standby_diver",
-                        f"got {d.diver!r}, the diver of this dive; expected another team member",
+                        f"got {excerpt(d.diver)}, the diver of this dive; expected another "
+                        "team member",
                     )
                 )
             if d.descent_rate is None:  # with its own rate the dive checked itself
@@ -826,7 +823,7 @@ class Plan(_Section):
                 problems.append(
                     (
                         f"dives[{i}].previous_dive",
-                        f"got {d.previous_dive!r}; expected the id of an earlier dive",
+                        f"got {excerpt(d.previous_dive)}; expected the id of an earlier dive",
                     )
                 )
             ids.append(d.id)
@@ -835,12 +832,35 @@ class Plan(_Section):
                 problems.append(
                     (
                         f"gas_supply.bailout[{i}].diver",
-                        f"got {b.diver!r}; expected the name of a team member",
+                        f"got {excerpt(b.diver)}; expected the name of a team member",
                     )
                 )
+        if not problems:
+            problems += _timeline_problems(self)
         if problems:
             raise Problems(problems)
         return self
+
+    _base_dir: Path | None = PrivateAttr(default=None)
+
+    @property
+    def base_dir(self) -> Path | None:
+        """Folder of the plan file (relative paths in the plan resolve there); None: cwd."""
+        return self._base_dir
+
+    def reference_table_source(self) -> str | Path | None:
+        """``policy.reference_table`` as a bundled name or the file it names.
+
+        A relative path is taken from the plan file's folder, so a plan gives the
+        same answer from any working directory.
+        """
+        text = self.policy.reference_table
+        if text is None:
+            return None
+        text = text.strip()
+        if not looks_like_path(text) and text in bundled_reference_tables():
+            return text
+        return resolve_table_path(text, self._base_dir)
 
     # -- convenience -------------------------------------------------------
 
@@ -875,7 +895,9 @@ class Plan(_Section):
         for d in self.dives:
             if d.id == dive_id:
                 return d
-        raise InputError("dive", f"got {dive_id!r}; expected one of {[d.id for d in self.dives]}")
+        raise InputError(
+            "dive", f"got {excerpt(dive_id)}; expected one of {[d.id for d in self.dives]}"
+        )
 
     def descent_rate(self, dive: Dive) -> float:
         """Descent rate of ``dive`` [unit/min]: its own or the policy's fastest."""
@@ -923,17 +945,53 @@ class Plan(_Section):
         return depth_fsw if self.unit == "fsw" else float(convert_pressure(depth_fsw, "fsw", "msw"))
 
 
+def _timeline_problems(plan: Plan) -> list[tuple[str, str]]:
+    """Refuse a plan whose dives of one diver span more than :data:`MAX_TIMELINE_MIN`.
+
+    Start times follow :func:`supervisor.analysis.analyse_plan`: a diver's dive
+    starts after the diver's previous dive and its surface interval (from the end
+    of ``previous_dive`` when that is another diver's dive).
+    """
+    end: dict[str, float] = {}
+    last_end: dict[str, float] = {}
+    first_start: dict[str, float] = {}
+    for i, d in enumerate(plan.dives):
+        si = d.surface_interval_min or 0.0
+        start = 0.0
+        if d.diver in last_end:
+            start = last_end[d.diver] + si
+            if d.previous_dive is not None and d.previous_dive in end:
+                start = max(last_end[d.diver], end[d.previous_dive] + si)
+        try:
+            dur = proposed_profile(plan, d).duration_min
+        except InputError:
+            dur = d.bottom_time_min
+        end[d.id] = start + dur
+        last_end[d.diver] = start + dur
+        first_start.setdefault(d.diver, start)
+        span = start + dur - first_start[d.diver]
+        if span > MAX_TIMELINE_MIN:
+            days = MAX_TIMELINE_MIN / 1440
+            return [(f"dives[{i}]", f"{excerpt(d.diver)}'s dives up to {excerpt(d.id)} span "
+                     f"{span / 1440:.1f} days; expected at most {days:g} days of one diver's "
+                     "diving in a plan (split the job into plans)")]
+    return []
+
+
 # ---------------------------------------------------------------------------
 # loading and errors
 
 
-def plan_from_dict(data: Any) -> Plan:
+def plan_from_dict(data: Any, base_dir: str | Path | None = None) -> Plan:
     """Validate a plan given as a dictionary (a parsed TOML document).
 
     Parameters
     ----------
     data : dict
         The plan document.
+    base_dir : str or Path, optional
+        Folder of the plan file: relative paths in the plan (``policy.reference_table``)
+        are read from there.  None: the current folder.
 
     Returns
     -------
@@ -946,6 +1004,9 @@ def plan_from_dict(data: Any) -> Plan:
     """
     if not isinstance(data, dict):
         raise PlanValidationError([("plan", f"got {show(data)}; expected a TOML document")])
+    if nesting_depth(data) > MAX_NESTING:
+        raise PlanValidationError([("plan", f"tables and lists nested more than {MAX_NESTING} "
+                                    f"levels deep; expected at most {MAX_NESTING} levels")])
     schema = data.get("schema")
     if schema is None:
         raise PlanValidationError(
@@ -955,10 +1016,18 @@ def plan_from_dict(data: Any) -> Plan:
         raise PlanValidationError([("schema", f'got {show(schema)}; expected "{SCHEMA_ID}"')])
     raw_unit = data.get("unit")
     unit = raw_unit if raw_unit in ("fsw", "msw") else "plan unit"
+    base = Path(base_dir) if base_dir is not None else None
     try:
-        return Plan.model_validate(data, context={"unit": unit})
+        plan = Plan.model_validate(data, context={"unit": unit, "base_dir": base})
     except ValidationError as exc:
         raise PlanValidationError(problems_from(exc, Plan, unit)) from None
+    plan._base_dir = base
+    return plan
+
+
+def _shown_path(p: Path) -> str:
+    text = str(p)
+    return excerpt(text) if len(text) > 200 else text
 
 
 def read_plan_bytes(path: str | Path) -> bytes:
@@ -967,27 +1036,30 @@ def read_plan_bytes(path: str | Path) -> bytes:
     try:
         return p.read_bytes()
     except IsADirectoryError:
-        raise PlanValidationError([("plan", f"{p}: is a folder; expected a TOML file")]) from None
+        raise PlanValidationError(
+            [("plan", f"{_shown_path(p)}: is a folder; expected a TOML file")]) from None
     except FileNotFoundError:
-        raise PlanValidationError([("plan", f"{p}: no such file")]) from None
+        raise PlanValidationError([("plan", f"{_shown_path(p)}: no such file")]) from None
     except OSError as exc:
         why = exc.strerror or str(exc)
-        raise PlanValidationError([("plan", f"{p}: cannot be read ({why})")]) from None
+        raise PlanValidationError(
+            [("plan", f"{_shown_path(p)}: cannot be read ({why})")]) from None
 
 
-def parse_plan_bytes(raw: bytes, name: str = "plan") -> Plan:
-    """Parse and validate plan file bytes (UTF-8 TOML)."""
+def parse_plan_bytes(raw: bytes, name: str = "plan", base_dir: str | Path | None = None) -> Plan:
+    """Parse and validate plan file bytes (UTF-8 TOML); ``base_dir`` as in plan_from_dict."""
+    shown = excerpt(name) if len(name) > 200 else name
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:
         raise PlanValidationError(
-            [("plan", f"{name}: not UTF-8 text (byte {exc.start}); expected a TOML file")]
+            [("plan", f"{shown}: not UTF-8 text (byte {exc.start}); expected a TOML file")]
         ) from None
     try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise PlanValidationError([("plan", f"{name}: not valid TOML ({exc})")]) from None
-    return plan_from_dict(data)
+        data = parse_toml(text)
+    except TomlError as exc:
+        raise PlanValidationError([("plan", f"{shown}: {exc.reason}")]) from None
+    return plan_from_dict(data, base_dir)
 
 
 def load_plan(path: str | Path) -> Plan:
@@ -996,7 +1068,7 @@ def load_plan(path: str | Path) -> Plan:
     Parameters
     ----------
     path : str or Path
-        The TOML plan file.
+        The TOML plan file; relative paths inside it are read from its folder.
 
     Returns
     -------
@@ -1008,7 +1080,7 @@ def load_plan(path: str | Path) -> Plan:
         If the file cannot be read, is not TOML or does not validate; every
         problem is listed with its field path.
     """
-    return parse_plan_bytes(read_plan_bytes(path), str(path))
+    return parse_plan_bytes(read_plan_bytes(path), str(path), Path(path).absolute().parent)
 
 
 def plan_sha256(raw: bytes) -> str:
@@ -1017,9 +1089,19 @@ def plan_sha256(raw: bytes) -> str:
 
 
 def plan_json_schema() -> dict[str, Any]:
-    """Return the JSON Schema of the plan file (draft 2020-12)."""
+    """Return the JSON Schema of the plan file (draft 2020-12).
+
+    Every range the validator enforces is in it: field bounds and text lengths in
+    the fields themselves, and the depth and rate ranges of each unit in an
+    ``allOf`` of ``if unit = fsw/msw then ...`` fragments at the top level.
+    """
     schema = Plan.model_json_schema(by_alias=True, mode="validation")
     schema["$id"] = "urn:supervisor:schema:supervisor-plan/1"
+    schema["allOf"] = [
+        {"if": {"properties": {"unit": {"const": u}}, "required": ["unit"]},
+         "then": unit_overlay(Plan, u)}
+        for u in ("fsw", "msw")
+    ]
     return schema
 
 

@@ -19,6 +19,7 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, ValidationError
 
 from supervisor.errors import InputError
+from supervisor.text import excerpt
 
 
 class Problems(ValueError):
@@ -54,7 +55,7 @@ def show(value: Any) -> str:
         return "a list"
     if isinstance(value, bool):
         return "true" if value else "false"
-    return repr(value)
+    return excerpt(value)
 
 
 def _model_at(
@@ -175,6 +176,13 @@ def _translate(root: type[BaseModel], err: dict[str, Any], unit: str) -> list[tu
         return [(path, f"got {show(value)}; expected quoted text")]
     if kind == "string_too_short":
         return [(path, "got empty text; expected a non-empty value")]
+    if kind == "string_too_long":
+        n = len(value) if isinstance(value, str) else "?"
+        return [(path, f"got text of {n} characters; expected at most "
+                 f"{ctx.get('max_length', '?')} characters")]
+    if kind == "too_long":
+        n = len(value) if isinstance(value, (list, tuple)) else "?"
+        return [(path, f"got {n} entries; expected at most {ctx.get('max_length', '?')}")]
     if kind in ("list_type", "too_short"):
         if kind == "too_short":
             return [(path, "got an empty list; expected at least one entry")]

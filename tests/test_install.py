@@ -74,3 +74,14 @@ def test_wheel_runs_outside_the_source_tree(tmp_path):
     assert out.returncode == 0, out.stderr
     js = json.loads(out.stdout)
     assert js["schema"] == "supervisor.schedule/1" and js["stops"]
+    # the record store's migration scripts ship in the wheel and run from it
+    assert "supervisor/records/migrations/versions/r0001_records.py" in names
+    (tmp_path / "log.csv").write_text("time_s,depth_fsw,gas\n0,0,air\n60,20,air\n120,0,air\n")
+    db = str(tmp_path / "installed.sqlite3")
+    for args in (["log", "read", "log.csv"],
+                 ["records", "add", "plan", str(ROOT / "examples" / "demo-job.toml"), "--db", db],
+                 ["records", "verify", "--db", db]):
+        done = subprocess.run([str(script), *args], cwd=tmp_path, env=run_env,
+                              capture_output=True, text=True, check=False)
+        assert done.returncode == 0, done.stderr
+    assert "INTACT" in done.stdout

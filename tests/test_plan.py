@@ -176,7 +176,8 @@ def test_not_finite():
 def test_depth_beyond_any_plan():
     d = base()
     d["dives"][0]["max_depth"] = 5000
-    assert problems(d) == [("dives[0].max_depth", "got 5000; expected a depth <= 2000 fsw")]
+    assert problems(d) == [("dives[0].max_depth",
+                            "got 5000; expected a depth from 0 to 2000 fsw")]
 
 
 def test_zero_max_depth():
@@ -341,7 +342,7 @@ def test_unknown_reference_table_names_the_bundled_tables():
     assert msg == (
         "got 'usn-rev7-air-decompression': no bundled table of that name; expected a bundled "
         "table name (usn-rev7-air-ndl, zhl16c-gf30-85-air-fsw, zhl16c-gf30-85-air-msw) or the "
-        "path of a table file (.toml)"
+        "path of a table file (.toml), relative to the plan's folder"
     )
 
 

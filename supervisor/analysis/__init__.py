@@ -111,7 +111,7 @@ from supervisor.analysis.results import (
 )
 from supervisor.engine import buhlmann as bm
 from supervisor.engine import oxygen as ox
-from supervisor.engine.schedule import ScheduleRequest
+from supervisor.engine.schedule import ScheduleRequest, work_budget
 from supervisor.gas import AIR, parse_gas
 from supervisor.plan import Dive, Plan
 from supervisor.units import altitude_pressure
@@ -398,7 +398,7 @@ class _BatchError(Exception):
 
 
 def _load_reference(plan: Plan) -> tuple[Any, str | None]:
-    name = plan.resolved_policy.reference_table
+    name = plan.reference_table_source()  # a relative path: from the plan file's folder
     if not name:
         return None, None
     from supervisor.references import load_table
@@ -520,6 +520,15 @@ def analyse_plan(plan: Plan, altitudes_m: tuple[float, ...] = (CABIN_ALTITUDE_M,
     return PlanAnalysis(dives, divers, plan.p_surface_bar, table, table_error)
 
 
+#: Stop levels of model schedules one check computes (margin search, contingencies and
+#: the model schedule of every dive); beyond them a dive's schedules are "not computed"
+#: (needs review).  A dive of a realistic job uses about 100 when its schedules are
+#: computed one at a time (fewer when batched: a batch costs its deepest dive's levels
+#: once), so a week-long job of 50 dives fits; the budget bounds the worst valid plan
+#: under 30 s (``bench/bench_worst.py``).  Own choice, no source.
+CHECK_WORK_LEVELS = 8_000
+
+
 def _saturated(plan: Plan) -> NDArray[np.float64]:
     from supervisor.engine.kinetics import saturated_tensions
 
@@ -541,7 +550,9 @@ def for_context(ctx: Any) -> PlanAnalysis:
     """
     pa = ctx.shared.get("analysis")
     if pa is None:
-        pa = analyse_plan(ctx.plan)
+        # bounded work on any valid plan: past the budget, schedules are "not computed"
+        with work_budget(CHECK_WORK_LEVELS):
+            pa = analyse_plan(ctx.plan)
         ctx.shared["analysis"] = pa
     return pa
 

@@ -28,14 +28,19 @@ EGS_BOTTOM_MIN                 5 min               Navy ch. 8 EGS sample problem
                                                    is used (OLDER-EDITION)
 NAVY_VENT_O2_ACFM              12.5 acfm           per person on oxygen from BIBS with no overboard
                                                    dump, U.S. Navy Diving Manual Rev 4 Change A
-                                                   §22-5.4 (OLDER-EDITION)
+                                                   §22-5.4 (OLDER-EDITION); defined in
+                                                   supervisor.chamber.ventilation
 NAVY_VENT_AIR_REST_ACFM,       2 / 4 acfm          per person breathing chamber air at rest / not
 NAVY_VENT_AIR_WORK_ACFM                            at rest, idem (OLDER-EDITION); used for an
                                                    overboard dump (FROM MEMORY)
 TREATMENT_DEPTH_FSW            60 fsw              U.S. Navy Treatment Table 6 oxygen depth,
-                                                   Rev 4 Change A ch. 21 (OLDER-EDITION)
+                                                   Rev 4 Change A ch. 21 (OLDER-EDITION); used
+                                                   only when the plan gives a treatment duration
+                                                   of its own (the default is the bundled Table 6
+                                                   timeline, supervisor.analysis.chamber)
 TREATMENT_MIN                  285 min             Treatment Table 6, 4 h 45 min (steps FROM
-                                                   MEMORY)
+                                                   MEMORY); used only when the plan gives a
+                                                   treatment depth of its own
 CHAMBER_OCCUPANTS              2                   patient and one inside tender (common practice,
                                                    no source)
 =============================  ==================  ===============================================
@@ -55,6 +60,12 @@ References
 from __future__ import annotations
 
 from supervisor import constants as C
+from supervisor.chamber.ventilation import (
+    L_PER_FT3,
+    NAVY_VENT_AIR_REST_ACFM,
+    NAVY_VENT_AIR_WORK_ACFM,
+    NAVY_VENT_O2_ACFM,
+)
 from supervisor.errors import SupervisorError
 from supervisor.plan import SURD_INTERVAL_MIN
 
@@ -65,7 +76,6 @@ COMPUTE_ERRORS: tuple[type[BaseException], ...] = (
     ValueError,
     ArithmeticError,
 )
-L_PER_FT3: float = 28.316846592  # litres per cubic foot (international foot, exact)
 RMV_LPM: float = 1.4 * L_PER_FT3
 RMV_SOURCE = "1.4 acfm demand-helmet average, U.S. Navy Diving Manual Rev 4 Change A 8-2.2.2"
 CABIN_ALTITUDE_M: float = 8000 * C.M_PER_FT
@@ -78,9 +88,6 @@ O2_AIR_BREAK: tuple[float, float] = (30.0, 5.0)
 EGS_BOTTOM_MIN: float = 5.0
 MARGIN_CAP_MIN: int = 120
 ALTITUDE_SEARCH_MAX_MIN: int = 72 * 60
-NAVY_VENT_O2_ACFM: float = 12.5
-NAVY_VENT_AIR_REST_ACFM: float = 2.0
-NAVY_VENT_AIR_WORK_ACFM: float = 4.0
 TREATMENT_DEPTH_FSW: float = 60.0
 TREATMENT_MIN: float = 285.0
 CHAMBER_OCCUPANTS: int = 2

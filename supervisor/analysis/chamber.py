@@ -30,31 +30,42 @@ Arithmetic (Boyle's law, ideal gas, one temperature):
   than the ideal-gas figure.
 
 Ventilation ``Q``: the plan's ``chamber.ventilation_lpm`` if given; otherwise the
-U.S. Navy per-person rates (Rev 4 Change A §22-5.4, OLDER-EDITION) for the
-treatment's occupants: 12.5 acfm per person breathing oxygen from BIBS with no
-overboard dump, every occupant counted on oxygen (an upper bound: tenders breathe
-oxygen for part of a treatment); with an overboard dump, the air rates 2 acfm for
-the patient at rest and 4 acfm per tender working (that the dump case takes the
-air rates is FROM MEMORY).
+U.S. Navy per-person rates (Rev 4 Change A §22-5.4, OLDER-EDITION,
+:mod:`supervisor.chamber.ventilation`).  For surface decompression: 12.5 acfm per
+person breathing oxygen from BIBS with no overboard dump, every occupant counted on
+oxygen (an upper bound); with an overboard dump, the air rates 2 acfm for the
+patient at rest and 4 acfm per tender working (that the dump case takes the air
+rates is FROM MEMORY).
 
-Defaults (``chamber.treatment_depth``, ``treatment_min``, ``treatment_occupants``):
-U.S. Navy Treatment Table 6, 60 fsw (Rev 4 Change A ch. 21, OLDER-EDITION) for
-285 min (its step times FROM MEMORY), and two occupants, the patient and one inside
-tender (common practice, no source).  The result carries the least certain status
-of what it used; with only the plan's own figures it carries none.  The chamber
-maker's manual and the contractor's manual govern.
+Treatment default: with none of ``chamber.treatment_depth``, ``treatment_min`` and
+``treatment_gas_l`` given, the treatment is the bundled U.S. Navy Treatment Table 6
+(``tables/treatment/usn-tt6.toml``, steps FROM MEMORY) laid out as its timeline:
+compression to 60 fsw, then each step at its own depth (60 fsw, the 60-30 fsw
+travel, 30 fsw, the ascent), ventilated per step for who breathes oxygen (the
+patient on the oxygen periods, the inside attendant on the table's attendant
+rule), 288 min from leaving the surface; with ``chamber.treatment_extensions =
+true``, with every extension the table allows (488 min).  Every lock is
+pressurised once to 60 fsw.  When the plan gives a treatment depth or duration of
+its own, the older estimate is kept: that depth for that time (60 fsw, 285 min
+for what is not given).  Occupants: ``chamber.treatment_occupants`` or two, the
+patient and one inside tender (common practice, no source).  The result carries
+the least certain status of what it used; with only the plan's own figures it
+carries none.  The chamber maker's manual and the contractor's manual govern.
 
 References
 ----------
 .. [1] 46 CFR 197.340, breathing gas supply (chamber for the dive and one hour after).
 .. [2] U.S. Navy Diving Manual, Revision 4 Change A (2001), ch. 21 (treatment
        tables) and §22-5.4 (chamber ventilation).
+.. [3] U.S. Navy Diving Manual, Revision 7 Change A (2018), ch. 17, Treatment
+       Table 6 (steps from memory; see the table file).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any
+from functools import lru_cache
+from typing import TYPE_CHECKING, Any
 
 from supervisor import constants as C
 from supervisor.analysis.assumptions import (
@@ -71,10 +82,26 @@ from supervisor.engine.buhlmann import least_certain
 from supervisor.plan import Dive, Plan
 from supervisor.profile import Profile
 
+if TYPE_CHECKING:
+    from supervisor.chamber.timeline import Timeline
+
 NAVY_VENTILATION = "U.S. Navy Diving Manual, Rev 4 Change A, §22-5.4 (chamber ventilation)"
 NAVY_TT6 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 21 (Treatment Table 6)"
 #: Sources of the default figures of the estimate.
 CHAMBER_SOURCES = f"{NAVY_VENTILATION}; {NAVY_TT6}"
+#: The bundled table the treatment default is laid out from.
+DEFAULT_TREATMENT_TABLE = "6"
+
+
+@lru_cache(maxsize=2)
+def default_treatment(extended: bool) -> Timeline:
+    """The bundled Treatment Table 6 timeline (every extension when ``extended``)."""
+    from supervisor.chamber.catalogue import load_treatment
+    from supervisor.chamber.extensions import full_request
+    from supervisor.chamber.timeline import build_timeline
+
+    table = load_treatment(DEFAULT_TREATMENT_TABLE)
+    return build_timeline(table, 0.0, full_request(table) if extended else None)
 
 
 @dataclass
@@ -162,6 +189,49 @@ def _ventilation(plan: Plan, statuses: list[str], basis: list[str]) -> tuple[flo
     return acfm * L_PER_FT3, n
 
 
+def _table_treatment(plan: Plan, out: ChamberGas, statuses: list[str]) -> float:
+    """The treatment part from the bundled Treatment Table 6 timeline; returns its depth."""
+    from supervisor.chamber.attendant import attendant_oxygen
+    from supervisor.chamber.ventilation import (
+        pressurising_gas_l,
+        ventilation_gas_l,
+        ventilation_pieces,
+        ventilation_summary,
+    )
+
+    c = plan.chamber
+    assert c.lock_volumes_l is not None
+    extended = bool(c.treatment_extensions)
+    tl = default_treatment(extended)
+    n = c.treatment_occupants or CHAMBER_OCCUPANTS
+    out.occupants = n
+    if c.treatment_occupants is None:
+        statuses.append("FROM MEMORY")
+        out.basis.append(f"{n} occupants (default; common practice, no source)")
+    dump = bool(c.bibs_overboard_dump)
+    pieces = ventilation_pieces(tl, attendant_oxygen(tl, False).intervals, n, dump,
+                                c.ventilation_lpm)
+    bpf = bar_per_unit("fsw")
+    out.parts["treatment: pressurising"] = pressurising_gas_l(c.lock_volumes_l, tl.max_depth, bpf)
+    out.parts["treatment: ventilation"] = ventilation_gas_l(pieces, "fsw", plan.p_surface_bar)
+    statuses.append(tl.status)
+    if c.ventilation_lpm is None:
+        statuses.append("FROM MEMORY" if dump else "OLDER-EDITION")
+        rates = "; ".join(f"{v['acfm']:g} acfm for {v['minutes']:g} min ({v['situation']})"
+                          for v in ventilation_summary(pieces))
+        vent = f"ventilation per step by the Navy per-person rates: {rates}"
+    else:
+        vent = f"ventilation {c.ventilation_lpm:g} L/min (chamber.ventilation_lpm)"
+    ext = (f", with every extension ({tl.elapsed_min:g} min)" if extended else
+           f", no extensions ({tl.elapsed_min:g} min; chamber.treatment_extensions = true sizes "
+           "for every extension)")
+    out.basis.append(
+        f"treatment: Treatment Table {tl.number} as its timeline (bundled {tl.table.name}, steps "
+        f"{tl.status}), depth by step from leaving the surface{ext}; all locks to "
+        f"{tl.max_depth:g} fsw once; {vent}")
+    return plan.from_fsw(tl.max_depth)
+
+
 def chamber_gas(plan: Plan, dive: Dive, profile: Profile) -> ChamberGas:
     """Estimate the chamber's gas for ``dive`` (module docstring).
 
@@ -197,7 +267,9 @@ def chamber_gas(plan: Plan, dive: Dive, profile: Profile) -> ChamberGas:
     def fill(volume_l: float, depth: float) -> float:
         return volume_l * depth * bpu / C.P_ATM_BAR
 
-    need_vent = surd or c.treatment_gas_l is None
+    own_treatment = c.treatment_depth is not None or c.treatment_min is not None
+    use_table = c.treatment_gas_l is None and not own_treatment
+    need_vent = surd or (c.treatment_gas_l is None and not use_table)
     q = None
     if need_vent:
         q, out.occupants = _ventilation(plan, statuses, out.basis)
@@ -217,16 +289,24 @@ def chamber_gas(plan: Plan, dive: Dive, profile: Profile) -> ChamberGas:
             f"surface decompression: inner lock to {d_max:g} {plan.unit}, "
             f"{sum(s.minutes for s in segs):.1f} min in the chamber"
         )
-    depth = c.treatment_depth if c.treatment_depth is not None else plan.from_fsw(
-        TREATMENT_DEPTH_FSW)
-    minutes = c.treatment_min if c.treatment_min is not None else TREATMENT_MIN
     if c.treatment_gas_l is not None:
+        depth = c.treatment_depth if c.treatment_depth is not None else plan.from_fsw(
+            TREATMENT_DEPTH_FSW)
         out.parts["treatment (chamber manual)"] = float(c.treatment_gas_l)
         out.basis.append(f"treatment {c.treatment_gas_l:g} L (chamber.treatment_gas_l)")
+        if c.treatment_depth is None:
+            statuses.append("OLDER-EDITION")
+    elif use_table:
+        assert c.lock_volumes_l is not None
+        depth = _table_treatment(plan, out, statuses)
     else:
         assert c.lock_volumes_l is not None and q is not None
+        depth = c.treatment_depth if c.treatment_depth is not None else plan.from_fsw(
+            TREATMENT_DEPTH_FSW)
+        minutes = c.treatment_min if c.treatment_min is not None else TREATMENT_MIN
         defaults = []
         if c.treatment_depth is None:
+            statuses.append("OLDER-EDITION")
             defaults.append("depth OLDER-EDITION")
         if c.treatment_min is None:
             statuses.append("FROM MEMORY")
@@ -235,10 +315,9 @@ def chamber_gas(plan: Plan, dive: Dive, profile: Profile) -> ChamberGas:
         out.parts["treatment: pressurising"] = sum(fill(v, depth) for v in c.lock_volumes_l)
         out.parts["treatment: ventilation"] = q * minutes * (ps + depth * bpu) / C.P_ATM_BAR
         out.basis.append(
-            f"treatment: all locks to {depth:g} {plan.unit}, {minutes:g} min at that depth{why}"
+            f"treatment: all locks to {depth:g} {plan.unit}, {minutes:g} min at that depth "
+            f"(the plan's own treatment figures){why}"
         )
-    if c.treatment_depth is None:
-        statuses.append("OLDER-EDITION")
     deepest = max(deepest, depth)
     out.need_l = float(sum(out.parts.values()))
     air = c.air_supply

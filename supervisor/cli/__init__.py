@@ -12,9 +12,12 @@ import typer
 from supervisor import __version__
 from supervisor.cli import check as _check
 from supervisor.cli import checklist as _checklist
+from supervisor.cli import log as _log
 from supervisor.cli import plan as _plan
+from supervisor.cli import records as _records
 from supervisor.cli import schedule as _schedule
 from supervisor.cli import tables as _tables
+from supervisor.cli import treatment as _treatment
 
 app = typer.Typer(
     name="supervisor",
@@ -42,7 +45,7 @@ def _root(
     """Check proposed dive and chamber schedules before anyone gets wet."""
 
 
-for _mod in (_schedule, _tables, _plan, _check, _checklist):
+for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log, _treatment):
     _mod.register(app)
 
 

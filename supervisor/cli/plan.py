@@ -25,9 +25,10 @@ from typing import Any, TypeVar
 
 import typer
 
-from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_OK
+from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_OK, error_line, say, say_block
 from supervisor.errors import SupervisorError
 from supervisor.plan import PlanValidationError, load_plan, plan_json_schema
+from supervisor.text import excerpt
 
 F = TypeVar("F", bound=Callable[..., Any])
 
@@ -50,20 +51,22 @@ def plan_errors(func: F) -> F:
     def wrapper(*args: Any, **kwargs: Any) -> Any:
         try:
             return func(*args, **kwargs)
-        except typer.Exit:
-            raise
+        except (typer.Exit, BrokenPipeError):
+            raise  # a closed pipe (`| head`) is handled quietly by main()
         except PlanValidationError as exc:
-            for line in exc.lines():
-                typer.echo(line, err=True)
+            for field, message in exc.problems:
+                error_line(f"{field}: {message}")
             raise typer.Exit(EXIT_BAD_INPUT) from None
         except (SupervisorError, OSError, UnicodeError) as exc:
-            typer.echo(f"error: {exc}", err=True)
+            error_line(exc)
+            raise typer.Exit(EXIT_BAD_INPUT) from None
+        except RecursionError:
+            error_line("plan: nested too deeply to be read; expected at most 16 levels of "
+                       "tables and lists")
             raise typer.Exit(EXIT_BAD_INPUT) from None
         except Exception as exc:  # keep the one-line promise even for a bug
-            msg = " ".join(str(exc).split())
-            typer.echo(
-                f"error: internal error ({type(exc).__name__}: {msg}); please report it", err=True
-            )
+            msg = excerpt(" ".join(str(exc).split()), 200)
+            error_line(f"internal error ({type(exc).__name__}: {msg}); please report it")
             raise typer.Exit(EXIT_BAD_INPUT) from None
 
     return wrapper  # type: ignore[return-value]
@@ -76,7 +79,7 @@ def validate(
 ) -> None:
     """Validate a plan file; print one line per problem."""
     p = load_plan(plan)
-    typer.echo(
+    say(
         f"ok: {plan}: {len(p.dives)} dive(s), {len(p.team)} team member(s), unit {p.unit}, "
         f"jurisdiction {p.job.jurisdiction}"
     )
@@ -144,20 +147,26 @@ def schema(
     """Print the JSON Schema of the plan file (or write it with --out)."""
     text = json.dumps(plan_json_schema(), indent=2, sort_keys=False) + "\n"
     if out is None:
-        typer.echo(text, nl=False)
+        say_block(text.rstrip("\n"))
         raise typer.Exit(EXIT_OK)
-    if out.is_dir():
-        typer.echo(f"error: --out: {out} is a folder; expected a file path", err=True)
+    shown = excerpt(str(out), 200) if len(str(out)) > 200 else str(out)
+    try:
+        is_dir = out.is_dir()
+    except OSError as exc:
+        error_line(f"--out: cannot write {shown} ({exc.strerror or exc})")
+        raise typer.Exit(EXIT_BAD_INPUT) from None
+    if is_dir:
+        error_line(f"--out: {shown} is a folder; expected a file path")
         raise typer.Exit(EXIT_BAD_INPUT)
     try:
         write_new_file(out, text, force)
     except _Exists:
-        typer.echo(f"error: --out: {out} exists; give --force to replace it", err=True)
+        error_line(f"--out: {shown} exists; give --force to replace it")
         raise typer.Exit(EXIT_BAD_INPUT) from None
     except OSError as exc:
-        typer.echo(f"error: --out: cannot write {out} ({exc.strerror or exc})", err=True)
+        error_line(f"--out: cannot write {shown} ({exc.strerror or exc})")
         raise typer.Exit(EXIT_BAD_INPUT) from None
-    typer.echo(f"wrote {out}")
+    say(f"wrote {out}")
     raise typer.Exit(EXIT_OK)
 
 

@@ -2,14 +2,16 @@
 
 from __future__ import annotations
 
-import json
+import math
 import re
 
 import typer
 
-from supervisor.cli._common import fail_input, guarded
+from supervisor.cli._common import fail_input, guarded, json_text, say
 from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedule
 from supervisor.gas import parse_gas
+from supervisor.plan_fields import rate_range
+from supervisor.text import excerpt
 from supervisor.units import altitude_pressure
 
 #: Defaults by unit: descent rate, ascent rate, stop step, last stop.
@@ -25,7 +27,7 @@ def parse_gf(text: str) -> tuple[float, float]:
     """Parse ``LOW/HIGH`` gradient factors in percent into fractions."""
     m = _GF.match(text or "")
     if not m:
-        fail_input("--gf", f"got {text!r}; expected LOW/HIGH percentages such as 30/85")
+        fail_input("--gf", f"got {excerpt(text)}; expected LOW/HIGH percentages such as 30/85")
     lo, hi = float(m.group(1)), float(m.group(2))  # type: ignore[union-attr]
     for name, v in (("low", lo), ("high", hi)):
         if not 1.0 <= v <= 100.0:
@@ -39,11 +41,15 @@ def parse_deco_gas(text: str) -> tuple[str, float]:
     """Parse ``GAS@DEPTH`` (e.g. ``oxygen@20``, ``50/0@70``)."""
     gas, sep, depth = (text or "").rpartition("@")
     if not sep or not gas:
-        fail_input("--deco-gas", f"got {text!r}; expected GAS@DEPTH such as oxygen@20 or 50/0@70")
+        fail_input("--deco-gas",
+                   f"got {excerpt(text)}; expected GAS@DEPTH such as oxygen@20 or 50/0@70")
     try:
         d = float(depth)
+        if not math.isfinite(d):
+            raise ValueError
     except ValueError:
-        fail_input("--deco-gas", f"got depth {depth!r} in {text!r}; expected a number such as 20")
+        fail_input("--deco-gas",
+                   f"got depth {excerpt(depth)} in {excerpt(text)}; expected a number such as 20")
     parse_gas(gas, "--deco-gas")
     return gas, d
 
@@ -53,7 +59,7 @@ def _parse_break(text: str | None, option: str) -> tuple[float, float] | None:
         return None
     m = _GF.match(text)
     if not m or float(m.group(1)) <= 0 or float(m.group(2)) <= 0:
-        fail_input(option, f"got {text!r}; expected GAS_MIN/AIR_MIN such as 30/5")
+        fail_input(option, f"got {excerpt(text)}; expected GAS_MIN/AIR_MIN such as 30/5")
     return float(m.group(1)), float(m.group(2))  # type: ignore[union-attr]
 
 
@@ -139,17 +145,22 @@ def register(app: typer.Typer) -> None:
             help="Surface decompression: leave the water after the stop at this depth.",
         ),
         surd_interval: float = typer.Option(
-            5.0, "--surface-interval", help="Surface decompression interval [min]."
+            None, "--surface-interval",
+            help="Surface decompression interval [min] (5; with --surface-decompression).",
         ),
         chamber_depth: float = typer.Option(
-            None, "--chamber-depth", help="First chamber stop (50 fsw, 15 msw)."
+            None, "--chamber-depth",
+            help="First chamber stop (50 fsw, 15 msw; with --surface-decompression).",
         ),
         chamber_compression_rate: float = typer.Option(
             None, "--chamber-compression-rate",
-            help="Chamber compression rate [unit/min] (default: the descent rate).",
+            help="Chamber compression rate [unit/min] (default: the descent rate; with "
+            "--surface-decompression).",
         ),
         chamber_air_break: str = typer.Option(
-            "30/5", "--chamber-air-break", help="Chamber oxygen/air periods, e.g. 30/5."
+            None, "--chamber-air-break",
+            help="Chamber oxygen/air periods, e.g. 30/5 (the default; with "
+            "--surface-decompression).",
         ),
         altitude: float = typer.Option(0.0, "--altitude", help="Site altitude [m]."),
         water: str = typer.Option("salt", "--water", help="salt or fresh."),
@@ -157,21 +168,37 @@ def register(app: typer.Typer) -> None:
     ) -> None:
         """Compute a model decompression schedule (ZH-L16 with gradient factors)."""
         if unit not in UNIT_DEFAULTS:
-            fail_input("--unit", f"got {unit!r}; expected fsw or msw")
+            fail_input("--unit", f"got {excerpt(unit)}; expected fsw or msw")
         if water not in ("salt", "fresh"):
-            fail_input("--water", f"got {water!r}; expected salt or fresh")
+            fail_input("--water", f"got {excerpt(water)}; expected salt or fresh")
         dd, da, ds, dl = UNIT_DEFAULTS[unit]
         lo, hi = parse_gf(gf)
+        chamber_options = {"--surface-interval": surd_interval, "--chamber-depth": chamber_depth,
+                           "--chamber-compression-rate": chamber_compression_rate,
+                           "--chamber-air-break": chamber_air_break}
+        if surd is None:
+            for option, value in chamber_options.items():
+                if value is not None:
+                    fail_input(option, f"got {excerpt(value)} without --surface-decompression; "
+                               "it applies only to surface decompression (give "
+                               "--surface-decompression DEPTH, or leave the option out)")
+        given_rates = {"--descent-rate": descent_rate, "--ascent-rate": ascent_rate,
+                       "--chamber-compression-rate": chamber_compression_rate}
+        slowest, fastest = rate_range(unit)
+        for option, rate in given_rates.items():
+            if rate is not None and not slowest <= rate <= fastest:  # also refuses nan
+                fail_input(option, f"got {rate:g}; expected a rate from {slowest:g} to "
+                           f"{fastest:g} {unit}/min")
         sd = None
         if surd is not None:
             sd = SurfaceDecompression(
                 leave_water_depth=surd,
-                surface_interval_min=surd_interval,
+                surface_interval_min=5.0 if surd_interval is None else surd_interval,
                 chamber_depth=chamber_depth
                 if chamber_depth is not None
                 else (50.0 if unit == "fsw" else 15.0),
                 chamber_gas="oxygen",
-                air_break=_parse_break(chamber_air_break, "--chamber-air-break"),
+                air_break=_parse_break(chamber_air_break or "30/5", "--chamber-air-break"),
                 compression_rate=chamber_compression_rate,
             )
         req = ScheduleRequest(
@@ -194,6 +221,7 @@ def register(app: typer.Typer) -> None:
         )
         js = plan_schedule(req).to_json()
         if as_json:
-            typer.echo(json.dumps(js, indent=2))
+            typer.echo(json_text(js))
         else:
-            typer.echo(_table(js))
+            for line in _table(js).splitlines():
+                say(line)

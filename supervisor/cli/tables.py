@@ -14,12 +14,12 @@ build     0 written; 2 bad option or a schedule the engine cannot compute.
 lookup    0 a row found; 1 outside the table or no such schedule; 2 bad input.
 screen    0 no row flagged; 1 rows flagged, or the file fails the sanity rules (it is
           still screened: screening is a transcription aid); 2 unreadable file or one
-          that fails the schema.
+          that fails the schema.  A treatment table is screened for its arithmetic: step
+          times against the stated totals, travel against the stated rates.
 """
 
 from __future__ import annotations
 
-import json
 import math
 from enum import StrEnum
 from pathlib import Path
@@ -27,7 +27,14 @@ from typing import Any
 
 import typer
 
-from supervisor.cli._common import EXIT_BAD_INPUT, EXIT_FAIL, guarded
+from supervisor.cli._common import (
+    EXIT_BAD_INPUT,
+    EXIT_FAIL,
+    error_line,
+    guarded,
+    json_text,
+    say,
+)
 from supervisor.errors import InputError
 from supervisor.references import (
     ImportOptions,
@@ -129,15 +136,14 @@ def list_tables(
                         "source_status": t.least_status, "rows": len(t.rows),
                         "verified": t.n_verified, "error": None})
     if as_json:
-        typer.echo(json.dumps({"schema": "supervisor.tables-list/1", "tables": entries},
-                              indent=2, ensure_ascii=False))
+        typer.echo(json_text({"schema": "supervisor.tables-list/1", "tables": entries}))
     else:
-        typer.echo(f"{'name':<26} {'kind':<19} {'edition':<32} {'source status':<14} verified")
+        say(f"{'name':<26} {'kind':<19} {'edition':<32} {'source status':<14} verified")
         for e in entries:
             if e["error"]:
-                typer.echo(f"{e['name']:<26} {e['kind']:<19} INVALID: {e['error']}")
+                say(f"{e['name']:<26} {e['kind']:<19} INVALID: {e['error']}")
                 continue
-            typer.echo(f"{e['name']:<26} {e['kind']:<19} {_cut(e['edition'], 32):<32} "
+            say(f"{e['name']:<26} {e['kind']:<19} {_cut(e['edition'], 32):<32} "
                        f"{e['source_status']:<14} {e['verified']}/{e['rows']}")
     if failed:
         raise typer.Exit(EXIT_FAIL)
@@ -158,8 +164,9 @@ def _show_rows(t: Table) -> list[str]:
             lim = "unlimited" if r.unlimited else f"{_fmt(r.limit_min)} min"
             out.append(f"{i + 1:>4}  {_fmt(r.depth):>9}  {lim:>13}  {groups}  {_row_status(t, i)}")
     elif t.kind == "decompression":
-        out.append(f"{'row':>4}  {'depth/time':>10}  {'mode':<7} {'stops (depth:min)':<34} "
-                   f"{'total':>6} group flags  status")
+        # the stops come last and in full, however long (no row is cut)
+        out.append(f"{'row':>4}  {'depth/time':>10}  {'mode':<7} {'total':>6} group "
+                   f"{'flags':<13} {'status':<22} stops (depth:min)")
         for i, r in enumerate(t.rows):
             key = f"{_fmt(r.depth)}/{_fmt(r.bottom_time)}"
             for k, (mode, s) in enumerate(r.schedules().items()):
@@ -173,9 +180,9 @@ def _show_rows(t: Table) -> list[str]:
                                                  ("not-permitted", not s.permitted)) if on) or "-"
                 total = _fmt(s.total_ascent) if s.total_ascent is not None else "-"
                 lead = f"{i + 1:>4}  {key:>10}" if k == 0 else " " * 16
-                out.append(f"{lead}  {mode:<7} {_cut(stops, 34):<34} {total:>6} "
-                           f"{r.repetitive_group or '-':<5} {flags:<5}  "
-                           f"{_row_status(t, i) if k == 0 else ''}")
+                status = _row_status(t, i) if k == 0 else ""
+                out.append(f"{lead}  {mode:<7} {total:>6} {r.repetitive_group or '-':<5} "
+                           f"{flags:<13} {status:<22} {stops}")
     elif t.kind == "treatment":
         out.append(f"{'step':>4}  {'from→to ' + unit:>12}  {'min':>5}  {'gas':<8} {'rate':>5} "
                    f"{'elapsed':>7}  status")
@@ -198,33 +205,104 @@ def _show_rows(t: Table) -> list[str]:
     return out
 
 
+def _treatment_conventions(t: Table) -> list[str]:
+    """The planning conventions of a treatment table, for ``tables show``."""
+    c = t.model.conventions
+    out = []
+    if c.table_number:
+        out.append(f"table number: {c.table_number}; {c.citation or 'no citation given'}")
+    if c.indication:
+        out.append(f"use: {c.indication}")
+    if c.compression_rate is not None:
+        out.append(f"compression: {_fmt(c.compression_rate)} {c.depth_unit}/min to the first "
+                   f"step, outside the table time ({c.compression_status})")
+    elif c.compression_in_first_step:
+        out.append("compression: included in the first step's time")
+    if c.stated_total_min is not None:
+        out.append(f"stated total: {_fmt(c.stated_total_min)} min ({c.stated_total_status})"
+                   + (f"; with every extension {_fmt(c.stated_total_extended_min)} min "
+                      f"({c.stated_total_extended_status})"
+                      if c.stated_total_extended_min is not None else ""))
+    if c.plannable:
+        out.append("planning: `supervisor treatment plan " + (c.table_number or "NUMBER")
+                   + " --start HH:MM`")
+    else:
+        out.append("planning: REFUSED; the bundled source lacks: " + "; ".join(c.missing))
+    if c.plannable and c.missing:
+        out.append("not planned: " + "; ".join(c.missing))
+    for e in c.extensions:
+        parts = " + ".join(f"{_fmt(x.minutes)} min {x.gas}" for x in e.periods)
+        out.append(f"extension --extend-{e.option}: up to {e.max_count} x ({parts}) at "
+                   f"{_fmt(e.depth)} {c.depth_unit} after step {e.after_step}: {e.meaning} "
+                   f"[{e.citation}; {e.source_status}]")
+    if not c.extensions:
+        out.append("extensions: none bundled")
+    for a in c.attendant_oxygen:
+        out.append(f"attendant ({a.when}{'' if a.extensions is None else ' ' + str(a.extensions)}"
+                   f"): {a.case} [{a.citation}; {a.source_status}]")
+    if not c.attendant_oxygen:
+        out.append("attendant oxygen rule: none bundled")
+    return out
+
+
+def show_json(t: Table) -> dict[str, Any]:
+    """The ``supervisor.tables-show/1`` object: header, provenance, conventions, every row.
+
+    Each row is the file's row (data and verification columns) with ``row`` (1-based),
+    ``label`` and ``status`` (``source_status``, ``verified`` after the hash checks and
+    the ``reason`` when not).
+    """
+    doc = t.model.model_dump(mode="json", by_alias=True, exclude={"rows"})
+    rows = []
+    for i, r in enumerate(t.rows):
+        st = t.row_states[i]
+        rows.append({"row": i + 1, "label": t.label(i),
+                     **r.model_dump(mode="json", by_alias=True),
+                     "status": {"source_status": st.source_status, "verified": st.verified,
+                                "reason": st.reason}})
+    return {"schema": "supervisor.tables-show/1", **{k: v for k, v in doc.items()
+                                                    if k != "schema"},
+            "table_schema": doc.get("schema"), "path": str(t.path) if t.path else None,
+            "rows_verified": t.n_verified, "rows": rows,
+            "issues": [i.to_dict() for i in t.issues]}
+
+
 @tables_app.command("show")
 @guarded
 def show(
     name: str = typer.Argument(..., help="Bundled table name (see `tables list`) or a file path."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON (supervisor.tables-show/1): "
+                                 "every row with its data and verification status."),
 ) -> None:
-    """Show one table compactly: source, conventions and rows with their status."""
+    """Show one table: source, conventions and every row in full with its status."""
     t = load_table(name)
+    if as_json:
+        typer.echo(json_text(show_json(t)))
+        for issue in t.issues:
+            say(issue.line(t.name), err=True)
+        return
     p = t.model.provenance
-    typer.echo(f"{t.name}: {t.model.title} ({t.kind})")
-    typer.echo(f"source:  {p.source_document}; {p.edition}; {p.table}; {p.date}")
-    typer.echo(f"issued:  {p.issuing_body}; licence: {p.licence}")
-    typer.echo(f"status:  {p.source_status}; {t.n_verified} of {len(t.rows)} rows verified; "
+    say(f"{t.name}: {t.model.title} ({t.kind})")
+    say(f"source:  {p.source_document}; {p.edition}; {p.table}; {p.date}")
+    say(f"issued:  {p.issuing_body}; licence: {p.licence}")
+    say(f"status:  {p.source_status}; {t.n_verified} of {len(t.rows)} rows verified; "
                f"transcribed by {p.transcribed_by} {p.transcribed_on}".rstrip())
     c = t.model.conventions
     if t.kind in ("no-stop", "decompression"):
-        typer.echo(f"conventions: {c.depth_unit}; next deeper depth, next longer bottom time; "
+        say(f"conventions: {c.depth_unit}; next deeper depth, next longer bottom time; "
                    f"ascent {_fmt(c.ascent_rate)} {c.depth_unit}/min; gas {c.gas}; {c.place}; "
                    f"stops measured at: {c.stop_depth_reference}")
-        typer.echo(f"bottom time: {c.bottom_time_definition}")
+        say(f"bottom time: {c.bottom_time_definition}")
     elif t.kind == "treatment":
-        typer.echo(f"conventions: {c.depth_unit}; {c.place}; time: {c.time_definition}")
+        say(f"conventions: {c.depth_unit}; {c.place}; time: {c.time_definition}")
+        for line in _treatment_conventions(t):
+            say(line)
     if t.kind == "decompression":
-        typer.echo("modes: " + "; ".join(f"{k} = {v}" for k, v in MODE_TITLES.items()))
+        say("modes: " + "; ".join(f"{k} = {v}" for k, v in MODE_TITLES.items()))
     for line in _show_rows(t):
-        typer.echo(line.rstrip())
+        say(line.rstrip())
     for issue in t.issues:
-        typer.echo(issue.line(t.name), err=True)
+        say(issue.line(t.name), err=True)
 
 
 @tables_app.command("lookup")
@@ -251,37 +329,42 @@ def lookup(
         if mode not in MODE_TITLES:
             raise InputError("--mode", f"got {mode!r}; expected one of {', '.join(MODE_TITLES)}")
         res = lookup_schedule(t, depth, bottom_time, mode=mode)
+    elif t.kind == "treatment":
+        number = t.model.conventions.table_number or "NUMBER"
+        raise InputError("NAME", f"{t.name} is a treatment table; look-up works on no-stop and "
+                         f"decompression tables; plan a treatment with `supervisor treatment plan "
+                         f"{number} --start HH:MM`")
     else:
         raise InputError("NAME", f"{t.name} is a {t.kind} table; look-up works on no-stop and "
                          "decompression tables")
     d = res.to_dict()
     if as_json:
-        typer.echo(json.dumps(d, indent=2, ensure_ascii=False))
+        typer.echo(json_text(d))
     else:
         u = d["unit"]
         if d["outside_table"]:
-            typer.echo(f"{t.name}: {_fmt(depth)} {u} / {_fmt(bottom_time)} min is outside the "
+            say(f"{t.name}: {_fmt(depth)} {u} / {_fmt(bottom_time)} min is outside the "
                        f"table: {d['reason']}")
         else:
-            typer.echo(f"{t.name}: entered at {_fmt(d['depth'])} {u}"
+            say(f"{t.name}: entered at {_fmt(d['depth'])} {u}"
                        + (f" / {_fmt(d['bottom_time_min'])} min" if d.get("bottom_time_min")
                           is not None else "") + f" (row {d['row']})")
             if t.kind == "decompression" and d.get("stops") is not None:
                 stops = ", ".join(f"{_fmt(x['depth'])} {u} {_fmt(x['minutes'])} min {x['gas']}"
                                   f"{' (chamber)' if x['place'] == 'chamber' else ''}"
                                   for x in d["stops"]) or "no decompression stops"
-                typer.echo(f"{mode}: {stops}")
+                say(f"{mode}: {stops}")
             if d.get("no_stop_limit_min") is not None:
                 lim = d["no_stop_limit_min"]
                 lim = lim if isinstance(lim, str) else f"{_fmt(lim)} min"
                 within = {True: "yes", False: "no"}.get(d.get("within_no_stop_limit"), "-")
-                typer.echo(f"no-stop limit: {lim}; bottom time within it: {within}")
+                say(f"no-stop limit: {lim}; bottom time within it: {within}")
             if d.get("exceptional_exposure"):
-                typer.echo("exceptional exposure")
+                say("exceptional exposure")
             if d.get("reason"):
-                typer.echo(f"note: {d['reason']}")
+                say(f"note: {d['reason']}")
             review = "needs review" if d.get("needs_review") else "verified row"
-            typer.echo(f"row: {d['row_verification']}, source {d['source_status']} ({review})")
+            say(f"row: {d['row_verification']}, source {d['source_status']} ({review})")
     no_row = d["outside_table"] or (t.kind == "decompression" and d.get("stops") is None)
     if no_row:
         raise typer.Exit(EXIT_FAIL)
@@ -300,22 +383,21 @@ def validate(
     try:
         issues = validate_file(file)
     except UnreadableTableError as exc:
-        typer.echo(f"error: {exc}", err=True)
+        error_line(exc)
         raise typer.Exit(EXIT_BAD_INPUT) from None
     errs = errors(issues)
     if as_json:
-        typer.echo(json.dumps({"schema": "supervisor.tables-validate/1", "file": str(file),
+        typer.echo(json_text({"schema": "supervisor.tables-validate/1", "file": str(file),
                                "valid": not errs,
-                               "issues": [i.to_dict() for i in issues]}, indent=2,
-                              ensure_ascii=False))
+                               "issues": [i.to_dict() for i in issues]}))
     else:
         for i in issues:
-            typer.echo(i.line(str(file)))
+            say(i.line(str(file)))
         n_warn = len(issues) - len(errs)
         if errs:
-            typer.echo(f"{file}: invalid: {len(errs)} error(s), {n_warn} warning(s)")
+            say(f"{file}: invalid: {len(errs)} error(s), {n_warn} warning(s)")
         else:
-            typer.echo(f"{file}: valid ({n_warn} warning(s))")
+            say(f"{file}: valid ({n_warn} warning(s))")
     if errs:
         raise typer.Exit(EXIT_FAIL)
 
@@ -337,17 +419,17 @@ def verify(
         outcome = verify_rows(file, rows, by, method, on)
     except InvalidTableError as exc:
         for i in exc.issues:
-            typer.echo(i.line(str(file)), err=True)
-        typer.echo(f"error: {file} fails validation; nothing recorded", err=True)
+            say(i.line(str(file)), err=True)
+        say(f"error: {file} fails validation; nothing recorded", err=True)
         raise typer.Exit(EXIT_FAIL) from None
-    typer.echo(f"{file}: recorded check by {by.strip()} of {len(outcome.rows)} row(s)")
+    say(f"{file}: recorded check by {by.strip()} of {len(outcome.rows)} row(s)")
     if outcome.voided:
-        typer.echo(f"{file}: earlier checks no longer valid, reset to unverified: rows "
+        say(f"{file}: earlier checks no longer valid, reset to unverified: rows "
                    + ", ".join(map(str, outcome.voided)))
     t = load_table(file)
     low = {t.row_states[r - 1].source_status for r in outcome.rows} - {"VERIFIED"}
     if low:
-        typer.echo(f"note: the checked rows' source status is {', '.join(sorted(low))}; "
+        say(f"note: the checked rows' source status is {', '.join(sorted(low))}; "
                    "findings that use them stay 'needs review'")
 
 
@@ -396,13 +478,13 @@ def import_table(
         target, warnings = import_csv(csv_file, kind.value, opts, out, force)
     except InvalidTableError as exc:
         for i in exc.issues:
-            typer.echo(i.line(str(exc.path)), err=True)
-        typer.echo(f"error: {csv_file} does not make a valid table; nothing written", err=True)
+            say(i.line(str(exc.path)), err=True)
+        say(f"error: {csv_file} does not make a valid table; nothing written", err=True)
         raise typer.Exit(EXIT_FAIL) from None
     for w in warnings:
-        typer.echo(w.line(str(target)), err=True)
+        say(w.line(str(target)), err=True)
     t = load_table(target)
-    typer.echo(f"{target}: {t.kind} table {t.name} with {len(t.rows)} rows, all unverified")
+    say(f"{target}: {t.kind} table {t.name} with {len(t.rows)} rows, all unverified")
 
 
 @tables_app.command("build")
@@ -435,18 +517,22 @@ def build(
     specs = tuple(replace(s, gf_low=lo, gf_high=hi, model=model.value,
                           max_stop_time=max_stop_time) for s in specs)
     for path, state in build_tables(out_dir, specs, force=force):
-        typer.echo(f"{path}: {state}")
+        say(f"{path}: {state}")
 
 
 @tables_app.command("screen")
 @guarded
 def screen(
-    file: Path = typer.Argument(..., help="No-stop or decompression table file (TOML)."),
-    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set."),
-    tolerance: float = typer.Option(100 * DEFAULT_TOLERANCE, "--tolerance",
+    file: Path = typer.Argument(..., help="No-stop, decompression or treatment table file "
+                                "(TOML)."),
+    model: ModelChoice = typer.Option(ModelChoice.zhl16c, "--model", help="Coefficient set "
+                                      "(not used for a treatment table)."),
+    tolerance: float = typer.Option(None, "--tolerance",
                                     help="Flag a row whose surfacing supersaturation differs "
                                     "from every neighbour's by more than this [% of the "
-                                    "M-value gradient]."),
+                                    "M-value gradient, default 10]; for a treatment table, a "
+                                    "total or travel time off by more than this [min, default "
+                                    "1]."),
     descent_rate: float = typer.Option(None, "--descent-rate", help="Descent rate [depth "
                                        "unit/min] (default 75 fsw/min or 23 msw/min)."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON (supervisor.tables-screen/1)."),
@@ -457,27 +543,57 @@ def screen(
     rules (it is screened all the same), 2 for an unreadable file.
     """
     t = load_table(file, strict=False)
+    if t.kind == "treatment":
+        _screen_treatment(t, file, tolerance, as_json)
+        return
+    if tolerance is None:
+        tolerance = 100 * DEFAULT_TOLERANCE
     rep = screen_table(t, model.value, descent_rate, tolerance / 100.0)
     if as_json:
-        typer.echo(json.dumps(rep.to_dict(), indent=2, ensure_ascii=False))
+        typer.echo(json_text(rep.to_dict()))
     else:
-        typer.echo(f"{t.name}: screened with {rep.model} (coefficients {rep.coefficient_status}); "
+        say(f"{t.name}: screened with {rep.model} (coefficients {rep.coefficient_status}); "
                    f"flag when a row differs from every neighbour by more than "
                    f"{100 * rep.tolerance:g} % of the M-value gradient")
-        typer.echo(f"{'row':>4}  {'key':<22} {'mode':<7} {'surfacing':>9} {'max':>5} "
+        say(f"{'row':>4}  {'key':<22} {'mode':<7} {'surfacing':>9} {'max':>5} "
                    f"{'nearest':>7}  note")
         for r in rep.rows:
             def pct(x: float | None) -> str:
                 return "-" if x is None else f"{100 * x:.0f}%"
 
-            typer.echo(f"{r.row:>4}  {r.label:<22} {r.mode or '-':<7} {pct(r.surfacing_gf):>9} "
+            say(f"{r.row:>4}  {r.label:<22} {r.mode or '-':<7} {pct(r.surfacing_gf):>9} "
                        f"{pct(r.max_gf):>5} {pct(r.nearest_gf):>7}  "
                        f"{'FLAG ' if r.flagged else ''}{r.note}".rstrip())
         flagged = sorted({r.row for r in rep.flagged})
-        typer.echo(f"{len(flagged)} row(s) flagged" + (": " + ", ".join(map(str, flagged))
+        say(f"{len(flagged)} row(s) flagged" + (": " + ", ".join(map(str, flagged))
                                                         if flagged else ""))
     if rep.validation_errors:
-        typer.echo(f"note: {file} also fails validation ({len(rep.validation_errors)} "
+        say(f"note: {file} also fails validation ({len(rep.validation_errors)} "
+                   "error(s)); run `supervisor tables validate`", err=True)
+    if rep.flagged or rep.validation_errors:
+        raise typer.Exit(EXIT_FAIL)
+
+
+def _screen_treatment(t: Table, file: Path, tolerance: float | None, as_json: bool) -> None:
+    """``tables screen`` on a treatment table: step times, totals and travel against rates."""
+    from supervisor.references.screen_treatment import DEFAULT_TOLERANCE_MIN, screen_treatment
+
+    rep = screen_treatment(t, DEFAULT_TOLERANCE_MIN if tolerance is None else tolerance)
+    if as_json:
+        typer.echo(json_text(rep.to_dict()))
+    else:
+        say(f"{t.name}: treatment table screened: step times against the stated totals "
+                   f"and travel against the stated rates (flag beyond {rep.tolerance_min:g} min)")
+        say(f"{'check':<15} {'what':<34} {'expected':>9} {'found':>7}  note")
+        for ck in rep.checks:
+            def m(x: float | None) -> str:
+                return "-" if x is None else f"{x:g}"
+
+            say(f"{ck.check:<15} {_cut(ck.label, 34):<34} {m(ck.expected):>9} "
+                       f"{m(ck.found):>7}  {'FLAG ' if ck.flagged else ''}{ck.note}".rstrip())
+        say(f"{len(rep.flagged)} check(s) flagged")
+    if rep.validation_errors:
+        say(f"note: {file} also fails validation ({len(rep.validation_errors)} "
                    "error(s)); run `supervisor tables validate`", err=True)
     if rep.flagged or rep.validation_errors:
         raise typer.Exit(EXIT_FAIL)

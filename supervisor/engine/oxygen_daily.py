@@ -209,6 +209,11 @@ class DailyExposure:
         }
 
 
+#: Finest PO2 change between window-edge grid points inside a ramp [atm] (a bound on
+#: the work of a slow ramp; regression value, own choice, no source).
+_RAMP_PO2_STEP_ATM = 0.005
+
+
 class _Timeline:
     """All segments of several exposures on one absolute time axis, with exact doses."""
 
@@ -230,8 +235,15 @@ class _Timeline:
         self.cns0 = np.concatenate(([0.0], np.cumsum(cns)))
         # Window-edge positions: every segment boundary, plus a fine grid inside segments
         # whose PO2 changes (there the dose rate is not constant).
-        ramp = np.abs(self.p2 - self.p1) > _P_TOL_ATM
-        n = np.where(ramp, np.ceil(self.m / grid_min), 1).astype(np.int64)
+        dp = np.abs(self.p2 - self.p1)
+        ramp = dp > _P_TOL_ATM
+        # a grid step of grid_min, but no finer than a PO2 change of _RAMP_PO2_STEP_ATM: a
+        # slow ramp (1 fsw/min for hours) then costs a few hundred points, not tens of
+        # thousands, and the window dose misses at most the second-order term of a step
+        # whose dose rate barely changes (bounded work on any valid plan)
+        n_time = np.ceil(self.m / grid_min)
+        n_po2 = np.ceil(dp / _RAMP_PO2_STEP_ATM) + 1
+        n = np.where(ramp, np.maximum(np.minimum(n_time, n_po2), 1), 1).astype(np.int64)
         owner = np.repeat(np.arange(self.m.size), n)
         step = np.arange(owner.size) - np.repeat(np.cumsum(n) - n, n)
         inner = self.t0[owner] + self.m[owner] * step / n[owner]

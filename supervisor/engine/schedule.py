@@ -37,6 +37,9 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
+from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import dataclass, field, fields, replace
 from typing import Any
 
@@ -70,6 +73,86 @@ _EPS = 1e-9  # bar; tolerance on ceiling comparisons
 #: Accepted range of a schedule request: depth (about 30 bar gauge) and bottom time.
 MAX_DEPTH: dict[str, float] = {"fsw": 1000.0, "ft": 1000.0, "msw": 300.0, "m": 300.0}
 MAX_BOTTOM_MIN: int = 2880
+#: Slowest rate and finest stop step accepted [unit/min, unit]: 1 fsw/min, the slowest
+#: travel of the Navy oxygen treatment tables (U.S. Navy Diving Manual Rev 4/5, Treatment
+#: Tables 5 and 6, ascent <= 1 ft/min; OLDER-EDITION), and a 1 fsw grid (common practice,
+#: no source); in metres 0.3.  They bound the work of one schedule (issue: bounded work).
+MIN_RATE: dict[str, float] = {"fsw": 1.0, "ft": 1.0, "msw": 0.3, "m": 0.3}
+MIN_STOP_STEP: dict[str, float] = {"fsw": 1.0, "ft": 1.0, "msw": 0.3, "m": 0.3}
+#: Largest total stop time the planner computes [min]; a schedule needing more is
+#: "beyond the model's range" (:class:`BeyondRangeError`), not an endless search.  Two
+#: days: above the 33.5-35 h of Navy Treatment Table 4 (FROM MEMORY), far above any
+#: surface-oriented decompression.
+MAX_TOTAL_STOP_MIN: int = 2880
+
+
+class BeyondRangeError(ScheduleError):
+    """A decompression obligation larger than the planner computes (not an endless search)."""
+
+
+class WorkLimitError(BeyondRangeError):
+    """More schedule computation than one caller's work budget allows (:func:`work_budget`)."""
+
+
+@dataclass
+class _Budget:
+    """Stop levels left to a caller: one level is one pass of the planner's stop loop."""
+
+    levels: int
+    total: int
+
+
+_BUDGET: ContextVar[_Budget | None] = ContextVar("_BUDGET", default=None)
+
+
+@contextmanager
+def work_budget(levels: int) -> Iterator[_Budget]:
+    """Bound the schedule computations made inside the ``with`` block.
+
+    Every batch of :func:`plan_schedules` costs the number of stop depths its loop
+    visits (deepest candidate stop to the last stop, plus the chamber stops of
+    surface decompression), charged before it runs; once the budget is spent,
+    further schedules raise :class:`WorkLimitError` at once.  The count is
+    deterministic (no clock): the same plan always gets the same answer.
+
+    Parameters
+    ----------
+    levels : int
+        Stop levels allowed in the block [count].
+
+    Yields
+    ------
+    _Budget
+        The counter (``levels`` left, ``total`` given).
+    """
+    budget = _Budget(int(levels), int(levels))
+    token = _BUDGET.set(budget)
+    try:
+        yield budget
+    finally:
+        _BUDGET.reset(token)
+
+
+def _charge(reqs: list[ScheduleRequest]) -> None:
+    """Charge one batch's stop levels to the budget in force (if any)."""
+    budget = _BUDGET.get()
+    if budget is None:
+        return
+    r0 = reqs[0]
+    deepest = max(r.depth for r in reqs)
+    levels = int(math.ceil(deepest / r0.stop_step - 1e-9)) - int(round(r0.last_stop /
+                                                                     r0.stop_step)) + 1
+    sd = r0.surface_decompression
+    if sd is not None:
+        levels += int(math.floor(sd.chamber_depth / r0.stop_step + 1e-9))
+    if levels > budget.levels:
+        budget.levels = 0
+        raise WorkLimitError(
+            f"beyond the check's work limit: not computed (this plan asks for more model "
+            f"schedules than one check computes, {budget.total} stop levels; split the job "
+            "into smaller plans or use a coarser stop step)"
+        )
+    budget.levels -= max(levels, 1)
 
 CONVENTIONS: dict[str, str] = {
     "bottom_time": "from leaving the surface (descent included) to leaving the bottom",
@@ -163,6 +246,9 @@ class ScheduleRequest:
         Tensions at leaving the surface [bar] (a repetitive dive); default saturated with air.
     max_stop_min : int
         Longest single stop before the schedule is declared unable to clear [min].
+    max_total_stop_min : int
+        Largest total stop time computed [min]; beyond it the schedule is "beyond the
+        model's range" (:class:`BeyondRangeError`).
     """
 
     depth: float
@@ -185,6 +271,7 @@ class ScheduleRequest:
     p_n2_0: tuple[float, ...] | None = None
     p_he_0: tuple[float, ...] | None = None
     max_stop_min: int = 1440
+    max_total_stop_min: int = MAX_TOTAL_STOP_MIN
 
     def validate(self) -> None:
         """Raise InputError naming the option and the accepted range for bad input."""
@@ -203,9 +290,10 @@ class ScheduleRequest:
                 "--depth", f"got {self.depth!r}; expected a depth > 0 and <= {max_depth:g} "
                 f"{self.unit}"
             )
+        slowest = MIN_RATE[self.unit]
         for name, v in (("--descent-rate", self.descent_rate), ("--ascent-rate", self.ascent_rate)):
-            if not _num(v) or v <= 0:
-                raise InputError(name, f"got {v!r}; expected a rate > 0 {self.unit}/min")
+            if not _num(v) or v < slowest:
+                raise InputError(name, f"got {v!r}; expected a rate >= {slowest:g} {self.unit}/min")
         if not _num(self.bottom_time_min) or not 0 < self.bottom_time_min <= MAX_BOTTOM_MIN:
             raise InputError(
                 "--bottom-time",
@@ -228,8 +316,10 @@ class ScheduleRequest:
                 f"low {self.gf_low * 100:g} is above high {self.gf_high * 100:g}; "
                 "expected LOW/HIGH with LOW <= HIGH",
             )
-        if not _num(self.stop_step) or self.stop_step <= 0:
-            raise InputError("--stop-step", f"got {self.stop_step!r}; expected > 0 {self.unit}")
+        finest = MIN_STOP_STEP[self.unit]
+        if not _num(self.stop_step) or not finest <= self.stop_step <= max_depth:
+            raise InputError("--stop-step", f"got {self.stop_step!r}; expected a step from "
+                             f"{finest:g} to {max_depth:g} {self.unit}")
         ratio = self.last_stop / self.stop_step if self.stop_step else 0.0
         if not _num(self.last_stop) or self.last_stop <= 0 or abs(ratio - round(ratio)) > 1e-9:
             raise InputError(
@@ -258,9 +348,9 @@ class ScheduleRequest:
                         f"({self.last_stop:g} {u}) to the bottom depth ({self.depth:g} {u})"
                     )
             cr = sd.compression_rate
-            if cr is not None and (not _num(cr) or cr <= 0):
+            if cr is not None and (not _num(cr) or cr < slowest):
                 raise InputError("--chamber-compression-rate",
-                                 f"got {cr!r}; expected a rate > 0 {u}/min")
+                                 f"got {cr!r}; expected a rate >= {slowest:g} {u}/min")
             travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / sd.compression(
                 self.descent_rate)
             si = sd.surface_interval_min
@@ -428,6 +518,7 @@ def plan_schedules(
         groups.setdefault(_group_key(r), []).append(i)
     out: list[ScheduleResult | None] = [None] * len(requests)
     for idx in groups.values():
+        _charge([requests[i] for i in idx])
         res = _Batch([requests[i] for i in idx]).run(details)
         for i, rr in zip(idx, res, strict=True):
             out[i] = rr
@@ -652,9 +743,10 @@ class _Batch:
         while todo.size:
             if elapsed >= self.r0.max_stop_min:
                 j = int(todo[0])
-                raise ScheduleError(
-                    f"the stop at {_num_out(d_stop)} {self.r0.unit} on {g_rows[j].name} does not "
-                    f"clear within {self.r0.max_stop_min} min; the schedule cannot be computed"
+                raise BeyondRangeError(
+                    f"beyond the model's range: not computed (the stop at {_num_out(d_stop)} "
+                    f"{self.r0.unit} on {g_rows[j].name} does not clear within "
+                    f"{self.r0.max_stop_min} min)"
                 )
             w = int(min(width, self.r0.max_stop_min - elapsed))
             if per is None:
@@ -783,6 +875,7 @@ class _Batch:
                 for b in np.flatnonzero(stopping & (mins > 0)):
                     stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))
                 ascent_time += np.where(stopping, mins, 0)
+                _within_range(stops, s, r0)
 
         si_gf = [None] * B
         pend = phase == 2
@@ -906,6 +999,7 @@ class _Batch:
             for b in np.flatnonzero(rows & (mins > 0)):
                 stops[b].append(Stop(s, int(mins[b]), cgas[b].name, "chamber"))
             ascent_time += np.where(rows, mins, 0)
+            _within_range(stops, s, r0)
         tt = np.where(rows, cur / r0.ascent_rate, 0.0)
         pn2, ph2 = self.segment(pn, ph, cur, np.where(rows, 0.0, cur), tt, cgas)
         pn = np.where(rows[:, None], pn2, pn)
@@ -913,6 +1007,19 @@ class _Batch:
         self.record(rows, cur, 0.0, tt, cgas, "chamber", "decompression to surface")
         ascent_time += tt
         return pn, ph, np.where(rows, 0.0, cur)
+
+
+def _within_range(stops: list[list[Stop]], depth: float, req: ScheduleRequest) -> None:
+    """Stop the search once a schedule's stops pass the request's ``max_total_stop_min``."""
+    cap = req.max_total_stop_min
+    for row in stops:
+        total = sum(x.minutes for x in row)
+        if total > cap:
+            raise BeyondRangeError(
+                f"beyond the model's range: not computed (the stops pass {cap} min at "
+                f"{_num_out(depth)} {req.unit}, longer than any decompression the planner "
+                "computes)"
+            )
 
 
 #: Inspired PO2 below which a gas is hypoxic [bar]: the Navy hypoxia threshold
@@ -951,6 +1058,10 @@ def with_bottom_time(req: ScheduleRequest, bottom_time_min: float) -> ScheduleRe
 
 
 __all__ = [
+    "MAX_TOTAL_STOP_MIN",
+    "BeyondRangeError",
+    "WorkLimitError",
+    "work_budget",
     "CONVENTIONS",
     "SCHEMA",
     "SURFACE_INTERVAL",

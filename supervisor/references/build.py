@@ -155,6 +155,10 @@ def model_title(model: str) -> str:
     return f"ZH-L16{model[-1].upper()}" if model.startswith("zhl16") else model
 
 
+#: Total stop time the build lets the planner compute [min] (its grid is fixed).
+_BUILD_MAX_TOTAL_STOP_MIN = 100_000
+
+
 def _request(spec: BuildSpec, depth: float, bottom_time: float,
              mode: str = "air") -> ScheduleRequest:
     """The engine request of one row in one mode (the options of ``supervisor schedule``)."""
@@ -171,7 +175,9 @@ def _request(spec: BuildSpec, depth: float, bottom_time: float,
         depth=depth, bottom_time_min=bottom_time, unit=spec.unit, gas="air", model=spec.model,
         gf_low=spec.gf_low, gf_high=spec.gf_high, descent_rate=spec.descent_rate,
         ascent_rate=spec.ascent_rate, stop_step=spec.stop_step, last_stop=spec.last_stop,
-        **extra,
+        # the build's fixed grid of depths and bottom times runs past the planner's usual
+        # range before its rows are cut at max_stop_time (a bounded, known set of requests)
+        max_total_stop_min=_BUILD_MAX_TOTAL_STOP_MIN, **extra,
     )
 
 

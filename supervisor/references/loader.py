@@ -18,7 +18,6 @@ when ``strict`` (the default), so a table that fails them cannot be used.
 
 from __future__ import annotations
 
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -37,6 +36,8 @@ from supervisor.references.schema import (
 )
 from supervisor.references.validate import row_label, sanity_issues
 from supervisor.resources import tables_dir
+from supervisor.text import excerpt
+from supervisor.tomlfile import TomlError, parse_toml
 
 #: Source statuses that let a row decide on its own (with a verified transcription).
 TRUSTED_STATUSES: tuple[str, ...] = ("VERIFIED",)
@@ -176,19 +177,21 @@ def read_document(path: str | Path) -> dict[str, Any]:
         If the file is missing, unreadable, not UTF-8 or not TOML.
     """
     p = Path(path)
+    name = excerpt(str(p)) if len(str(p)) > 200 else str(p)
     try:
         data = p.read_bytes()
     except OSError as exc:
-        raise UnreadableTableError(f"{p}: cannot read the file ({exc.strerror or exc})") from None
+        raise UnreadableTableError(f"{name}: cannot read the file ({exc.strerror or exc})"
+                                   ) from None
     try:
         text = data.decode("utf-8")
     except UnicodeDecodeError as exc:
-        raise UnreadableTableError(f"{p}: not UTF-8 text (byte {exc.start}); table files are "
+        raise UnreadableTableError(f"{name}: not UTF-8 text (byte {exc.start}); table files are "
                                    "UTF-8 TOML") from None
     try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise UnreadableTableError(f"{p}: not valid TOML ({exc}); table files are TOML, see "
+        return parse_toml(text)
+    except TomlError as exc:
+        raise UnreadableTableError(f"{name}: {exc.reason}; table files are TOML, see "
                                    "tables/README.md") from None
 
 
@@ -214,8 +217,27 @@ def _fmt_loc(loc: tuple[Any, ...]) -> tuple[int | None, str]:
 
 
 def _short(value: Any) -> str:
-    text = repr(value)
-    return text if len(text) <= 60 else text[:57] + "..."
+    if isinstance(value, dict):
+        return "a table"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, bool):
+        return "true (a boolean)" if value else "false (a boolean)"
+    return excerpt(value)
+
+
+#: Accepted forms for pydantic's type errors, in the words of tables/README.md.
+_TYPE_FORMS: dict[str, str] = {
+    "float_type": "expected a number (not quoted, not true/false)",
+    "int_type": "expected a whole number (not quoted, not true/false)",
+    "int_from_float": "expected a whole number",
+    "string_type": "expected quoted text",
+    "bool_type": "expected true or false",
+    "list_type": "expected a list [...]",
+    "dict_type": "expected a table",
+    "model_type": "expected a table",
+    "finite_number": "expected a finite number",
+}
 
 
 def _pydantic_issues(exc: ValidationError, model: AnyTable | None = None) -> list[Issue]:
@@ -233,7 +255,11 @@ def _pydantic_issues(exc: ValidationError, model: AnyTable | None = None) -> lis
         if kind == "missing":
             msg = "missing; this column is required (see tables/README.md)"
         elif kind == "extra_forbidden":
-            msg = f"unknown key {col.rsplit('.', 1)[-1]!r} (a typo?); see tables/README.md"
+            msg = f"unknown key {excerpt(col.rsplit('.', 1)[-1])} (a typo?); see tables/README.md"
+        elif kind in _TYPE_FORMS:
+            msg = f"got {_short(e.get('input'))}; {_TYPE_FORMS[kind]}"
+        elif kind == "literal_error":
+            msg = f"got {_short(e.get('input'))}; expected {e.get('ctx', {}).get('expected', '?')}"
         elif not msg.startswith("got ") and not isinstance(e.get("input"), dict):
             msg = f"got {_short(e.get('input'))}; {msg[:1].lower()}{msg[1:]}"
         out.append(Issue("error", msg, row, col))
@@ -258,7 +284,7 @@ def check_document(doc: dict[str, Any], path: Path | None = None
     """
     issues: list[Issue] = []
     if doc.get("schema") != SCHEMA_ID:
-        issues.append(Issue("error", f"got {doc.get('schema')!r}; expected {SCHEMA_ID!r}",
+        issues.append(Issue("error", f"got {_short(doc.get('schema'))}; expected {SCHEMA_ID!r}",
                             None, "schema"))
     prov = doc.get("provenance")
     if not isinstance(prov, dict):
@@ -266,18 +292,48 @@ def check_document(doc: dict[str, Any], path: Path | None = None
                             "its values come from (see tables/README.md)", None, "provenance"))
     kind = doc.get("kind")
     if kind not in KINDS:
-        issues.append(Issue("error", f"got {kind!r}; expected one of {', '.join(KINDS)}",
+        issues.append(Issue("error", f"got {_short(kind)}; expected one of {', '.join(KINDS)}",
                             None, "kind"))
     if path is not None and doc.get("name") != path.stem:
-        issues.append(Issue("error", f"got {doc.get('name')!r}; the name must equal the file "
-                            f"stem {path.stem!r}", None, "name"))
-    if kind not in KINDS or not isinstance(prov, dict):
+        issues.append(Issue("error", f"got {_short(doc.get('name'))}; the name must equal the "
+                            f"file stem {excerpt(path.stem)}", None, "name"))
+    if not isinstance(kind, str) or kind not in KINDS or not isinstance(prov, dict):
         return None, issues
     try:
         model = TABLE_MODELS[kind].model_validate(doc)
     except ValidationError as exc:
         return None, issues + _pydantic_issues(exc)
     return model, issues  # type: ignore[return-value]
+
+
+def _bad_rows(issues: list[Issue]) -> set[int] | None:
+    """0-based rows named by schema errors; None when an error is outside the rows."""
+    bad: set[int] = set()
+    for i in errors(issues):
+        if i.row is None:
+            return None
+        bad.add(i.row - 1)
+    return bad
+
+
+def _sanity_of_good_rows(doc: dict[str, Any], issues: list[Issue]) -> list[Issue]:
+    """Sanity rules on the rows that pass the schema, when only some rows fail it.
+
+    A row with a wrong type is reported by the schema; the order, monotony and key
+    rules still run on the other rows (numbered as in the file), so one bad cell
+    never hides another problem.
+    """
+    bad = _bad_rows(issues)
+    rows = doc.get("rows")
+    if not bad or not isinstance(rows, list):
+        return []
+    keep = [k for k in range(len(rows)) if k not in bad]
+    if not keep:
+        return []
+    model, more = check_document({**doc, "rows": [rows[k] for k in keep]})
+    if model is None or errors(more):
+        return []
+    return sanity_issues(model, [k + 1 for k in keep])
 
 
 def verification_states(model: AnyTable, doc: dict[str, Any]
@@ -360,6 +416,9 @@ def inspect_document(doc: dict[str, Any], path: Path | None = None, strict: bool
     """
     model, issues = check_document(doc, path)
     if model is None:
+        if strict:
+            issues += _sanity_of_good_rows(doc, issues)
+        issues.sort(key=lambda i: (i.severity != "error",))
         return None, issues
     states, v_issues = verification_states(model, doc)
     issues += v_issues
@@ -383,13 +442,18 @@ def resolve(name_or_path: str | Path) -> Path:
         If no bundled table has that name.
     """
     p = Path(name_or_path)
-    if p.suffix == ".toml" or p.exists() or len(p.parts) > 1:
+    try:
+        exists = p.exists()
+    except OSError as exc:  # e.g. a name longer than the file system allows
+        raise UnreadableTableError(f"{excerpt(str(p))}: cannot be read ({exc.strerror or exc})"
+                                   ) from None
+    if p.suffix == ".toml" or exists or len(p.parts) > 1:
         return p
     for candidate in bundled_paths():
         if candidate.stem == str(name_or_path):
             return candidate
     names = ", ".join(c.stem for c in bundled_paths())
-    raise TableError(f"no bundled table named {str(name_or_path)!r}; bundled: {names}")
+    raise TableError(f"no bundled table named {excerpt(str(name_or_path))}; bundled: {names}")
 
 
 def load_table(name_or_path: str | Path, strict: bool = True) -> Table:

@@ -35,6 +35,7 @@ from pydantic import (
 
 from supervisor.errors import InputError
 from supervisor.gas import parse_gas
+from supervisor.text import excerpt
 
 SCHEMA_ID = "supervisor-table/1"
 
@@ -71,7 +72,9 @@ MODE_TITLES: dict[str, str] = {
 NAME_RE = re.compile(r"^[a-z0-9][a-z0-9._-]*$")
 _DATE_RE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
 
-_STRICT = ConfigDict(extra="forbid", str_strip_whitespace=True)
+#: Every table model: unknown keys refused, and types strict: a boolean or a quoted
+#: number ("70") is not a number, a number is not text (no silent conversion).
+_STRICT = ConfigDict(extra="forbid", str_strip_whitespace=True, strict=True)
 
 
 def is_iso_date(text: str) -> bool:
@@ -96,9 +99,11 @@ def _minutes_or_unlimited(value: Any) -> Any:
     if isinstance(value, str):
         if value.strip().lower() == "unlimited":
             return "unlimited"
-        raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
+        raise ValueError(f"got {excerpt(value)}; expected minutes (a number >= 0) or "
+                         "\"unlimited\"")
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
+        raise ValueError(f"got {shown_value(value)}; expected minutes (a number >= 0) or "
+                         "\"unlimited\"")
     if not value >= 0 or value != value or value == float("inf"):
         raise ValueError(f"got {value!r}; expected minutes (a number >= 0) or \"unlimited\"")
     return value
@@ -110,9 +115,22 @@ NonNegative = Annotated[float, Field(ge=0, allow_inf_nan=False)]
 Positive = Annotated[float, Field(gt=0, allow_inf_nan=False)]
 
 
+def shown_value(value: Any) -> str:
+    """A rejected cell in a message: a short excerpt, tables and lists by kind."""
+    if isinstance(value, dict):
+        return "a table"
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, bool):
+        return "true (a boolean)" if value else "false (a boolean)"
+    return excerpt(value)
+
+
 def _gas_name(value: Any) -> Any:
     if not isinstance(value, str):
-        raise ValueError(f"got {value!r}; expected a gas such as air, oxygen, 32/0 or 16/84")
+        raise ValueError(
+            f"got {shown_value(value)}; expected a gas such as air, oxygen, 32/0 or 16/84"
+        )
     try:
         parse_gas(value)
     except InputError as exc:
@@ -150,7 +168,7 @@ class Provenance(BaseModel):
             return self
         if not is_iso_date(self.transcribed_on):
             raise ValueError(
-                f"transcribed_on: got {self.transcribed_on!r}; expected a date YYYY-MM-DD"
+                f"transcribed_on: got {excerpt(self.transcribed_on)}; expected a date YYYY-MM-DD"
             )
         return self
 
@@ -265,8 +283,105 @@ class DecompressionConventions(TableConventions):
     chamber_travel_min: NonNegative | None = None
 
 
+class ExtensionPeriod(BaseModel):
+    """One part of a treatment-table extension: a gas for some minutes at the extension depth."""
+
+    model_config = _STRICT
+
+    gas: GasName
+    minutes: Positive
+
+
+class TreatmentExtension(BaseModel):
+    """An extension the table allows, as the plan option that asks for it.
+
+    One extension is ``periods`` at ``depth``, inserted after step ``after_step``
+    of the table (after the earlier extensions of the same option); a table
+    allows up to ``max_count`` of them.  ``option`` names the planning option:
+    ``oxygen`` for ``--extend-oxygen``, ``air`` for ``--extend-air``.
+    """
+
+    model_config = _STRICT
+
+    option: Literal["oxygen", "air"]
+    depth: NonNegative
+    after_step: int = Field(ge=1)
+    periods: list[ExtensionPeriod] = Field(min_length=1)
+    max_count: int = Field(ge=1, le=20)
+    meaning: str = Field(min_length=1)
+    source_status: SourceStatus
+    citation: str = Field(min_length=1)
+    note: str = ""
+
+    @property
+    def minutes(self) -> float:
+        """Minutes one extension adds [min]."""
+        return float(sum(p.minutes for p in self.periods))
+
+
+class AttendantOxygen(BaseModel):
+    """One case of the inside attendant's oxygen rule of a table.
+
+    ``when`` selects the case: ``always``; ``extensions-at-most`` /
+    ``extensions-more-than`` the number ``extensions`` of extensions run (the
+    base cases; exactly one applies); ``recent-exposure`` adds to the base case
+    when the attendant dived or had another hyperbaric exposure recently.  The
+    attendant breathes oxygen for the last ``oxygen_min`` oxygen minutes of the
+    patient at ``depth`` before the chamber leaves it, and, with
+    ``with_ascent``, for the ascent from there to the surface.  A case with no
+    oxygen (``oxygen_min = 0`` and no ascent) means chamber air only.
+    """
+
+    model_config = _STRICT
+
+    case: str = Field(min_length=1)
+    when: Literal["always", "extensions-at-most", "extensions-more-than", "recent-exposure"]
+    extensions: int | None = Field(None, ge=0)
+    depth: NonNegative | None = None
+    oxygen_min: NonNegative = 0.0
+    with_ascent: bool = False
+    source_status: SourceStatus
+    citation: str = Field(min_length=1)
+    note: str = ""
+
+    @model_validator(mode="after")
+    def _consistent(self) -> AttendantOxygen:
+        if self.when in ("extensions-at-most", "extensions-more-than") and self.extensions is None:
+            raise ValueError(f"when = {self.when!r} needs extensions (a count)")
+        if self.when in ("always", "recent-exposure") and self.extensions is not None:
+            raise ValueError(f"when = {self.when!r} takes no extensions count")
+        if (self.oxygen_min > 0 or self.with_ascent) and self.depth is None:
+            raise ValueError("an oxygen case needs depth (where the attendant breathes oxygen)")
+        return self
+
+    def applies(self, n_extensions: int) -> bool:
+        """Whether this base case applies to a treatment with ``n_extensions`` extensions."""
+        if self.when == "always":
+            return True
+        if self.when == "extensions-at-most":
+            return n_extensions <= (self.extensions or 0)
+        if self.when == "extensions-more-than":
+            return n_extensions > (self.extensions or 0)
+        return False
+
+
 class TreatmentConventions(BaseModel):
-    """Conventions of a treatment table (a chamber or in-water step list)."""
+    """Conventions of a treatment table (a chamber or in-water step list).
+
+    Beyond the four original keys every field is optional, so a contractor's
+    imported table stays valid; a table is planned by ``supervisor treatment
+    plan`` only when it gives ``table_number`` and is ``plannable``.
+
+    ``compression_rate`` [unit/min] is the compression from the surface to the
+    first step; with ``compression_in_first_step`` the first step's minutes
+    include it (the table's clock starts on leaving the surface), otherwise the
+    clock starts on arrival and the compression is outside the table's time.
+    ``stated_total_min`` is the table's total as the source states it (table
+    time, compression outside it unless included), with its status;
+    ``stated_total_extended_min`` the total with every allowed extension.
+    ``missing`` says what the bundled source lacks (required when the table is
+    not plannable: a table that cannot be planned is refused, never invented).
+    """
 
     model_config = _STRICT
 
@@ -275,6 +390,36 @@ class TreatmentConventions(BaseModel):
     time_definition: str = Field(min_length=1)
     travel_in_step_time: bool
     notes: str = ""
+    table_number: str = ""
+    indication: str = ""
+    citation: str = ""
+    compression_rate: Positive | None = None
+    compression_status: SourceStatus | None = None
+    compression_in_first_step: bool = False
+    stated_total_min: NonNegative | None = None
+    stated_total_status: SourceStatus | None = None
+    stated_total_extended_min: NonNegative | None = None
+    stated_total_extended_status: SourceStatus | None = None
+    plannable: bool = True
+    missing: list[str] = Field(default_factory=list)
+    extensions: list[TreatmentExtension] = Field(default_factory=list)
+    attendant_oxygen: list[AttendantOxygen] = Field(default_factory=list)
+
+    @model_validator(mode="after")
+    def _planning(self) -> TreatmentConventions:
+        if not self.plannable and not any(m.strip() for m in self.missing):
+            raise ValueError("plannable = false needs missing: say what the source lacks")
+        if self.stated_total_min is not None and self.stated_total_status is None:
+            raise ValueError("stated_total_min needs stated_total_status")
+        if self.stated_total_extended_min is not None and \
+                self.stated_total_extended_status is None:
+            raise ValueError("stated_total_extended_min needs stated_total_extended_status")
+        if self.compression_rate is not None and self.compression_status is None:
+            raise ValueError("compression_rate needs compression_status")
+        options = [e.option for e in self.extensions]
+        if len(set(options)) != len(options):
+            raise ValueError("extensions: one entry per option (oxygen, air)")
+        return self
 
 
 # --------------------------------------------------------------------------- rows
@@ -334,7 +479,7 @@ class Schedule(BaseModel):
     @classmethod
     def _half_periods(cls, v: float | None) -> float | None:
         if v is not None and abs(v * 2 - round(v * 2)) > 1e-9:
-            raise ValueError(f"got {v!r}; expected whole or half periods (0.5, 1, 1.5, ...)")
+            raise ValueError(f"got {v:g}; expected whole or half periods (0.5, 1, 1.5, ...)")
         return v
 
     @property
@@ -399,7 +544,7 @@ class GenericRow(RowBase):
     of sub-table (e.g. ``value_status``).  Numbers must be finite.
     """
 
-    model_config = ConfigDict(extra="allow", str_strip_whitespace=True)
+    model_config = ConfigDict(extra="allow", str_strip_whitespace=True, strict=True)
 
     @model_validator(mode="after")
     def _scalars(self) -> GenericRow:
@@ -452,7 +597,7 @@ class TableBase(BaseModel):
     def _name(cls, v: str) -> str:
         if not NAME_RE.match(v):
             raise ValueError(
-                f"got {v!r}; expected lower-case letters, digits, '.', '_' or '-' "
+                f"got {excerpt(v)}; expected lower-case letters, digits, '.', '_' or '-' "
                 "(the file stem)"
             )
         return v

@@ -30,6 +30,8 @@ from __future__ import annotations
 
 import math
 from collections import defaultdict
+from collections.abc import Sequence
+from contextvars import ContextVar
 from typing import Any
 
 import numpy as np
@@ -48,11 +50,23 @@ from supervisor.references.schema import (
     Schedule,
     TableConventions,
     TreatmentTable,
+    shown_value,
 )
+from supervisor.text import excerpt, printable
 
 #: Totals and running times must agree within this many minutes.
 TOTAL_TOLERANCE_MIN = 1.0
 _EPS = 1e-9
+
+#: File row numbers of the rows being checked, when some rows were left out because
+#: they fail the schema (so the sanity rules still run on the others); None: all rows.
+_ROW_NUMBERS: ContextVar[Sequence[int] | None] = ContextVar("_ROW_NUMBERS", default=None)
+
+
+def _no(i: int) -> int:
+    """1-based file row number of row ``i`` (0-based) of the table being checked."""
+    numbers = _ROW_NUMBERS.get()
+    return numbers[i] if numbers is not None else i + 1
 
 
 def row_label(table: AnyTable, index: int) -> str:
@@ -68,7 +82,9 @@ def row_label(table: AnyTable, index: int) -> str:
     data = row.data()
     if data:
         key, value = next(iter(data.items()))
-        return f"{key} {value}"
+        if isinstance(value, (dict, list, bool)):
+            return ""  # a wrong type is named by the issue itself
+        return f"{printable(key)} {excerpt(value) if isinstance(value, str) else value}"
     return ""
 
 
@@ -76,19 +92,30 @@ def _num(x: float) -> str:
     return f"{x:g}"
 
 
-def sanity_issues(table: AnyTable) -> list[Issue]:
+def sanity_issues(table: AnyTable, row_numbers: Sequence[int] | None = None) -> list[Issue]:
     """Run the sanity rules of the table's kind.
 
     Parameters
     ----------
     table : AnyTable
         A table that passed the schema.
+    row_numbers : sequence of int, optional
+        File row number (1-based) of each row of ``table``, when rows that fail the
+        schema were left out; issues then name the rows by their number in the file.
 
     Returns
     -------
     list of Issue
         Errors and warnings, in row order within each rule.
     """
+    token = _ROW_NUMBERS.set(row_numbers)
+    try:
+        return _sanity(table)
+    finally:
+        _ROW_NUMBERS.reset(token)
+
+
+def _sanity(table: AnyTable) -> list[Issue]:
     if isinstance(table, NoStopTable):
         return _no_stop(table)
     if isinstance(table, DecompressionTable):
@@ -96,7 +123,7 @@ def sanity_issues(table: AnyTable) -> list[Issue]:
     if isinstance(table, TreatmentTable):
         return _treatment(table)
     if isinstance(table, ModelCoefficientsTable):
-        return _generic(table) + _model(table)
+        return _generic(table, own=("compartment",)) + _model(table)
     if isinstance(table, LimitsTable):
         return _generic(table)
     return []  # pragma: no cover - every kind is handled above
@@ -105,7 +132,7 @@ def sanity_issues(table: AnyTable) -> list[Issue]:
 def _err(table: AnyTable, i: int | None, column: str | None, msg: str,
          severity: str = "error") -> Issue:
     label = row_label(table, i) if i is not None else ""
-    return Issue(severity, msg, None if i is None else i + 1, column, label)  # type: ignore[arg-type]
+    return Issue(severity, msg, None if i is None else _no(i), column, label)  # type: ignore[arg-type]
 
 
 def _group_order(table: AnyTable, i: int, column: str, group: str,
@@ -144,7 +171,7 @@ def _no_stop(t: NoStopTable) -> list[Issue]:
         i, j = int(order[k + 1]), int(order[k])
         out.append(_err(t, i, "no_stop_limit",
                         f"{_lim(l_s[k + 1])} is longer than the {_lim(l_s[k])} at "
-                        f"{d_s[k]:g} {unit} (row {j + 1}); a deeper depth never has a "
+                        f"{d_s[k]:g} {unit} (row {_no(j)}); a deeper depth never has a "
                         "longer no-stop limit"))
     # groups within a row
     ranks: list[dict[int, float]] = []
@@ -183,7 +210,7 @@ def _no_stop(t: NoStopTable) -> list[Issue]:
                 g = t.conventions.repetitive_groups[g_rank]
                 out.append(_err(t, j, f"repetitive_groups.{g}",
                                 f"group {g} at {minutes:g} min is later than at "
-                                f"{depths[i]:g} {unit} ({shallow:g} min, row {i + 1}); a deeper "
+                                f"{depths[i]:g} {unit} ({shallow:g} min, row {_no(i)}); a deeper "
                                 "depth never reaches a group later"))
     return out
 
@@ -376,13 +403,13 @@ def _decompression_monotone(t: DecompressionTable) -> list[Issue]:
                     if what in mb and mb[what] < ma[what] - _EPS:
                         out.append(_err(t, b, f"{mode}.{columns[what]}",
                                         f"{what} {mb[what]:g} is less than {ma[what]:g} at "
-                                        f"{ra.bottom_time:g} min (row {a + 1}); at one depth a "
+                                        f"{ra.bottom_time:g} min (row {_no(a)}); at one depth a "
                                         "longer bottom time never needs less decompression"))
             ga, gb = ra.repetitive_group, rb.repetitive_group
             if ga in letters and gb in letters and letters.index(gb) < letters.index(ga):
                 out.append(_err(t, b, "repetitive_group",
                                 f"group {gb} is earlier than group {ga} at {ra.bottom_time:g} min "
-                                f"(row {a + 1}); at one depth a longer bottom time never gives "
+                                f"(row {_no(a)}); at one depth a longer bottom time never gives "
                                 "an earlier group"))
         del depth
     for bt, idx in by_time.items():
@@ -397,7 +424,7 @@ def _decompression_monotone(t: DecompressionTable) -> list[Issue]:
                     out.append(_err(t, b, f"{mode}.stops",
                                     f"stop time {sb.stop_minutes:g} min is less than "
                                     f"{sa.stop_minutes:g} min at {ra.depth:g} {unit} "
-                                    f"(row {a + 1}) for the same {bt:g}-min bottom time; a deeper "
+                                    f"(row {_no(a)}) for the same {bt:g}-min bottom time; a deeper "
                                     "depth never needs less decompression"))
     return out
 
@@ -407,13 +434,16 @@ def _decompression_monotone(t: DecompressionTable) -> list[Issue]:
 
 def _treatment(t: TreatmentTable) -> list[Issue]:
     out: list[Issue] = []
-    unit = t.conventions.depth_unit
+    c = t.conventions
+    unit = c.depth_unit
     elapsed = 0.0
     for i, s in enumerate(t.rows):
         if s.step != i + 1:
             out.append(_err(t, i, "step", f"got step {s.step}; expected {i + 1} (steps are "
                             "numbered 1, 2, ... in file order)"))
-        if i > 0 and abs(s.from_depth - t.rows[i - 1].to_depth) > _EPS:
+        # a table that cannot be planned may list its stops without the travel between them
+        # (the travel is what conventions.missing names)
+        if i > 0 and c.plannable and abs(s.from_depth - t.rows[i - 1].to_depth) > _EPS:
             out.append(_err(t, i, "from_depth", f"starts at {s.from_depth:g} {unit} but the step "
                             f"before ends at {t.rows[i - 1].to_depth:g} {unit}"))
         if s.from_depth != s.to_depth and s.travel_rate:
@@ -426,6 +456,64 @@ def _treatment(t: TreatmentTable) -> list[Issue]:
         if s.elapsed_min is not None and abs(elapsed - s.elapsed_min) > TOTAL_TOLERANCE_MIN:
             out.append(_err(t, i, "elapsed_min", f"printed {s.elapsed_min:g} min but the step "
                             f"times add up to {elapsed:g} min"))
+    return out + _treatment_planning(t)
+
+
+def _is_o2(gas: str) -> bool:
+    return gas.strip().lower() in ("oxygen", "o2", "100/0")
+
+
+def _treatment_planning(t: TreatmentTable) -> list[Issue]:
+    """Checks of a treatment table's planning conventions: extensions, attendant oxygen."""
+    out: list[Issue] = []
+    c = t.conventions
+    unit = c.depth_unit
+    rows = t.rows
+    if c.plannable and c.table_number:
+        if rows[-1].to_depth > _EPS:
+            out.append(_err(t, len(rows) - 1, "to_depth", f"the last step ends at "
+                            f"{rows[-1].to_depth:g} {unit}; a table that can be planned ends at "
+                            "the surface"))
+        if rows[0].from_depth > _EPS and c.compression_rate is None \
+                and not c.compression_in_first_step:
+            out.append(_err(t, None, "conventions.compression_rate", "the first step starts at "
+                            f"{rows[0].from_depth:g} {unit}: give compression_rate or set "
+                            "compression_in_first_step"))
+    for k, e in enumerate(c.extensions):
+        col = f"conventions.extensions[{k + 1}]"
+        if e.after_step > len(rows):
+            out.append(_err(t, None, f"{col}.after_step", f"got step {e.after_step}; the table "
+                            f"has {len(rows)} steps"))
+            continue
+        at = rows[e.after_step - 1]
+        if abs(at.to_depth - e.depth) > _EPS:
+            out.append(_err(t, None, f"{col}.depth", f"{e.depth:g} {unit} but step "
+                            f"{e.after_step} ends at {at.to_depth:g} {unit}; an extension is "
+                            "inserted where its depth is reached"))
+    n_max = sum(e.max_count for e in c.extensions)
+    base = [a for a in c.attendant_oxygen if a.when != "recent-exposure"]
+    if base:
+        for n in range(n_max + 1):
+            hits = [a.case for a in base if a.applies(n)]
+            if len(hits) != 1:
+                what = "no case applies" if not hits else f"{len(hits)} cases apply"
+                out.append(_err(t, None, "conventions.attendant_oxygen", f"with {n} "
+                                f"extension(s) {what}; exactly one base case must apply"))
+    o2_at: dict[float, float] = defaultdict(float)
+    for r in rows:
+        if r.from_depth == r.to_depth and _is_o2(r.gas):
+            o2_at[r.to_depth] += r.minutes
+    for k, a in enumerate(c.attendant_oxygen):
+        col = f"conventions.attendant_oxygen[{k + 1}]"
+        if a.depth is None or not c.plannable:
+            continue
+        if not any(abs(r.to_depth - a.depth) < _EPS for r in rows):
+            out.append(_err(t, None, f"{col}.depth", f"no step of the table is at "
+                            f"{a.depth:g} {unit}"))
+        elif a.oxygen_min > o2_at.get(a.depth, 0.0) + _EPS:
+            out.append(_err(t, None, f"{col}.oxygen_min", f"{a.oxygen_min:g} min is more than "
+                            f"the patient's {o2_at.get(a.depth, 0.0):g} oxygen minutes at "
+                            f"{a.depth:g} {unit} in the table", severity="warning"))
     return out
 
 
@@ -436,7 +524,43 @@ def _numeric(v: Any) -> bool:
     return isinstance(v, (int, float)) and not isinstance(v, bool)
 
 
-def _generic(t: LimitsTable | ModelCoefficientsTable) -> list[Issue]:
+def value_kind(v: Any) -> str:
+    """The kind of a data cell as a reader names it: number, text, boolean, date, list, table."""
+    if isinstance(v, bool):
+        return "boolean"
+    if isinstance(v, (int, float)):
+        return "number"
+    if isinstance(v, str):
+        return "text"
+    if isinstance(v, list):
+        return "list"
+    if isinstance(v, dict):
+        return "table"
+    return "date"
+
+
+def _column_kinds(t: LimitsTable | ModelCoefficientsTable, columns: dict[str, None],
+                  skip: set[str]) -> list[Issue]:
+    """Every row holds the same kind of value in a column (the most common kind wins)."""
+    out: list[Issue] = []
+    rows: list[GenericRow] = t.rows
+    for col in columns:
+        if col in skip:
+            continue
+        kinds = [value_kind(r.data()[col]) for r in rows if col in r.data()]
+        if len(set(kinds)) < 2:
+            continue
+        want = max(dict.fromkeys(kinds), key=kinds.count)  # ties: the first row's kind
+        for i, r in enumerate(rows):
+            if col in r.data() and value_kind(r.data()[col]) != want:
+                v = r.data()[col]
+                out.append(_err(t, i, col, f"got {shown_value(v)}; the other rows hold "
+                                f"a {want} in this column"))
+    return out
+
+
+def _generic(t: LimitsTable | ModelCoefficientsTable, own: tuple[str, ...] = ()) -> list[Issue]:
+    """Rules of every free-column table; ``own`` columns are typed by the kind's rules."""
     out: list[Issue] = []
     rows: list[GenericRow] = t.rows
     columns: dict[str, None] = {}
@@ -451,27 +575,31 @@ def _generic(t: LimitsTable | ModelCoefficientsTable) -> list[Issue]:
     key = conv.get("key_column")
     if key is None and rows and rows[0].data():
         first = next(iter(rows[0].data()))
-        if all(_numeric(r.data().get(first)) for r in rows):
-            key = first  # a numeric first column is the key unless conventions name another
+        # a first column holding numbers is the key unless conventions name another;
+        # one row of another type does not turn the check off (it is reported below)
+        kinds = [value_kind(r.data().get(first)) for r in rows]
+        if kinds.count("number") * 2 > len(kinds):
+            key = first
     if isinstance(key, str):
         vals = [r.data().get(key) for r in rows]
         for i, v in enumerate(vals):
             if not _numeric(v):
-                out.append(_err(t, i, key, f"got {v!r}; the key column needs a number"))
-        for i in range(1, len(vals)):
-            if _numeric(vals[i]) and _numeric(vals[i - 1]) and vals[i] <= vals[i - 1]:
-                out.append(_err(t, i, key, f"{vals[i]:g} does not follow {vals[i - 1]:g}; the key "
+                out.append(_err(t, i, key, f"got {shown_value(v)}; the key column "
+                                "needs a number in every row"))
+        nums = [(i, v) for i, v in enumerate(vals) if _numeric(v)]
+        for (_, a), (i, b) in zip(nums, nums[1:], strict=False):
+            if b <= a:
+                out.append(_err(t, i, key, f"{b:g} does not follow {a:g}; the key "
                                 "column must strictly increase"))
+    out.extend(_column_kinds(t, columns, {*own, *([key] if isinstance(key, str) else [])}))
     for direction in ("increasing", "decreasing"):
         cols = conv.get(f"{direction}_columns", [])
         if isinstance(cols, str):
             cols = [cols]
         for col in cols if isinstance(cols, list) else []:
             vals = [r.data().get(col) for r in rows]
-            for i in range(1, len(vals)):
-                a, b = vals[i - 1], vals[i]
-                if not (_numeric(a) and _numeric(b)):
-                    continue
+            nums = [(i, v) for i, v in enumerate(vals) if _numeric(v)]
+            for (_, a), (i, b) in zip(nums, nums[1:], strict=False):
                 if (direction == "increasing" and b < a) or (direction == "decreasing" and b > a):
                     out.append(_err(t, i, col, f"{b:g} after {a:g}; the column is declared "
                                     f"{direction} (conventions.{direction}_columns)"))
@@ -484,22 +612,29 @@ def _model(t: ModelCoefficientsTable) -> list[Issue]:
     seen: dict[Any, int] = {}
     for i, d in enumerate(rows):
         if "compartment" in d:
-            if d["compartment"] in seen:
-                out.append(_err(t, i, "compartment", f"compartment {d['compartment']!r} repeats "
-                                f"row {seen[d['compartment']] + 1}"))
-            seen.setdefault(d["compartment"], i)
+            label = d["compartment"]
+            if isinstance(label, bool) or not isinstance(label, (str, int)):
+                out.append(_err(t, i, "compartment", f"got {shown_value(label)}; "
+                                "expected a compartment label: text such as \"1b\" or a whole "
+                                "number"))
+                continue
+            if label in seen:
+                out.append(_err(t, i, "compartment", f"compartment {excerpt(label)} repeats "
+                                f"row {_no(seen[label])}"))
+            seen.setdefault(label, i)
         for k, v in d.items():
+            shown = shown_value(v)
             if k.endswith("_half_min") and (not _numeric(v) or v <= 0):
-                out.append(_err(t, i, k, f"got {v!r}; expected a half-time > 0 min"))
+                out.append(_err(t, i, k, f"got {shown}; expected a half-time > 0 min"))
             elif k.endswith("_a_bar") and (not _numeric(v) or v <= 0):
-                out.append(_err(t, i, k, f"got {v!r}; expected a > 0 bar"))
+                out.append(_err(t, i, k, f"got {shown}; expected a > 0 bar"))
             elif k.endswith("_b") and (not _numeric(v) or not 0 < v < 1):
-                out.append(_err(t, i, k, f"got {v!r}; expected 0 < b < 1"))
+                out.append(_err(t, i, k, f"got {shown}; expected 0 < b < 1"))
         vs = d.get("value_status")
         if isinstance(vs, dict):
             for k, v in vs.items():
-                if v not in SOURCE_STATUSES:
-                    out.append(_err(t, i, f"value_status.{k}", f"got {v!r}; expected one of "
+                if not isinstance(v, str) or v not in SOURCE_STATUSES:
+                    out.append(_err(t, i, f"value_status.{k}", f"got {excerpt(v)}; expected one of "
                                     f"{', '.join(SOURCE_STATUSES)}"))
     half_cols = sorted({k for d in rows for k in d if k.endswith("_half_min")})
     for col in half_cols:

@@ -262,6 +262,12 @@ def _verify_json(result: Verification, data: bytes, sig_path: Path,
         raise _Invalid(f"not signed: no detached signature {sig_path.name} beside it") from None
     except OSError as exc:
         raise _Invalid(f"cannot read the signature {sig_path} ({exc.strerror or exc})") from None
+    _check_detached(result, data, sig, f"signature file {sig_path.name}", "JSON file",
+                    expected)
+
+
+def _check_detached(result: Verification, data: bytes, sig: bytes, sig_name: str,
+                    content: str, expected: x509.Certificate | None) -> None:
     try:
         info = cms.ContentInfo.load(sig, strict=True)
         if info.dump(force=True) != sig:
@@ -272,12 +278,12 @@ def _verify_json(result: Verification, data: bytes, sig_path: Path,
         if signed["encap_content_info"]["content"].native is not None:
             raise ValueError("not a detached signature")
     except Exception as exc:
-        raise _Invalid(f"the signature file {sig_path.name} is damaged or changed ({exc})") \
+        raise _Invalid(f"the signature {sig_name} is damaged or changed ({exc})") \
             from None
     _check_profile(signed)
     certs = [c.chosen for c in signed["certificates"] or [] if c.name == "certificate"]
     if not certs:
-        raise _Invalid(f"the signature file {sig_path.name} holds no certificate")
+        raise _Invalid(f"the signature {sig_name} holds no certificate")
     try:
         status = asyncio.run(async_validate_detached_cms(
             data, signed, signer_validation_context=_trust_self(certs[0])))
@@ -285,10 +291,46 @@ def _verify_json(result: Verification, data: bytes, sig_path: Path,
         raise _Invalid(f"the signature cannot be checked ({exc})") from None
     result.signed_at = status.signer_reported_dt
     if not status.intact:
-        raise _Invalid("the JSON file was changed after signing (digest mismatch)")
+        raise _Invalid(f"the {content} was changed after signing (digest mismatch)")
     if not status.valid:
         raise _Invalid("the signature value does not verify")
     _identity(result, status.signing_cert, expected)
+
+
+def verify_detached(data: bytes, signature: bytes, *,
+                    expected: x509.Certificate | None = None,
+                    label: str = "record") -> Verification:
+    """Check a detached CMS signature over bytes held in memory (a stored record).
+
+    The same checks as for a checklist's ``.json.sig``: canonical DER, the
+    unsigned CMS fields, the digest and the signature value, the certificate's
+    validity at the reported signing time.
+
+    Parameters
+    ----------
+    data : bytes
+        The signed content.
+    signature : bytes
+        DER-encoded CMS ContentInfo (detached SignedData).
+    expected : x509.Certificate, optional
+        Require this certificate.
+    label : str
+        Name of the signed thing in the report.
+
+    Returns
+    -------
+    Verification
+        ``status`` is ``"valid"`` or ``"invalid"``.
+    """
+    result = Verification(Path(label), "json", "valid", "")
+    result.document_sha256 = hashlib.sha256(data).hexdigest()
+    try:
+        _check_detached(result, data, signature, "signature", label, expected)
+    except _Invalid as exc:
+        result.status, result.reason = "invalid", str(exc)
+        return result
+    result.reason = "signature intact; nothing changed after signing"
+    return result
 
 
 def _kind(path: Path, head: bytes) -> Literal["pdf", "json", "sig", "unknown"]:

@@ -261,3 +261,94 @@ def test_random_plans_bad_input_is_one_line_per_problem(data):
             assert field and " " not in field, line  # a field path, not prose
     else:
         assert out.getvalue().strip().splitlines()[-1].startswith("verdict: ")
+
+
+# ---- issue 13 / issue 8 §3: terminal-safe, wrapped, quiet on a closed pipe -------------------
+
+
+def _esc_plan(tmp_path: Path) -> Path:
+    """The harbour example with escape sequences in a diver's name, a dive id and the title."""
+    text = (EXAMPLES / "harbour-job-msw.toml").read_text("utf-8")
+    text = text.replace("Oskar Vale", "Oskar\\u001b[31mVale")
+    text = text.replace('"D1"', '"D\\u001b]0;pwned\\u00071"')
+    text = text.replace('title = "North', 'title = "\\u001b[2J\\u009b31m North')
+    p = tmp_path / "esc.toml"
+    p.write_text(text, "utf-8")
+    return p
+
+
+@pytest.mark.parametrize("extra", [[], ["--all"], ["--width", "80"], ["--json"]])
+def test_escape_sequences_from_the_plan_never_reach_the_terminal(tmp_path, extra):
+    """Reproducer: a plan's `\\x1b[31m` and OSC title sequence were printed raw by check."""
+    from typer.testing import CliRunner
+
+    from supervisor.cli import app
+
+    res = CliRunner().invoke(app, ["check", str(_esc_plan(tmp_path)), *extra], color=True)
+    assert res.exit_code in (0, 1), res.output
+    for ch in ("\x1b", "\x07", "\x9b"):
+        assert ch not in res.output
+    if "--json" in extra:
+        doc = json.loads(res.output)
+        assert doc["dives"][0]["id"] == "D\x1b]0;pwned\x071"  # the data itself is kept
+    else:
+        assert "\\e]0;pwned\\x071" in res.output  # shown as visible escapes
+
+
+def test_wraps_to_the_width(capsys):
+    code, out, _ = run(["check", str(EXAMPLES / "demo-job.toml"), "--width", "80"], capsys)
+    assert code == 0
+    assert max(len(line) for line in out.splitlines()) <= 80
+    assert out.splitlines()[-1].startswith("verdict: needs-review")
+
+
+def test_wide_width_keeps_the_aligned_columns(capsys):
+    code, out, _ = run(["check", str(EXAMPLES / "demo-job.toml"), "--width", "200"], capsys)
+    lines = out.splitlines()
+    assert lines[0].split() == ["SEVERITY", "RULE", "DIVE", "MEASURED", "LIMIT", "FINDING"]
+    assert max(len(line) for line in lines) <= 200
+
+
+def test_pipe_output_is_one_line_per_finding(capsys):
+    """Not a terminal, no --width: the layout stays one line per finding (stable)."""
+    code, out, _ = run(["check", str(EXAMPLES / "demo-job.toml"), "--json"], capsys)
+    n = sum(f["severity"] != "pass" for f in json.loads(out)["findings"])
+    code, out, _ = run(["check", str(EXAMPLES / "demo-job.toml")], capsys)
+    table = out.split("\n\n")[0].splitlines()
+    assert len(table) == n + 1
+
+
+@pytest.mark.parametrize("width", ["10", "39", "-5"])
+def test_width_too_narrow_is_bad_input(capsys, width):
+    code, _, err = run(["check", str(EXAMPLES / "demo-job.toml"), "--width", width], capsys)
+    assert code == 2 and err.startswith("error: --width: ") and err.count("\n") == 1
+
+
+def test_closed_pipe_exits_quietly():
+    """Reproducer: `supervisor check ... | head` must not print a traceback or an error."""
+    exe = Path(sys.executable).with_name("supervisor")
+    proc = subprocess.run(
+        f"'{exe}' check '{EXAMPLES / 'demo-job.toml'}' --all | head -1",
+        shell=True, capture_output=True, text=True, timeout=300,
+    )
+    assert proc.stdout.startswith("SEVERITY")
+    assert proc.stderr == ""
+
+
+@pytest.mark.parametrize(("edit", "field"), [
+    (lambda t: t.replace("[chamber]", "x = " + "[" * 1000 + "]" * 1000 + "\n[chamber]", 1),
+     "plan"),
+    (lambda t: t.replace('water = "salt"', 'water = "' + "s" * 200_000 + '"', 1), "site.water"),
+    (lambda t: t.replace('reference_table = "zhl16c-gf30-85-air-msw"',
+                         'reference_table = "' + "a" * 300 + '"'), "policy.reference_table"),
+    (lambda t: t.replace('title = "North', 'title = "' + "T" * 3000, 1), "job.title"),
+])
+def test_bad_input_is_one_short_line_naming_the_field(tmp_path, capsys, edit, field):
+    """Reproducers of issue 13: deep nesting (was "internal error"), a 200 KB echo, an
+    unnamed `[Errno 36] File name too long`, and a 3,000-character title (issue 8)."""
+    p = tmp_path / "bad.toml"
+    p.write_text(edit((EXAMPLES / "harbour-job-msw.toml").read_text("utf-8")), "utf-8")
+    code, out, err = run(["check", str(p)], capsys)
+    assert code == 2 and out == ""
+    assert err.startswith(f"error: {field}: ") and err.count("\n") == 1 and len(err) < 600
+    assert "internal error" not in err and "Errno" not in err

@@ -120,3 +120,68 @@ def test_help_keeps_units_in_brackets(capsys):
     with pytest.raises(SystemExit):
         main(["schedule", "--help"])
     assert "[min]" in capsys.readouterr().out
+
+
+# ---- issue 13: every option given is validated, or refused as not applicable ---------------
+
+SURD_ONLY = ["--surface-interval", "--chamber-depth", "--chamber-compression-rate",
+             "--chamber-air-break"]
+
+
+@pytest.mark.parametrize("value", ["nan", "-1", "50"])
+@pytest.mark.parametrize("option", SURD_ONLY)
+def test_surface_decompression_option_without_it_is_refused(capsys, option, value):
+    """Reproducer: `--chamber-compression-rate nan` or `-1` without
+    --surface-decompression gave exit 0."""
+    value = "30/5" if option == "--chamber-air-break" else value
+    code, out, err = run([*CONTRACT, option, value], capsys)
+    assert code == 2 and out == ""
+    assert err.startswith(f"error: {option}: ") and "--surface-decompression" in err
+    assert err.count("\n") == 1
+
+
+@pytest.mark.parametrize(("option", "value"), [
+    ("--chamber-compression-rate", "nan"), ("--chamber-compression-rate", "-1"),
+    ("--chamber-compression-rate", "0.5"), ("--surface-interval", "nan"),
+    ("--chamber-depth", "nan"), ("--chamber-air-break", "0/5"),
+])
+def test_surface_decompression_options_are_checked(capsys, option, value):
+    code, _, err = run([*CONTRACT, "--surface-decompression", "40", option, value], capsys)
+    assert code == 2 and err.startswith(f"error: {option}: "), err
+
+
+@pytest.mark.parametrize(("option", "value", "words"), [
+    ("--ascent-rate", "0.0001", "expected a rate from 1 to 300 fsw/min"),
+    ("--descent-rate", "nan", "expected a rate from 1 to 300 fsw/min"),
+    ("--descent-rate", "1000", "expected a rate from 1 to 300 fsw/min"),
+    ("--stop-step", "0.001", "expected a step from 1 to 1000 fsw"),
+    ("--deco-gas", "oxygen@nan", "expected a number such as 20"),
+])
+def test_meaningless_rates_and_steps(capsys, option, value, words):
+    args = [a for a in CONTRACT]
+    if option in args:
+        i = args.index(option)
+        args[i + 1] = value
+    else:
+        args += [option, value]
+    code, _, err = run(args, capsys)
+    assert code == 2 and err.startswith(f"error: {option}: ") and words in err, err
+
+
+def test_msw_rate_range(capsys):
+    code, _, err = run(["--depth", "30", "--unit", "msw", "--bottom-time", "20",
+                        "--ascent-rate", "0.2"], capsys)
+    assert code == 2 and "expected a rate from 0.3 to 92.1 msw/min" in err
+
+
+def test_surface_decompression_defaults_still_apply(capsys):
+    code, out, err = run([*CONTRACT, "--surface-decompression", "40", "--json"], capsys)
+    assert code == 0, err
+    assert any(s["place"] == "chamber" for s in json.loads(out)["stops"])
+
+
+def test_obligation_beyond_the_planner_is_one_line(capsys):
+    """A schedule needing more than two days of stops is not searched for ever."""
+    code, out, err = run(["--depth", "300", "--bottom-time", "600", "--gf", "30/85"], capsys)
+    assert code == 2 and out == ""
+    assert "beyond the model's range: not computed" in err and err.count("\n") == 1

@@ -198,3 +198,112 @@ def test_lookup_modes_no_stop_and_outside():
     res = _run("lookup", "zhl16c-gf30-85-air-fsw", "--depth", "100", "--bottom-time", "30",
                "--mode", "foo")
     assert res.exit_code == 2 and "--mode" in res.output
+
+
+def test_treatment_tables_listed_shown_screened_and_verified(tmp_path):
+    res = _run("list")
+    assert res.exit_code == 0
+    for stem in ("usn-tt5", "usn-tt6", "usn-tt6a", "usn-tt9", "usn-tt4", "usn-tt7", "usn-tt8",
+                 "usn-tt1a", "usn-tt2a", "usn-tt3"):
+        assert any(x.startswith(stem + " ") and " treatment " in x for x in res.stdout.splitlines())
+    res = _run("show", "usn-tt6")
+    assert res.exit_code == 0
+    assert "extension --extend-oxygen: up to 2" in res.stdout
+    assert "attendant (extensions-at-most 1)" in res.stdout
+    assert "stated total: 285 min (FROM MEMORY)" in res.stdout
+    res = _run("show", "usn-tt7")
+    assert "planning: REFUSED" in res.stdout
+    src = next(p for p in (Path(__file__).resolve().parents[2] / "tables" / "treatment").glob(
+        "usn-tt6.toml"))
+    copy = tmp_path / src.name
+    copy.write_bytes(src.read_bytes())
+    assert _run("validate", str(copy)).exit_code == 0
+    res = _run("screen", str(copy))
+    assert res.exit_code == 0 and "0 check(s) flagged" in res.stdout
+    res = _run("screen", str(copy), "--json")
+    assert json.loads(res.stdout)["kind"] == "treatment"
+    res = _run("verify", str(copy), "--rows", "1-2", "--by", "A. Checker", "--method",
+               "read against the figure")
+    assert res.exit_code == 0, res.output
+    doc = tomllib.loads(copy.read_text("utf-8"))
+    assert doc["rows"][0]["verification"] == "verified" and doc["rows"][0]["row_hash"]
+    assert doc["conventions"]["extensions"]  # the extensions survive the edit
+    res = _run("show", str(copy))
+    assert "2 of 12 rows verified" in res.stdout
+    res = _run("lookup", "usn-tt6", "--depth", "60", "--bottom-time", "20")
+    assert res.exit_code == 2 and "supervisor treatment plan 6" in res.stderr
+
+
+# ---- issue 13 / issue 8 §3 ----------------------------------------------------------------
+
+BUNDLED = Path(__file__).resolve().parents[2] / "tables"
+
+
+def _model_file(tmp_path: Path, value: str) -> Path:
+    text = (BUNDLED / "models" / "zhl16c.toml").read_text("utf-8")
+    p = tmp_path / "zhl16c.toml"
+    p.write_text(text.replace('compartment = "1b"', f"compartment = {value}", 1), "utf-8")
+    return p
+
+
+@pytest.mark.parametrize("command", ["validate", "show"])
+def test_compartment_table_is_an_error_not_a_traceback(tmp_path, command):
+    """Reproducer: `compartment = {v = "6"}` ended in TypeError: unhashable type: 'dict'."""
+    res = _run(command, str(_model_file(tmp_path, '{v = "6"}')))
+    assert res.exit_code == (1 if command == "validate" else 2)
+    assert res.exception is None or isinstance(res.exception, SystemExit)
+    assert "compartment label" in res.output and "Traceback" not in res.output
+
+
+def test_boolean_po2_is_invalid(tmp_path):
+    """Reproducer: a boolean PO2 validated, and `tables show` printed `True`."""
+    text = (BUNDLED / "limits" / "noaa-cns-limits.toml").read_text("utf-8")
+    p = tmp_path / "noaa-cns-limits.toml"
+    p.write_text(text.replace("po2_atm = 0.7", "po2_atm = true", 1), "utf-8")
+    res = _run("validate", str(p))
+    assert res.exit_code == 1 and "got true (a boolean)" in res.stdout
+    res = _run("show", str(p))
+    assert res.exit_code == 2 and "True" not in res.output
+
+
+def test_deep_table_file_is_unreadable_not_internal(tmp_path):
+    p = tmp_path / "deep.toml"
+    p.write_text("x = " + "[" * 1000 + "]" * 1000 + "\n", "utf-8")
+    for command in ("validate", "show", "screen"):
+        res = _run(command, str(p))
+        assert res.exit_code == 2, (command, res.output)
+        assert "nested more than 16 levels" in res.stderr
+
+
+def test_long_name_names_the_problem(tmp_path):
+    res = _run("show", "a" * 300)
+    assert res.exit_code == 2 and "Errno" not in res.stderr and res.stderr.count("\n") == 1
+    assert "cannot be read" in res.stderr or "no bundled table" in res.stderr
+
+
+def test_show_prints_whole_schedules():
+    """Reproducer: long stop lists were cut to 34 characters with '…'."""
+    res = _run("show", "zhl16c-gf30-85-air-fsw")
+    assert res.exit_code == 0 and "…" not in res.stdout
+    js = json.loads(_run("show", "zhl16c-gf30-85-air-fsw", "--json").stdout)
+    last = js["rows"][-1]
+    stops = " ".join(f"{s['depth']:g}:{s['minutes']:g}" for s in last["air"]["stops"])
+    assert stops in res.stdout
+
+
+def test_show_json():
+    js = json.loads(_run("show", "usn-rev7-air-ndl", "--json").stdout)
+    assert js["schema"] == "supervisor.tables-show/1" and js["kind"] == "no-stop"
+    assert js["provenance"]["source_status"] == "FROM MEMORY"
+    assert len(js["rows"]) == 24 and js["rows"][0]["row"] == 1
+    assert js["rows"][0]["status"] == {"source_status": "FROM MEMORY", "verified": False,
+                                       "reason": "not verified"}
+
+
+def test_show_escapes_control_characters(tmp_path):
+    doc = tomllib.loads((DATA / "tables_fictional_limits.toml").read_text("utf-8"))
+    doc["title"] = "Limits \x1b]0;pwned\x07 table"
+    p = tmp_path / f"{doc['name']}.toml"
+    p.write_text(dumps_table(doc), "utf-8")
+    res = runner.invoke(app, ["tables", "show", str(p)], color=True)
+    assert res.exit_code == 0 and "\x1b" not in res.output and "\\e]0;pwned" in res.output

@@ -165,3 +165,129 @@ def test_name_must_equal_file_stem(tmp_path):
     p.rename(p2)
     errs = errors(validate_file(p2))
     assert any(e.column == "name" and "other-name" in e.message for e in errs)
+
+
+def _bundled_doc(stem):
+    src = next(p for p in bundled_paths() if p.stem == stem)
+    return tomllib.loads(src.read_text("utf-8"))
+
+
+@pytest.mark.parametrize(("edit", "column", "words"), [
+    (lambda d: d["conventions"]["extensions"][0].update(after_step=40),
+     "conventions.extensions[1].after_step", "has 12 steps"),
+    (lambda d: d["conventions"]["extensions"][0].update(depth=30.0),
+     "conventions.extensions[1].depth", "step 6 ends at 60"),
+    (lambda d: d["conventions"]["attendant_oxygen"].pop(1),
+     "conventions.attendant_oxygen", "no case applies"),
+    (lambda d: d["conventions"]["attendant_oxygen"][0].update(depth=40.0),
+     "conventions.attendant_oxygen[1].depth", "no step of the table is at 40"),
+    (lambda d: d["conventions"].update(plannable=False, missing=[]),
+     "conventions", "needs missing"),
+    (lambda d: [d["conventions"].pop(k) for k in ("compression_rate", "compression_status")],
+     "conventions.compression_rate", "give compression_rate"),
+    (lambda d: d["rows"][-1].update(to_depth=10),
+     "to_depth", "ends at the surface"),
+    (lambda d: d["conventions"]["extensions"][1].update(option="oxygen"),
+     "conventions", "one entry per option"),
+])
+def test_treatment_planning_rules(tmp_path, edit, column, words):
+    """Extensions, attendant cases and plannability of a treatment table (a bundled copy)."""
+    doc = _bundled_doc("usn-tt6")
+    assert not errors(validate_file(next(p for p in bundled_paths() if p.stem == "usn-tt6")))
+    edit(doc)
+    if doc["rows"][-1]["to_depth"] == 10:
+        doc["rows"][-1]["travel_rate"] = 20 / 30
+    p = write_doc(tmp_path, doc)
+    errs = errors(validate_file(p))
+    assert any(column in (e.column or "") and words in e.message for e in errs), \
+        "; ".join(e.line(p.name) for e in errs)
+
+
+def test_attendant_oxygen_beyond_the_table_is_a_warning(tmp_path):
+    doc = _bundled_doc("usn-tt6")
+    doc["conventions"]["attendant_oxygen"][0]["oxygen_min"] = 150.0
+    issues = validate_file(write_doc(tmp_path, doc))
+    assert not errors(issues)
+    assert any(i.severity == "warning" and "more than the patient's 120" in i.message
+               for i in issues)
+
+
+def test_table_that_cannot_be_planned_may_list_stops_without_travel():
+    src = next(p for p in bundled_paths() if p.stem == "usn-tt4")
+    assert validate_file(src) == []
+    doc = tomllib.loads(src.read_text("utf-8"))
+    assert doc["conventions"]["plannable"] is False and doc["conventions"]["missing"]
+
+
+# ---- issue 13: wrong types are refused, and no sanity rule is skipped because of one
+
+# (kind, id, path, wrong value, row, column, words): each reproducer validated before
+TYPE_CASES = [
+    ("limits", "boolean-po2", ("rows", 1, "po2_atm"), True, 2, "po2_atm", "true (a boolean)"),
+    ("limits", "string-po2", ("rows", 1, "po2_atm"), "0.7", 2, "po2_atm", "'0.7'"),
+    ("no_stop", "string-depth", ("rows", 1, "depth"), "70", 2, "depth", "'70'"),
+    ("no_stop", "boolean-depth", ("rows", 1, "depth"), True, 2, "depth", "a boolean"),
+    ("decompression", "boolean-stop-time", ("rows", 0, "air", "stops", 0, "minutes"), True, 1,
+     "air.stops[1].minutes", "a boolean"),
+    ("decompression", "string-bottom-time", ("rows", 0, "bottom_time"), "10", 1, "bottom_time",
+     "'10'"),
+    ("treatment", "boolean-minutes", ("rows", 0, "minutes"), False, 1, "minutes", "a boolean"),
+    ("treatment", "float-step", ("rows", 0, "step"), 1.5, 1, "step", "whole number"),
+]
+
+
+@pytest.mark.parametrize(("kind", "case", "path", "value", "row", "column", "words"), TYPE_CASES,
+                         ids=[c[1] for c in TYPE_CASES])
+def test_wrong_type_is_an_error(tmp_path, kind, case, path, value, row, column, words):
+    doc = fixture_doc(kind)
+    _set(doc, path, value)
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert any(e.row == row and column in (e.column or "") and words in e.message
+               for e in errs), "; ".join(e.line(case) for e in errs)
+
+
+def test_wrong_type_does_not_hide_the_key_order(tmp_path):
+    """Reproducer: a boolean PO2 in one row switched the key-order check off ("valid")."""
+    doc = fixture_doc("limits")
+    doc["rows"][1]["po2_atm"] = True
+    doc["rows"][3]["po2_atm"] = doc["rows"][2]["po2_atm"]  # a repeat: must still be found
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert any(e.row == 2 and e.column == "po2_atm" for e in errs)
+    assert any(e.row == 4 and "strictly increase" in e.message for e in errs)
+
+
+def test_sanity_rules_run_on_the_rows_that_pass_the_schema(tmp_path):
+    """A row failing the schema does not stop the order rules on the others (file numbering)."""
+    doc = fixture_doc("no_stop")
+    doc["rows"][0]["depth"] = "10"
+    doc["rows"][3]["depth"] = doc["rows"][2]["depth"]
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert any(e.row == 1 and e.column == "depth" for e in errs)
+    assert any(e.row == 4 and "increasing depth" in e.message for e in errs)
+
+
+def test_mixed_column_types_in_a_limits_table(tmp_path):
+    doc = fixture_doc("limits")
+    doc["rows"][2]["limit_min"] = "long"
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert any(e.row == 3 and e.column == "limit_min" and "other rows hold a number" in e.message
+               for e in errs)
+
+
+@pytest.mark.parametrize("value", [{"v": "6"}, [1, 2], True, 1.5])
+def test_compartment_of_the_wrong_type(tmp_path, value):
+    """Reproducer: ``compartment = {v = "6"}`` ended in TypeError (unhashable type: 'dict')."""
+    src = next(p for p in bundled_paths() if p.stem == "zhl16c")
+    doc = tomllib.loads(src.read_text("utf-8"))
+    doc["rows"][0]["compartment"] = value
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert [e.column for e in errs] == ["compartment"]
+    assert "compartment label" in errs[0].message
+
+
+def test_long_value_is_quoted_short(tmp_path):
+    doc = fixture_doc("no_stop")
+    doc["rows"][1]["depth"] = "x" * 200_000
+    errs = errors(validate_file(write_doc(tmp_path, doc)))
+    assert errs and all(len(e.message) < 300 for e in errs)
+    assert any("200000 characters" in e.message for e in errs)

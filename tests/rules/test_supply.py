@@ -214,14 +214,59 @@ def test_chamber_gas_own_figures_short_fails():
     assert CFR_340 in f.citation and "plan consistency" in f.citation
 
 
+# Treatment Table 6 as laid out by the bundled table (steps FROM MEMORY; U.S. Navy Diving
+# Manual Rev 7 Change A ch. 17): (from fsw, to fsw, minutes, patient on oxygen, attendant on
+# oxygen).  The attendant breathes oxygen for the last 30 min at 30 fsw and the ascent (Rev 4
+# Change A §21-5.6.8.1.3, OLDER-EDITION); compression to 60 fsw at 20 fsw/min (FROM MEMORY).
+TT6_VENT_STEPS = (
+    [(0, 60, 3, False, False)]
+    + [(60, 60, 20, True, False), (60, 60, 5, False, False)] * 3
+    + [(60, 30, 30, True, False), (30, 30, 15, False, False), (30, 30, 60, True, False),
+       (30, 30, 15, False, False), (30, 30, 30, True, False), (30, 30, 30, True, True),
+       (30, 0, 30, True, True)]
+)
+TT6_EXT_STEPS = (
+    [(0, 60, 3, False, False)]
+    + [(60, 60, 20, True, False), (60, 60, 5, False, False)] * 5
+    + [(60, 30, 30, True, False)]
+    + [(30, 30, 15, False, False), (30, 30, 60, True, False)] * 3
+    + [(30, 30, 15, False, False), (30, 30, 60, True, True), (30, 0, 30, True, True)]
+)
+
+
+def _tt6_ventilation_l(steps, dump, occupants=2):
+    """Free litres to ventilate the steps at the Navy rates (Rev 4 Change A §22-5.4,
+    OLDER-EDITION): 12.5 acfm per person on oxygen at rest, 25 not at rest, 2 / 4 acfm on
+    air; the patient at rest, attendants not at rest; with an overboard dump the air rates
+    throughout.  Pressure 1 + depth/33 atm, the mean over a travel step."""
+    total = 0.0
+    n_att = occupants - 1
+    for d0, d1, minutes, patient_o2, attendant_o2 in steps:
+        air = 2 + 4 * n_att
+        if dump or not (patient_o2 or attendant_o2):
+            acfm = air
+        else:
+            acfm = 12.5 * patient_o2 + 25 * n_att * attendant_o2
+        total += acfm * an.L_PER_FT3 * minutes * (1 + (d0 + d1) / 2 / 33)
+    return total
+
+
 def test_chamber_gas_from_navy_defaults_short_warns():
-    # no dump stated: 12.5 acfm per occupant on oxygen, 2 occupants (U.S. Navy Diving Manual
-    # Rev 4 Change A §22-5.4, OLDER-EDITION); Treatment Table 6 at 60 fsw for 285 min
-    # (step times FROM MEMORY)
+    # no dump stated; every lock pressurised once to 60 fsw, then Treatment Table 6 step by
+    # step (regression arithmetic of this project's own sizing rule, spelt out above)
     f = only(run(_chamber_dive(flask_l=1000), FAMILY, "supply-chamber"), "warn")
-    q = 2 * 12.5 * an.L_PER_FT3
-    assert f.limit == pytest.approx(6000 * 60 / 33 + q * 285 * (1 + 60 / 33), abs=1)
+    assert f.limit == pytest.approx(6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, False),
+                                    abs=1)
     assert f.source_status == "FROM MEMORY" and "short" in f.message
+    assert "Treatment Table 6 as its timeline" in f.message and "288 min" in f.message
+
+
+def test_chamber_gas_default_sized_with_every_extension_when_asked():
+    f = only(run(_chamber_dive(flask_l=1000, treatment_extensions=True), FAMILY,
+                 "supply-chamber"), "warn")
+    assert f.limit == pytest.approx(6000 * 60 / 33 + _tt6_ventilation_l(TT6_EXT_STEPS, False),
+                                    abs=1)
+    assert "with every extension (488 min)" in f.message
 
 
 def test_chamber_gas_defaults_sufficient_needs_review():
@@ -233,9 +278,17 @@ def test_chamber_gas_overboard_dump_uses_air_rates():
     d = _chamber_dive(flask_l=4000, bibs_overboard_dump=True, treatment_occupants=3,
                       treatment_depth=60, treatment_min=285)
     f = only(run(d, FAMILY, "supply-chamber"), "pass")
-    # 2 acfm for the patient at rest + 4 acfm for each of two tenders (Navy §22-5.4)
+    # the plan's own treatment figures: 2 acfm for the patient at rest + 4 acfm for each of
+    # two tenders (Navy §22-5.4), 285 min at 60 fsw
     q = (2 + 2 * 4) * an.L_PER_FT3
     assert f.limit == pytest.approx(6000 * 60 / 33 + q * 285 * (1 + 60 / 33), abs=1)
+
+
+def test_chamber_gas_default_overboard_dump_air_rates_per_step():
+    d = _chamber_dive(flask_l=4000, bibs_overboard_dump=True, treatment_occupants=3)
+    f = only(run(d, FAMILY, "supply-chamber"), "pass")
+    assert f.limit == pytest.approx(
+        6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, True, occupants=3), abs=1)
 
 
 def test_chamber_gas_treatment_figure_from_the_manual():

@@ -1,0 +1,1 @@
+"""Alembic migration scripts of the record store, run by :mod:`supervisor.records.migrate`."""
