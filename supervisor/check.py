@@ -246,7 +246,17 @@ def pending_findings(plan: Plan, families: Sequence[Family]) -> list[Finding]:
     return out
 
 
-def _dive_entry(ctx: CheckContext, d: Dive, findings: list[Finding]) -> dict[str, Any]:
+def _by_dive(findings: list[Finding]) -> tuple[dict[str | None, list[Finding]], list[Finding]]:
+    """Findings grouped by dive id (one pass), and the plan-wide findings (dive None)."""
+    groups: dict[str | None, list[Finding]] = {}
+    for f in findings:
+        groups.setdefault(f.dive, []).append(f)
+    return groups, groups.get(None, [])
+
+
+def _dive_entry(
+    ctx: CheckContext, d: Dive, groups: dict[str | None, list[Finding]], plan_wide: list[Finding]
+) -> dict[str, Any]:
     entry: dict[str, Any] = {
         "id": d.id,
         "diver": d.diver,
@@ -267,7 +277,7 @@ def _dive_entry(ctx: CheckContext, d: Dive, findings: list[Finding]) -> dict[str
         "previous_dive": d.previous_dive,
         "standby_diver": d.standby_diver,
         "tender": d.tender,
-        "verdict": verdict([f for f in findings if f.dive in (d.id, None)]),
+        "verdict": verdict(groups.get(d.id, []) + plan_wide),
     }
     for key in ENGINE_SECTIONS:
         entry[key] = None
@@ -314,6 +324,7 @@ def check_plan(
     found += rule_findings
     found += pending_findings(plan, fams)
     found = sort_findings(found)
+    by_dive = _by_dive(found)
     stamp = (now or _dt.datetime.now(_dt.UTC)).astimezone(_dt.UTC)
     pol = ctx.policy
     sha = plan_sha or hashlib.sha256(plan_to_json(plan).encode()).hexdigest()
@@ -345,7 +356,7 @@ def check_plan(
             "coefficient_status": ctx.shared.get("coefficient_status"),
         },
         "policy": pol.model_dump(mode="json"),
-        "dives": [_dive_entry(ctx, d, found) for d in plan.dives],
+        "dives": [_dive_entry(ctx, d, *by_dive) for d in plan.dives],
         "team": [
             {
                 "name": m.name,

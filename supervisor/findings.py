@@ -14,8 +14,9 @@ Verdict (the supervisor's decision stays theirs):
 
 from __future__ import annotations
 
+import copy
 from collections.abc import Iterable
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field, fields
 from typing import Any, Literal
 
 Severity = Literal["fail", "warn", "info", "pass"]
@@ -77,14 +78,18 @@ class Finding:
 
     def to_json(self) -> dict[str, Any]:
         """Return the finding as a JSON-ready dictionary (contract ``supervisor.check/1``)."""
-        out = asdict(self)
-        extra = out.pop("extra")
+        out = {name: getattr(self, name) for name in _JSON_FIELDS}
         for k in ("measured", "limit"):
             v = out[k]
             if isinstance(v, float):
                 out[k] = round(v, 3)
-        out.update(extra)
+        if self.extra:
+            out.update(copy.deepcopy(self.extra))
         return out
+
+
+#: Keys of a finding's JSON object, in field order (``extra`` is merged in after them).
+_JSON_FIELDS: tuple[str, ...] = tuple(f.name for f in fields(Finding) if f.name != "extra")
 
 
 def sort_findings(findings: Iterable[Finding]) -> list[Finding]:

@@ -57,7 +57,6 @@ References
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import replace
 from typing import Any
 
@@ -83,19 +82,20 @@ from supervisor.analysis.assumptions import (
     SURD_CHAMBER_DEPTH_FSW,
     SURD_INTERVAL_MIN,
 )
+from supervisor.analysis.batch import evaluations, margins, schedules, variant
 from supervisor.analysis.chamber import CHAMBER_SOURCES, ChamberGas, chamber_gas
 from supervisor.analysis.figures import (
     _anchor,
-    _evaluate,
     _lookup,
     _step,
-    _surface_interval,
     from_table_depth,
     margin_minutes,
+    margin_minutes_many,
     planned_profile,
     po2_by_phase,
     schedule_request,
     supply_figures,
+    surface_interval_profile,
     time_to_altitude,
     to_table_depth,
 )
@@ -111,12 +111,7 @@ from supervisor.analysis.results import (
 )
 from supervisor.engine import buhlmann as bm
 from supervisor.engine import oxygen as ox
-from supervisor.engine.schedule import (
-    ScheduleRequest,
-    ScheduleResult,
-    plan_schedule,
-    work_budget,
-)
+from supervisor.engine.schedule import ScheduleRequest, work_budget
 from supervisor.gas import AIR, parse_gas
 from supervisor.plan import Dive, Plan
 from supervisor.units import altitude_pressure
@@ -152,7 +147,9 @@ __all__ = [
     "chamber_gas",
     "for_context",
     "from_table_depth",
+    "finish_dives",
     "margin_minutes",
+    "margin_minutes_many",
     "planned_profile",
     "po2_by_phase",
     "provide",
@@ -163,42 +160,14 @@ __all__ = [
 ]
 
 
-def _variant(dive: Dive, **update: Any) -> Dive:
-    return dive.model_copy(update=update)
+_Case = tuple[str, ScheduleRequest, float, float, str, Dive]
 
 
-def _covered(plan: Plan, a: DiveAnalysis) -> Callable[[float], bool]:
-    """Whether the proposed stops cover a bottom time (anchor from the model's schedule)."""
-    req = a.request
-
-    def covered(bt: float) -> bool:
-        d2 = _variant(a.dive, bottom_time_min=bt)
-        try:
-            prof = planned_profile(plan, d2)
-            res = plan_schedule(replace(req, bottom_time_min=bt)) if req is not None else None
-            ev = _evaluate(plan, prof, a.p_n2_0, a.p_he_0, _anchor(res))
-        except COMPUTE_ERRORS:
-            return False
-        if not a.dive.stops and (res is None or res.stops):
-            return False  # no stops proposed: covered only within the model's no-stop limit
-        return not ev.ceiling_broken
-
-    return covered
-
-
-def _schedule_or_error(req: ScheduleRequest) -> tuple[ScheduleResult | None, str | None]:
-    try:
-        return plan_schedule(req), None
-    except COMPUTE_ERRORS as exc:
-        return None, _err(exc)
-
-
-def _contingencies(plan: Plan, a: DiveAnalysis) -> dict[str, Contingency | None]:
-    """Overrun, deeper and oxygen-failure schedules (module docstring)."""
+def _contingency_cases(plan: Plan, a: DiveAnalysis) -> list[_Case]:
+    """Overrun, deeper and oxygen-failure cases of a dive (module docstring)."""
     dive, req, ref, table = a.dive, a.request, a.reference, a.table
-    out: dict[str, Contingency | None] = dict.fromkeys(("overrun", "deeper", "oxygen_failure"))
     if req is None:
-        return out
+        return []
     unit = plan.unit
     dec = table if table is not None and table.kind == "decompression" else None
     t_unit = dec.model.conventions.depth_unit if dec is not None else unit
@@ -232,11 +201,11 @@ def _contingencies(plan: Plan, a: DiveAnalysis) -> dict[str, Contingency | None]
         d2 = float(dive.max_depth + step)
         basis_d = f"planned depth + one stop step ({step:g} {unit}, the policy's stop step)"
 
-    cases: list[tuple[str, ScheduleRequest, float, float, str, Dive]] = [
+    cases: list[_Case] = [
         ("overrun", replace(req, bottom_time_min=bt2), dive.max_depth, bt2, basis_t,
-         _variant(dive, bottom_time_min=bt2)),
+         variant(dive, bottom_time_min=bt2)),
         ("deeper", replace(req, depth=d2), d2, dive.bottom_time_min, basis_d,
-         _variant(dive, max_depth=d2)),
+         variant(dive, max_depth=d2)),
     ]
     uses_o2 = req.surface_decompression is not None or any(
         parse_gas(g).fo2 > 0.5 for g, _ in req.deco_gases
@@ -248,18 +217,36 @@ def _contingencies(plan: Plan, a: DiveAnalysis) -> dict[str, Contingency | None]
             dive.max_depth,
             dive.bottom_time_min,
             f"the same dive decompressed in the water on {dive.gas_mix.name} (oxygen lost)",
-            _variant(dive, decompression="in-water"),
+            variant(dive, decompression="in-water"),
         ))
-    for kind, r2, depth, bt, basis, d_var in cases:
-        res, error = _schedule_or_error(r2)
+    return cases
+
+
+def _contingencies(plan: Plan, analyses: list[DiveAnalysis]) -> None:
+    """Fill every dive's contingencies; their schedules computed in one batch."""
+    cases = [(a, c) for a in analyses for c in _contingency_cases(plan, a)]
+    scheds = schedules([c[1] for _, c in cases])
+    for a in analyses:
+        if a.profile is not None:
+            a.contingencies = dict.fromkeys(("overrun", "deeper", "oxygen_failure"))
+    for (a, (kind, _, depth, bt, basis, d_var)), (res, error) in zip(cases, scheds, strict=True):
         look = None
-        if table is not None:
+        if a.table is not None:
             try:
-                look = _lookup(plan, table, d_var, depth, bt)
+                look = _lookup(plan, a.table, d_var, depth, bt)
             except COMPUTE_ERRORS as exc:
                 error = error or _err(exc)
-        out[kind] = Contingency(kind, depth, bt, basis, res, look, error)
-    return out
+        a.contingencies[kind] = Contingency(kind, depth, bt, basis, res, look, error)
+
+
+def finish_dives(plan: Plan, analyses: list[DiveAnalysis]) -> None:
+    """Margins and contingencies of many analysed dives, batched across the dives.
+
+    They depend on nothing but each dive's own figures (its starting tensions
+    included), so a plan's dives are finished together once every dive is analysed.
+    """
+    margins(plan, analyses)
+    _contingencies(plan, analyses)
 
 
 def analyse_dive(
@@ -287,28 +274,58 @@ def analyse_dive(
     DiveAnalysis
         Sections that could not be computed are None, with the reason in ``errors``.
     """
-    a = DiveAnalysis(dive=dive, p_n2_0=p_n2_0, p_he_0=p_he_0, table=table)
+    a = _start(plan, dive, table)
+    _engine([(a, p_n2_0, p_he_0)], plan)
+    _rest(plan, a)
+    finish_dives(plan, [a])
+    return a
+
+
+def _start(plan: Plan, dive: Dive, table: Any) -> DiveAnalysis:
+    """A dive's analysis with its planned profile (or the reason there is none)."""
+    a = DiveAnalysis(dive=dive, table=table)
     try:
         a.profile = planned_profile(plan, dive, a.notes)
     except COMPUTE_ERRORS as exc:
         a.errors["profile"] = _err(exc)
         for key in ("model_schedule", "evaluation", "oxygen", "supply"):
             a.errors[key] = "no profile: " + a.errors["profile"]
-        return a
-    try:
-        a.request = schedule_request(plan, dive, p_n2_0, p_he_0, a.notes)
-        a.model_schedule = plan_schedule(a.request)
-    except COMPUTE_ERRORS as exc:
-        a.errors["model_schedule"] = _err(exc)
-    try:
-        a.evaluation = _evaluate(plan, a.profile, p_n2_0, p_he_0, _anchor(a.model_schedule))
-    except COMPUTE_ERRORS as exc:
-        a.errors["evaluation"] = _err(exc)
-    if a.evaluation is not None and a.request is not None:
-        t_desc = dive.max_depth / plan.descent_rate(dive)
-        a.margin = margin_minutes(
-            _covered(plan, a), dive.bottom_time_min, t_desc, not a.evaluation.ceiling_broken
-        )
+    return a
+
+
+def _engine(
+    items: list[tuple[DiveAnalysis, NDArray[np.float64] | None, NDArray[np.float64] | None]],
+    plan: Plan,
+) -> None:
+    """Model schedules and evaluations of dives whose starting tensions are known (one batch)."""
+    todo = []
+    for a, p_n2_0, p_he_0 in items:
+        a.p_n2_0, a.p_he_0 = p_n2_0, p_he_0
+        if a.profile is None:
+            continue
+        todo.append(a)
+        try:
+            a.request = schedule_request(plan, a.dive, p_n2_0, p_he_0, a.notes)
+        except COMPUTE_ERRORS as exc:
+            a.errors["model_schedule"] = _err(exc)
+    asked = [a for a in todo if a.request is not None]
+    for a, (res, error) in zip(asked, schedules([a.request for a in asked]), strict=True):
+        a.model_schedule = res
+        if error is not None:
+            a.errors["model_schedule"] = error
+    evs = evaluations(plan, [(a.profile, a.p_n2_0, a.p_he_0, _anchor(a.model_schedule))
+                             for a in todo])
+    for a, (ev, error) in zip(todo, evs, strict=True):
+        a.evaluation = ev
+        if error is not None:
+            a.errors["evaluation"] = error
+
+
+def _rest(plan: Plan, a: DiveAnalysis) -> None:
+    """Oxygen, reference look-up and gas supply of a dive with a profile."""
+    if a.profile is None:
+        return
+    dive, table = a.dive, a.table
     try:
         a.exposure = ox.profile_exposure(a.profile)
         a.po2_max, a.po2_min = po2_by_phase(a.profile)
@@ -321,12 +338,63 @@ def analyse_dive(
             a.reference = _lookup(plan, table, dive, dive.max_depth, dive.bottom_time_min)
         except COMPUTE_ERRORS as exc:
             a.errors["reference"] = _err(exc)
-    a.contingencies = _contingencies(plan, a)
     try:
         a.supply = supply_figures(plan, dive, a.profile)
     except COMPUTE_ERRORS as exc:
         a.errors["supply"] = _err(exc)
-    return a
+
+
+def _carry(
+    plan: Plan,
+    group: list[DiveAnalysis],
+    dives: dict[str, DiveAnalysis],
+    pending: dict[str, tuple[list[str], dict[str, str]]],
+) -> None:
+    """Starting tensions of a group of dives (none follows another), then their engine runs.
+
+    A dive after another of its diver starts from that dive's final tensions
+    off-gassed over the surface interval; a first dive starts saturated with air.
+    The start loading is the highest compartment loading at leaving the surface.
+    """
+    tissues: dict[str, tuple[Any, Any]] = {}
+    after = [a for a in group if a.previous is not None]
+    known = [a for a in after if dives[a.previous].evaluation is not None]  # type: ignore[index]
+    for a in after:
+        if dives[a.previous].evaluation is None:  # type: ignore[index]
+            pending[a.id][1]["tissues"] = (
+                f"the tissue state after {a.previous} is unknown (its profile could not be "
+                "evaluated): this dive was computed from saturation at the surface"
+            )
+    items = []
+    for a in known:
+        ev = dives[a.previous].evaluation  # type: ignore[index]
+        items.append((surface_interval_profile(plan, a.surface_interval_min),
+                      ev.final_p_n2, ev.final_p_he, 0.0))
+    for a, (sie, error) in zip(known, evaluations(plan, items), strict=True):
+        try:
+            if sie is None:
+                raise _BatchError(error)
+            loading = float(np.max(sie.loading_percent_of_limit))
+        except (*COMPUTE_ERRORS, _BatchError) as exc:
+            msg = str(exc) if isinstance(exc, _BatchError) else _err(exc)
+            pending[a.id][1]["tissues"] = f"surface interval after {a.previous}: {msg}"
+            continue
+        tissues[a.id] = (sie.final_p_n2, sie.final_p_he)
+        a.start_loading_percent = loading
+    first = [a for a in group if a.previous is None]
+    sat = _saturated(plan)
+    items = [(surface_interval_profile(plan, 0.0), sat, np.zeros_like(sat), 0.0) for _ in first]
+    for a, (ev, _) in zip(first, evaluations(plan, items), strict=True):
+        try:
+            a.start_loading_percent = None if ev is None else float(
+                np.max(ev.loading_percent_of_limit))
+        except COMPUTE_ERRORS:
+            a.start_loading_percent = None
+    _engine([(a, *tissues.get(a.id, (None, None))) for a in group], plan)
+
+
+class _BatchError(Exception):
+    """An evaluation that failed in a batch; its message is the error's text."""
 
 
 def _load_reference(plan: Plan) -> tuple[Any, str | None]:
@@ -368,12 +436,13 @@ def analyse_plan(plan: Plan, altitudes_m: tuple[float, ...] = (CABIN_ALTITUDE_M,
     pol = plan.resolved_policy
     dives: dict[str, DiveAnalysis] = {}
     last: dict[str, DiveAnalysis] = {}
-    for d in plan.dives:
+    pending: dict[str, tuple[list[str], dict[str, str]]] = {}
+    levels: list[list[DiveAnalysis]] = []
+    level_of: dict[str, int] = {}
+    for d in plan.dives:  # time line, in plan order
         prev = last.get(d.diver)
-        p_n2 = p_he = None
-        start, si, assumed, loading = 0.0, None, False, None
+        start, si, assumed = 0.0, None, False
         notes: list[str] = []
-        errors: dict[str, str] = {}
         if prev is not None:
             si = d.surface_interval_min
             if si is None:
@@ -391,50 +460,36 @@ def analyse_plan(plan: Plan, altitudes_m: tuple[float, ...] = (CABIN_ALTITUDE_M,
                     f"the interval counts from the end of {d.previous_dive}, the tissues from "
                     f"{prev.id} ({si:.0f} min on the surface)"
                 )
-            if prev.evaluation is not None:
-                try:
-                    sie = _surface_interval(
-                        plan, prev.evaluation.final_p_n2, prev.evaluation.final_p_he, si
-                    )
-                    p_n2, p_he = sie.final_p_n2, sie.final_p_he
-                    loading = float(np.max(sie.loading_percent_of_limit))
-                except COMPUTE_ERRORS as exc:
-                    errors["tissues"] = f"surface interval after {prev.id}: {_err(exc)}"
-            else:
-                errors["tissues"] = (
-                    f"the tissue state after {prev.id} is unknown (its profile could not be "
-                    "evaluated): this dive was computed from saturation at the surface"
-                )
         elif d.surface_interval_min is not None:
             notes.append(
                 "a surface interval is given but the plan holds no earlier dive of this diver: "
                 "tissues taken as saturated at the surface; add the earlier dive to the plan"
             )
-        a = analyse_dive(plan, d, p_n2, p_he, table)
+        a = _start(plan, d, table)
         a.previous = prev.id if prev is not None else None
         a.surface_interval_min = si
         a.interval_assumed = assumed
         a.start_min = start
+        dur = a.profile.duration_min if a.profile is not None else d.bottom_time_min
+        a.end_min = start + dur
+        pending[d.id] = (notes, {})
+        level = 0 if prev is None else level_of[prev.id] + 1
+        level_of[d.id] = level
+        if level == len(levels):
+            levels.append([])
+        levels[level].append(a)
+        dives[d.id] = a
+        last[d.diver] = a
+    for group in levels:  # the k-th dive of every diver, together: tissues carried from k-1
+        _carry(plan, group, dives, pending)
+    for a in dives.values():
+        _rest(plan, a)
+        notes, errors = pending[a.id]
         a.notes[:0] = notes
         a.errors.update(errors)
         if table_error:
             a.errors["reference"] = table_error
-        if loading is None and "tissues" not in errors:
-            try:
-                first = _surface_interval(
-                    plan,
-                    p_n2 if p_n2 is not None else _saturated(plan),
-                    p_he if p_he is not None else np.zeros_like(_saturated(plan)),
-                    0.0,
-                )
-                loading = float(np.max(first.loading_percent_of_limit))
-            except COMPUTE_ERRORS:
-                loading = None
-        a.start_loading_percent = loading
-        dur = a.profile.duration_min if a.profile is not None else d.bottom_time_min
-        a.end_min = start + dur
-        dives[d.id] = a
-        last[d.diver] = a
+    finish_dives(plan, list(dives.values()))
     divers: dict[str, DiverDay] = {}
     for a in dives.values():
         divers.setdefault(a.dive.diver, DiverDay(a.dive.diver)).dive_ids.append(a.id)

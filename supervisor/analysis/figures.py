@@ -7,7 +7,7 @@ See :mod:`supervisor.analysis` for the definitions and
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Generator
 from typing import Any
 
 import numpy as np
@@ -219,6 +219,71 @@ def _evaluate(
     )
 
 
+def margin_search(
+    bottom_time_min: float, shortest_min: float, ok_now: bool
+) -> Generator[float, bool, Margin]:
+    """The margin search (module docstring) as a generator, so many dives search in step.
+
+    Yields each bottom time to try [min] and receives whether the proposed stops
+    cover it; returns the :class:`Margin`.  :func:`margin_minutes` drives one search
+    with a callable, :func:`margin_minutes_many` drives many with one batched call
+    per round.
+
+    Parameters
+    ----------
+    bottom_time_min : float
+        Planned bottom time [min].
+    shortest_min : float
+        Shortest bottom time possible (the descent) [min].
+    ok_now : bool
+        Whether the planned bottom time itself is covered.
+
+    Returns
+    -------
+    Margin
+
+    Notes
+    -----
+    The covered bottom times are taken to form one interval starting at the
+    shortest (a longer bottom time never loads the tissues less); the search
+    doubles the step, then bisects.
+    """
+    if ok_now:
+        good, bad, step = 0, None, 1
+        while step <= MARGIN_CAP_MIN:
+            if (yield bottom_time_min + step):
+                good = step
+                step *= 2
+            else:
+                bad = step
+                break
+        if bad is None:
+            if good < MARGIN_CAP_MIN and (yield bottom_time_min + MARGIN_CAP_MIN):
+                return Margin(MARGIN_CAP_MIN, capped=True)
+            if good < MARGIN_CAP_MIN:
+                bad = MARGIN_CAP_MIN
+            else:
+                return Margin(MARGIN_CAP_MIN, capped=True)
+        while bad - good > 1:
+            mid = (good + bad) // 2
+            if (yield bottom_time_min + mid):
+                good = mid
+            else:
+                bad = mid
+        return Margin(good)
+    most = int(math.floor(bottom_time_min - shortest_min + 1e-9))
+    if most < 1 or not (yield bottom_time_min - most):
+        return Margin(None, uncoverable=True)
+    bad, good = 0, most  # reductions: bad breaks, good is covered
+    while good - bad > 1:
+        mid = (good + bad) // 2
+        if (yield bottom_time_min - mid):
+            good = mid
+        else:
+            bad = mid
+    return Margin(-good)
+
+
 def margin_minutes(
     covered: Callable[[float], bool], bottom_time_min: float, shortest_min: float, ok_now: bool
 ) -> Margin:
@@ -242,44 +307,52 @@ def margin_minutes(
 
     Notes
     -----
-    The covered bottom times are taken to form one interval starting at the
-    shortest (a longer bottom time never loads the tissues less); the search
-    doubles the step, then bisects.
+    See :func:`margin_search`.
     """
-    if ok_now:
-        good, bad, step = 0, None, 1
-        while step <= MARGIN_CAP_MIN:
-            if covered(bottom_time_min + step):
-                good = step
-                step *= 2
-            else:
-                bad = step
-                break
-        if bad is None:
-            if good < MARGIN_CAP_MIN and covered(bottom_time_min + MARGIN_CAP_MIN):
-                return Margin(MARGIN_CAP_MIN, capped=True)
-            if good < MARGIN_CAP_MIN:
-                bad = MARGIN_CAP_MIN
-            else:
-                return Margin(MARGIN_CAP_MIN, capped=True)
-        while bad - good > 1:
-            mid = (good + bad) // 2
-            if covered(bottom_time_min + mid):
-                good = mid
-            else:
-                bad = mid
-        return Margin(good)
-    most = int(math.floor(bottom_time_min - shortest_min + 1e-9))
-    if most < 1 or not covered(bottom_time_min - most):
-        return Margin(None, uncoverable=True)
-    bad, good = 0, most  # reductions: bad breaks, good is covered
-    while good - bad > 1:
-        mid = (good + bad) // 2
-        if covered(bottom_time_min - mid):
-            good = mid
-        else:
-            bad = mid
-    return Margin(-good)
+    return margin_minutes_many(
+        lambda bts: [covered(bt) for _, bt in bts], [(bottom_time_min, shortest_min, ok_now)]
+    )[0]
+
+
+def margin_minutes_many(
+    covered: Callable[[list[tuple[int, float]]], list[bool]],
+    cases: list[tuple[float, float, bool]],
+) -> list[Margin]:
+    """Search the margins of many dives in step: one call of ``covered`` per round.
+
+    Parameters
+    ----------
+    covered : callable
+        ``covered([(case index, bottom time [min]), ...]) -> [bool, ...]``: whether
+        the proposed stops of each case cover each bottom time (one batch).
+    cases : list of (float, float, bool)
+        Per dive: planned bottom time [min], shortest bottom time [min] and
+        whether the planned bottom time is covered (see :func:`margin_search`).
+
+    Returns
+    -------
+    list of Margin, in the order of the cases.
+    """
+    out: list[Margin | None] = [None] * len(cases)
+    searches: dict[int, Generator[float, bool, Margin]] = {}
+    asks: dict[int, float] = {}
+    for i, (bt, shortest, ok) in enumerate(cases):
+        gen = margin_search(bt, shortest, ok)
+        try:
+            asks[i] = next(gen)
+            searches[i] = gen
+        except StopIteration as stop:
+            out[i] = stop.value
+    while asks:
+        queries = list(asks.items())
+        answers = covered(queries)
+        asks = {}
+        for (i, _), ok in zip(queries, answers, strict=True):
+            try:
+                asks[i] = searches[i].send(bool(ok))
+            except StopIteration as stop:
+                out[i] = stop.value
+    return out  # type: ignore[return-value]
 
 
 def time_to_altitude(
@@ -335,13 +408,17 @@ def _surface_interval(
     plan: Plan, p_n2: NDArray[np.float64], p_he: NDArray[np.float64], minutes: float
 ) -> ProfileEvaluation:
     """Off-gassing on the surface between two dives (a one-segment engine run)."""
-    prof = Profile(
+    return _evaluate(plan, surface_interval_profile(plan, minutes), p_n2, p_he, 0.0)
+
+
+def surface_interval_profile(plan: Plan, minutes: float) -> Profile:
+    """The profile of a surface interval: breathing air on the surface for ``minutes`` [min]."""
+    return Profile(
         [Segment(0.0, 0.0, max(minutes, 0.0), AIR, "surface", SURFACE_INTERVAL)],
         plan.unit,
         plan.p_surface_bar,
         plan.site.water,
     )
-    return _evaluate(plan, prof, p_n2, p_he, 0.0)
 
 
 def _phase(seg: Segment) -> str | None:

@@ -224,6 +224,10 @@ def tissue_tensions(
     n_comp = k.shape[0]
     batch = t.shape[:-1]
     p0 = np.broadcast_to(np.asarray(p_tissue0_bar, dtype=float), batch + (n_comp,))
+    if not np.any(f) and not np.any(p0):
+        # no inert gas breathed and none in the tissues (helium on an air dive): every
+        # tension stays exactly zero, so the scan is skipped
+        return np.zeros(batch + (t.shape[-1], n_comp))
 
     pa1 = inspired_pressure(p1, f, ph2o_bar)
     pa2 = inspired_pressure(p2, f, ph2o_bar)

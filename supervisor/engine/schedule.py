@@ -493,12 +493,19 @@ def plan_schedule(request: ScheduleRequest) -> ScheduleResult:
     return plan_schedules([request])[0]
 
 
-def plan_schedules(requests: list[ScheduleRequest]) -> list[ScheduleResult]:
+def plan_schedules(
+    requests: list[ScheduleRequest], *, details: bool = True
+) -> list[ScheduleResult]:
     """Compute many schedules; requests sharing settings are computed as one batch.
 
     Parameters
     ----------
     requests : list of ScheduleRequest
+    details : bool
+        Compute each schedule's oxygen exposure (``ScheduleResult.oxygen``) and gas
+        warnings.  A caller that only needs the stops, tensions and profile (a
+        search over bottom times) passes False and gets ``oxygen = None`` and no
+        warnings.
 
     Returns
     -------
@@ -512,7 +519,7 @@ def plan_schedules(requests: list[ScheduleRequest]) -> list[ScheduleResult]:
     out: list[ScheduleResult | None] = [None] * len(requests)
     for idx in groups.values():
         _charge([requests[i] for i in idx])
-        res = _Batch([requests[i] for i in idx]).run()
+        res = _Batch([requests[i] for i in idx]).run(details)
         for i, rr in zip(idx, res, strict=True):
             out[i] = rr
     return out  # type: ignore[return-value]
@@ -783,7 +790,7 @@ class _Batch:
         return minutes, pn, ph, cycle
 
     # -- main ------------------------------------------------------------------------------
-    def run(self) -> list[ScheduleResult]:
+    def run(self, details: bool = True) -> list[ScheduleResult]:
         r0, B = self.r0, self.B
         every = np.ones(B, bool)
         t_desc = self.depth / r0.descent_rate
@@ -893,12 +900,12 @@ class _Batch:
 
         for b, req in enumerate(self.reqs):
             prof = Profile(self.segs[b], req.unit, req.p_surface_bar, req.water)  # type: ignore[arg-type]
-            warnings = _gas_warnings(prof)
-            if req.o2_air_break is not None and not any(
+            warnings = _gas_warnings(prof) if details else []
+            if details and req.o2_air_break is not None and not any(
                 s.gas.fo2 > 0.5 for s in prof.segments if s.label == "stop"
             ):
                 warnings.append("air breaks ignored: no stop is on an oxygen-rich gas")
-            if si_gf[b] is not None and si_gf[b] > req.gf_high:
+            if details and si_gf[b] is not None and si_gf[b] > req.gf_high:
                 warnings.append(
                     f"surface decompression interval: supersaturation peaks at "
                     f"{100 * si_gf[b]:.0f} % of the M-value gradient, above GF high "
@@ -920,7 +927,7 @@ class _Batch:
                     controlling_compartment=self.c.labels[ctrl],
                     coefficient_status=status,
                     surface_interval_max_gf=si_gf[b],
-                    oxygen=_oxygen.profile_exposure(prof),
+                    oxygen=_oxygen.profile_exposure(prof) if details else None,
                     labels=self.c.labels,
                     warnings=warnings,
                 )

@@ -186,3 +186,13 @@ def test_bad_input_raises(kwargs):
     args.update(kwargs)
     with pytest.raises(InputError):
         tissue_tensions(**args)
+
+
+def test_no_gas_breathed_and_none_in_the_tissues_stays_zero():
+    """Helium on an air dive: exactly zero everywhere (dP/dt = k (0 - 0)), any batch shape."""
+    t = np.full((3, 5), 2.0)
+    p = np.linspace(1.0, 4.0, 15).reshape(3, 5)
+    got = tissue_tensions(t, p, p, 0.0, [5.0, 10.0], 0.0)
+    assert got.shape == (3, 5, 2) and not got.any()
+    # any helium in the tissues or the gas is integrated as before
+    assert tissue_tensions(t, p, p, 0.0, [5.0, 10.0], 0.1).all()
