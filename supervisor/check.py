@@ -26,7 +26,7 @@ from __future__ import annotations
 import datetime as _dt
 import hashlib
 from collections.abc import Callable, Iterable, Iterator, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -40,6 +40,7 @@ from supervisor.plan import (
     plan_to_json,
     read_plan_bytes,
 )
+from supervisor.references.rule_sources import rule_sources
 from supervisor.rules import FAMILIES
 from supervisor.rules.base import CheckContext, Family
 
@@ -197,10 +198,15 @@ def run_families(
     """
     findings: list[Finding] = []
     runs: list[RuleRun] = []
+    ctx.shared["rule_runs"] = runs  # read by the references family, which runs last
+    sources = rule_sources()
     for fam in families:
         for rule in fam.rules:
             if not rule.applies(ctx):
                 continue
+            src = sources.get(rule.id)
+            if src is not None and src.confirms and rule.source_status != "VERIFIED":
+                rule = replace(rule, source_status="VERIFIED")
             error = None
             try:
                 got = rule.run(ctx)

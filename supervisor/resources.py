@@ -7,7 +7,12 @@ checkout (editable install) it is the project's top-level ``tables/`` and
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
+
+#: Environment variable naming a folder that replaces the bundled ``tables/``: a
+#: contractor's own copy whose rows a second person has verified.
+TABLES_ENV = "SUPERVISOR_TABLES"
 
 _PKG = Path(__file__).resolve().parent
 
@@ -23,7 +28,25 @@ def _bundled(name: str) -> Path:
 
 
 def tables_dir() -> Path:
-    """Return the folder holding the bundled reference tables."""
+    """Return the folder holding the reference tables.
+
+    The bundled ``tables/`` unless the environment variable ``SUPERVISOR_TABLES``
+    names another folder (a contractor's verified copy, laid out the same way).
+
+    Raises
+    ------
+    InputError
+        If ``SUPERVISOR_TABLES`` is set but is not a folder.
+    """
+    own = os.environ.get(TABLES_ENV, "").strip()
+    if own:
+        path = Path(own).expanduser()
+        if not path.is_dir():
+            from supervisor.errors import InputError
+
+            raise InputError(TABLES_ENV, f"{own!r} is not a folder; expected a folder laid "
+                             "out like the bundled tables/ (limits/, models/, no-stop/ ...)")
+        return path.resolve()
     return _bundled("tables")
 
 

@@ -119,7 +119,10 @@ def test_a_pass_on_an_unconfirmed_rule_keeps_needs_review():
     without = [f for f in FAMILIES if f.name not in EXPECTED_FAMILIES]
     r = run_check(BASE, now=NOW, families=(*without, *_stand_ins()), providers=[])
     assert r["verdict"] == "needs-review"
-    assert not any(f["severity"] in ("fail", "warn") for f in r["findings"])
+    bad = [f for f in r["findings"] if f["severity"] in ("fail", "warn")]
+    # the only warning is the one job-level list of what rests on unconfirmed sources
+    assert [f["rule"] for f in bad] == ["references-unverified"]
+    assert sum(bad[0]["rules_with_unconfirmed_sources"].values()) > 0
 
 
 def test_policy_family_breach_fails():

@@ -18,6 +18,7 @@ from supervisor.rules import (
     model,
     oxygen,
     procedure,
+    references,
     regulatory,
     supply,
     tables,
@@ -38,6 +39,7 @@ FAMILIES: tuple[Family, ...] = (
     supply.FAMILY,
     exposure.FAMILY,
     contingency.FAMILY,
+    references.FAMILY,  # last: it reads the references and rules of the others
 )
 
 __all__ = ["FAMILIES", "CheckContext", "Family", "Rule"]

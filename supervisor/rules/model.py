@@ -8,10 +8,10 @@ own schedule.
 
 Coefficient status.  The ZH-L16B and C a-values are held FROM MEMORY (the A set
 is SECONDARY for nitrogen), so a model result alone cannot make a dive conform:
-every dive gets a ``model-coefficients`` finding that warns unless the
-coefficients are VERIFIED or the dive conforms to a verified reference-table row
-from a VERIFIED source.  A model failure still fails: the model and its gradient
-factors are the contractor's own choice.
+the job-level ``references-unverified`` finding (:mod:`supervisor.rules.references`)
+lists the coefficients to confirm unless they are VERIFIED or every dive conforms
+to a verified reference-table row from a VERIFIED source.  A model failure still
+fails: the model and its gradient factors are the contractor's own choice.
 
 Margin: see :mod:`supervisor.analysis` (whole minutes of extra bottom time the
 proposed stops still cover; negative = minutes short).
@@ -28,9 +28,8 @@ from __future__ import annotations
 from collections.abc import Iterator
 
 from supervisor import analysis as an
-from supervisor.findings import CONFIRMED_STATUSES, Finding
+from supervisor.findings import Finding
 from supervisor.rules.base import CheckContext, Family, Rule
-from supervisor.rules.tables import table_check
 
 FAMILY = Family("model-margin", "Decompression model margin")
 
@@ -218,40 +217,4 @@ def schedule(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 f"{have:g} min of planned stops against {need:g} min in the model's schedule "
                 f"({stops})",
                 **kw,
-            )
-
-
-@FAMILY.rule(
-    "model-coefficients",
-    title="Status of the model coefficients behind the model figures",
-    citation="Bühlmann ZH-L16 coefficients as bundled in tables/models (per-value status)",
-    kind="reference",
-)
-def coefficients(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Warn that model figures rest on unconfirmed coefficients unless a trusted row backs them.
-
-    A dive conforming to a verified reference-table row from a VERIFIED source
-    gets an information finding instead: the table row, not the model, carries it.
-    """
-    pa = an.for_context(ctx)
-    for d in ctx.dives():
-        a = pa.dives[d.id]
-        status = a.coefficient_status
-        model = model_name(ctx.policy.model)
-        if status in CONFIRMED_STATUSES:
-            yield r.note(f"{model} coefficients are {status}", dive=d.id, status=status)
-            continue
-        tc = table_check(ctx, a)
-        if tc.trusted:
-            yield r.note(
-                f"{model} coefficients are {status}; the dive conforms to the verified row "
-                f"{tc.look.row} of {tc.look.table}, which carries the check",
-                dive=d.id, status=status,
-            )
-        else:
-            yield r.review(
-                f"needs review: the model figures rest on {model} coefficients whose status is "
-                f"{status}; confirm them against the published set or check the dive against a "
-                "verified table row",
-                dive=d.id, status=status, measured=status, limit="VERIFIED",
             )

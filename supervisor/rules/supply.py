@@ -58,11 +58,9 @@ def _compare(
     if have + 1e-9 < need:
         return r.breach(f"{what}: {have:.0f} {unit} against a need of {need:.0f} {unit} ({basis})",
                         **kw)
-    return r.ok(
-        f"{what}: {have:.0f} {unit} against a need of {need:.0f} {unit} ({basis}); planning "
-        "figures by an older-edition method: needs review",
-        verified=False, **kw,
-    )
+    tail = "" if r.confirmed() else "; planning figures by an older-edition method: needs review"
+    return r.ok(f"{what}: {have:.0f} {unit} against a need of {need:.0f} {unit} ({basis}){tail}",
+                **kw)
 
 
 def _basis(s: an.Supply) -> str:
@@ -177,7 +175,8 @@ def over_bottom(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             if psig + 1e-9 < s.mmp_psig:
                 yield r.breach(text, **kw)
             else:
-                yield r.ok(text + "; older-edition method: needs review", verified=False, **kw)
+                tail = "" if r.confirmed() else "; older-edition method: needs review"
+                yield r.ok(text + tail, **kw)
 
 
 @FAMILY.rule(
@@ -210,7 +209,7 @@ def bailout(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if s.bailout_psig + 1e-9 < e.required_psig:
             yield r.breach(text, **kw)
         else:
-            yield r.ok(text, verified=False, **kw)
+            yield r.ok(text, **kw)
 
 
 @FAMILY.rule(

@@ -11,7 +11,7 @@ from __future__ import annotations
 import _contract as _c
 import pytest
 from _contract import Case
-from _engine_plans import context, data, only, run, trusted_table, uncomputed
+from _engine_plans import context, data, only, run, uncomputed
 
 from supervisor import analysis as an
 from supervisor.rules.base import CheckContext
@@ -84,16 +84,8 @@ def test_schedule_fail_no_stops_beyond_the_no_stop_limit():
     assert "policy.model" in f.citation
 
 
-def test_coefficients_warn_on_from_memory_set():
-    f = only(run(data(), FAMILY, "model-coefficients"), "warn")
-    assert f.source_status == "FROM MEMORY" and not f.verified
 
 
-def test_coefficients_info_when_a_trusted_row_carries_the_dive(tmp_path):
-    d = data(bottom_time_min=50, decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
-    d["policy"]["reference_table"] = str(trusted_table(tmp_path))
-    f = only(run(d, FAMILY, "model-coefficients"), "info")
-    assert "verified row 1" in f.message
 
 
 @pytest.mark.parametrize(("key", "sections"), [
@@ -111,11 +103,6 @@ def test_uncomputable_figures_need_review(key, sections):
     _c.reported(f)
 
 
-def test_coefficients_warning_reports_the_status():
-    """The coefficient warning names the status found against the status required."""
-    f = only(run(data(), FAMILY, "model-coefficients"), "warn")
-    assert (f.measured, f.limit) == ("FROM MEMORY", "VERIFIED")
-    _c.reported(f)
 
 
 # ---------------------------------------------------------------------------
@@ -145,17 +132,9 @@ CASES: dict[str, Case] = {
         passing=lambda _: data(), failing=lambda _: data(bottom_time_min=50),
         measured=0.0, limit=lambda ctx: float(_a(ctx).model_schedule.total_stop_min),
         citation=f"{CITE}; schedule conventions of supervisor.engine.schedule"),
-    "model-coefficients": Case(
-        passing=lambda tmp: _trusted(tmp), failing=lambda _: data(),
-        measured="FROM MEMORY", limit="VERIFIED", severity="warn",
-        citation="Bühlmann ZH-L16 coefficients as bundled in tables/models (per-value status)"),
 }
+# unconfirmed coefficients: the references-unverified finding (tests/rules/test_references.py)
 
-
-def _trusted(tmp):
-    d = data(bottom_time_min=50, decompression="in-water", stops=[{"depth": 10, "minutes": 5}])
-    d["policy"]["reference_table"] = str(trusted_table(tmp))
-    return d
 
 
 @pytest.mark.parametrize("key", sorted(CASES))
