@@ -22,6 +22,7 @@ from supervisor.engine.schedule import (
 )
 from supervisor.plan import Dive
 from supervisor.profile import Profile
+from supervisor.quantities import gf_percent_value
 
 
 def _err(exc: BaseException) -> str:
@@ -381,7 +382,7 @@ class DiveAnalysis:
             "total_ascent_min": _r(s.total_ascent_min, 2),
             "no_stop_limit_min": s.no_stop_limit_min,
             "first_stop_depth": s.first_stop_depth,
-            "surfacing_gf_percent": _r(100 * s.surfacing_gf, 1),
+            "surfacing_gf_percent": gf_percent_value(100 * s.surfacing_gf),
             "controlling_compartment": s.controlling_compartment,
             "coefficient_status": s.coefficient_status,
             "error": None,
@@ -392,7 +393,7 @@ class DiveAnalysis:
         bpu = bar_per_unit(self.dive_unit)
         return {
             "ceiling_broken": ev.ceiling_broken if ev else None,
-            "surfacing_gf_percent": _r(100 * ev.surfacing_gf, 1) if ev else None,
+            "surfacing_gf_percent": gf_percent_value(100 * ev.surfacing_gf) if ev else None,
             "max_gf_percent": _r(100 * ev.max_gf, 1) if ev else None,
             "controlling_compartment": ev.controlling_compartment if ev else None,
             "first_break_min": _r(ev.first_break_min, 2) if ev else None,
@@ -437,10 +438,13 @@ class DiveAnalysis:
     def _compartments_json(self) -> dict[str, list[Any]]:
         ev = self.evaluation
         if ev is None:
-            return {"labels": [], "loading_percent_of_limit": []}
+            return {"labels": [], "loading_percent_of_limit": [], "surfacing_gf_percent": []}
         return {
             "labels": list(ev.labels),
             "loading_percent_of_limit": [round(float(x), 1) for x in ev.loading_percent_of_limit],
+            # the same quantity as model_margin.surfacing_gf_percent, per compartment
+            "surfacing_gf_percent": [gf_percent_value(100 * float(x))
+                                     for x in ev.surfacing_gf_by_compartment],
         }
 
     @property

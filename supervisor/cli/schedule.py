@@ -11,6 +11,7 @@ from supervisor.cli._common import fail_input, guarded, json_text, say
 from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedule
 from supervisor.gas import parse_gas
 from supervisor.plan_fields import rate_range
+from supervisor.quantities import gf_percent_text
 from supervisor.text import excerpt
 from supervisor.units import altitude_pressure
 
@@ -88,7 +89,7 @@ def _table(js: dict) -> str:
     cns, otu = ox.get("cns_percent"), ox.get("otu")
     lines.append(
         f"total stop time {js['total_stop_min']} min; ascent {js['total_ascent_min']:.1f} min; "
-        f"surfacing GF {js['surfacing_gf_percent']:.0f} % (compartment "
+        f"surfacing GF {gf_percent_text(js['surfacing_gf_percent'])} (compartment "
         f"{js['controlling_compartment']})"
     )
     lines.append(

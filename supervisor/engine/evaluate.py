@@ -13,7 +13,7 @@ References
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from numpy.typing import NDArray
@@ -58,6 +58,10 @@ class ProfileEvaluation:
     loading_percent_of_limit : ndarray
         Each compartment's tension at the end as a share of the tension allowed at
         the surface with GF high [%].
+    surfacing_gf_by_compartment : ndarray
+        Each compartment's supersaturation at the end [-]: the same definition as
+        ``surfacing_gf`` (its largest value); negative for a compartment whose inert-gas
+        tension is below the surface pressure (undersaturated).
     surface_interval_max_gf : float or None
         Largest supersaturation during ``place == "surface"`` segments (surface decompression).
     final_p_n2, final_p_he : ndarray
@@ -86,6 +90,8 @@ class ProfileEvaluation:
     first_stop_depth: float | None
     coefficient_status: str
     labels: tuple[str, ...]
+    surfacing_gf_by_compartment: NDArray[np.float64] = field(
+        default_factory=lambda: np.zeros(0), repr=False)
 
 
 def infer_first_stop(profile: Profile) -> float | None:
@@ -276,6 +282,7 @@ def evaluate_profiles(
                 first_stop_depth=fs,
                 coefficient_status=c.status_for(uses_he),
                 labels=c.labels,
+                surfacing_gf_by_compartment=np.asarray(surf_gf, dtype=float).copy(),
             )
         )
     return out

@@ -4,7 +4,7 @@ Two charts per dive, monochrome so that they photocopy cleanly:
 
 * the planned depth-time profile with the model ceiling (``dive.chart``);
   stretches where the planned depth is shallower than the ceiling are shaded;
-* each compartment's loading at surfacing as a share of its limit
+* each compartment's surfacing gradient factor against GF high
   (``dive.compartments``), with the 100 % line.
 
 Both return ``None`` when the data are missing or malformed, so the caller
@@ -21,6 +21,7 @@ from reportlab.graphics.shapes import Drawing, Group, Line, PolyLine, Rect, Stri
 from reportlab.lib import colors
 from reportlab.pdfbase.pdfmetrics import stringWidth
 
+from supervisor.quantities import NEGATIVE_GF_NOTE, gf_percent_text
 from supervisor.report.fonts import BOLD, REGULAR, register_fonts
 from supervisor.report.formatting import fmt_number, is_number
 
@@ -329,26 +330,35 @@ def compartment_chart(
     compartments: Mapping[str, Any] | None,
     width: float = 500.0,
     height: float = 150.0,
+    gf_high: object = None,
 ) -> Drawing | None:
-    """Bar chart of each compartment's loading at surfacing, percent of its limit.
+    """Bar chart of each compartment's surfacing gradient factor [% of the M-value gradient].
+
+    The bars are the quantity the check calls the surfacing gradient factor (one
+    definition: :func:`supervisor.quantities.gf_percent_text`), so the tallest bar is
+    the figure printed in the text and the JSON.  The dashed line is the policy's GF
+    high; a negative value (an undersaturated compartment) is drawn at zero and
+    labelled "<0", and the caption says what it means.
 
     Parameters
     ----------
     compartments : mapping or None
-        ``{"labels": [str], "loading_percent_of_limit": [number]}``.
+        ``{"labels": [str], "surfacing_gf_percent": [number]}``.
     width, height : float
         Drawing size [pt].
+    gf_high : number or None
+        GF high as a fraction (the check JSON's ``model.gf_high``); 100 % when absent.
 
     Returns
     -------
     Drawing or None
         ``None`` if the lists are missing, empty, of unequal length or not
-        numeric.  Bars above 100 % are drawn black, the others grey.
+        numeric.  Bars above GF high are drawn black, the others grey.
     """
     if not isinstance(compartments, Mapping):
         return None
     labels = compartments.get("labels")
-    values = _series(compartments.get("loading_percent_of_limit"))
+    values = _series(compartments.get("surfacing_gf_percent"))
     if (
         not isinstance(labels, Sequence)
         or isinstance(labels, str)
@@ -358,11 +368,15 @@ def compartment_chart(
     ):
         return None
     register_fonts()
+    limit = 100.0 * float(gf_high) if is_number(gf_high) else 100.0  # type: ignore[arg-type]
     loads = [float(v) for v in values if v is not None]
-    top = nice_ticks(0.0, max(110.0, max(loads) * 1.08), 5)
+    top = nice_ticks(0.0, max(110.0, limit * 1.1, max(loads) * 1.08), 5)
     x0, x1 = _LEFT, width - _RIGHT
-    caption = _wrap("loading at surfacing, percent of the compartment's limit (dashed line: "
-                    "100 %; black bars exceed it)", width - x0 - 4)
+    words = (f"surfacing gradient factor, percent of the M-value gradient (dashed line: GF high "
+             f"{fmt_number(limit, 0)} %; black bars exceed it)")
+    if any(v < 0 for v in loads):
+        words += f"; <0: {NEGATIVE_GF_NOTE}"
+    caption = _wrap(words, width - x0 - 4)
     y0, y1 = _BOTTOM, height - _TOP - _LEGEND_LINE * (len(caption) - 1)
 
     def py(v: float) -> float:
@@ -376,12 +390,13 @@ def compartment_chart(
     bar_w = slot * 0.62
     for i, (label, value) in enumerate(zip(labels, loads, strict=True)):
         cx = x0 + slot * (i + 0.5)
-        over = value > 100.0
+        over = value > limit + 1e-9
         g.add(Rect(cx - bar_w / 2, y0, bar_w, py(value) - y0,
                    fillColor=INK if over else BAR, strokeColor=None))
-        g.add(_label(cx, py(value) + 2, fmt_number(value, 0), size=6, bold=over))
+        shown = "<0" if value < 0 else gf_percent_text(value).removesuffix(" %")
+        g.add(_label(cx, py(value) + 2, shown, size=6, bold=over))
         g.add(_label(cx, y0 - 9, str(label), size=6))
-    g.add(Line(x0, py(100.0), x1, py(100.0), strokeColor=INK, strokeWidth=0.9,
+    g.add(Line(x0, py(limit), x1, py(limit), strokeColor=INK, strokeWidth=0.9,
                strokeDashArray=[4, 2]))
     g.add(Line(x0, y0, x1, y0, strokeColor=INK, strokeWidth=0.6))
     g.add(Line(x0, y0, x0, y1, strokeColor=INK, strokeWidth=0.6))

@@ -20,6 +20,7 @@ from typing import Any
 from reportlab.platypus import CondPageBreak, Flowable, KeepTogether, Spacer, Table
 
 from supervisor import constants as C
+from supervisor.quantities import gf_percent_text
 from supervisor.report import charts
 from supervisor.report.blocks import SignerNote, kv_lines, m, model_label, not_computed, stated
 from supervisor.report.blocks import text as _text
@@ -305,7 +306,9 @@ def model_margin(dive: Mapping[str, Any], record: Mapping[str, Any]) -> list[Flo
         verdict = (f"Ceiling check: {NOT_COMPUTED}.", True)
     pct = margin.get("surfacing_gf_percent")
     parts: list[tuple[object, bool]] = [verdict, (
-        f" Surfacing gradient factor {fmt_quantity(pct, '%', 0)}; controlling compartment "
+        f" Surfacing gradient factor of the planned profile "
+        f"{gf_percent_text(pct) if is_number(pct) else fmt_quantity(pct, '%', 0)}; "
+        f"controlling compartment "
         f"{_text(margin.get('controlling_compartment'))}; margin "
         f"{_minutes(margin.get('margin_min'))}. (Model coefficients {status}.)", False)]
     if surd:
@@ -651,9 +654,10 @@ def dive_charts(dive: Mapping[str, Any], record: Mapping[str, Any], width: float
         left.append(para("Dotted box: the surface interval of surface decompression, "
                          "excluded from the ceiling check (see the ceiling check above); "
                          "shading marks only breaks outside it.", SMALL))
-    bars = charts.compartment_chart(dive.get("compartments"), width=w_right, height=CHART_HEIGHT)
+    bars = charts.compartment_chart(dive.get("compartments"), width=w_right, height=CHART_HEIGHT,
+                                    gf_high=model.get("gf_high"))
     right: list[Flowable] = [
-        para(f"Compartment loading at surfacing ({status})", H3),
+        para(f"Surfacing gradient factor by compartment ({status})", H3),
         bars if bars is not None else _not_computed("Compartment loading")]
     pair = Table([[left, right]], colWidths=[width * 0.58, width * 0.42])
     pair.setStyle([("VALIGN", (0, 0), (-1, -1), "TOP"), ("LEFTPADDING", (0, 0), (-1, -1), 0),

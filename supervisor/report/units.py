@@ -30,37 +30,16 @@ from dataclasses import dataclass
 from typing import Any
 
 from supervisor import constants as C
+from supervisor import quantities
 from supervisor.report.formatting import MISSING, fmt_number, fmt_quantity, is_number
 
 #: Litres in one cubic foot [L/ft³] (0.3048 m per foot, exact).
-L_PER_FT3 = 1000.0 / C.FT_PER_M**3
+L_PER_FT3 = quantities.LITRES_PER_CUBIC_FOOT
 
 
 @dataclass(frozen=True)
-class UnitSystem:
-    """How one plan's checklist prints figures."""
-
-    depth: str  # "msw" or "fsw"
-
-    @property
-    def imperial(self) -> bool:
-        """Whether the plan is in feet of sea water (fsw, psig, scf)."""
-        return self.depth == "fsw"
-
-    @property
-    def gas_unit(self) -> str:
-        """Unit of free gas quantities."""
-        return "scf" if self.imperial else "L"
-
-    @property
-    def flow_unit(self) -> str:
-        """Unit of gas flows."""
-        return "scfm" if self.imperial else "L/min"
-
-    @property
-    def gauge_unit(self) -> str:
-        """Unit of gauge pressures."""
-        return "psig" if self.imperial else "bar"
+class UnitSystem(quantities.UnitSystem):
+    """How one plan's checklist prints figures (the package's unit system, PDF formatting)."""
 
     def gas(self, litres: object, decimals: int = 0) -> str:
         """Free gas, given in litres, in the plan's system (``"371 scf"``)."""

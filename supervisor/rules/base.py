@@ -32,6 +32,7 @@ from typing import Any, Literal
 
 from supervisor.findings import CONFIRMED_STATUSES, Finding
 from supervisor.plan import Dive, Member, Plan, Policy
+from supervisor.quantities import UnitSystem
 
 RuleKind = Literal["regulatory", "reference", "policy", "plan"]
 """What a rule compares against:
@@ -74,6 +75,7 @@ class CheckContext:
     def __post_init__(self) -> None:
         self.policy: Policy = self.plan.resolved_policy
         self.unit: str = self.plan.unit
+        self.units: UnitSystem = UnitSystem(self.unit)
         self.jurisdiction: str = self.plan.job.jurisdiction
         for d in self.plan.dives:
             self.dive_data.setdefault(d.id, {})

@@ -29,6 +29,7 @@ from collections.abc import Iterator
 
 from supervisor import analysis as an
 from supervisor.findings import Finding
+from supervisor.quantities import gf_percent_text, gf_percent_value
 from supervisor.rules.base import CheckContext, Family, Rule
 
 FAMILY = Family("model-margin", "Decompression model margin")
@@ -119,11 +120,11 @@ def surfacing_gf(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if bad is not None:
             yield bad
             continue
-        gf = 100.0 * a.evaluation.surfacing_gf
+        gf = gf_percent_value(100.0 * a.evaluation.surfacing_gf)
         comp = a.evaluation.controlling_compartment
-        kw = dict(measured=round(gf, 1), limit=limit, unit="%", dive=d.id)
-        text = (f"surfacing gradient factor {gf:.1f} % (controlling compartment {comp}) against "
-                f"GF high {limit:g} % ({_status(a)})")
+        kw = dict(measured=gf, limit=limit, unit="%", dive=d.id)
+        text = (f"surfacing gradient factor of the planned profile {gf_percent_text(gf)} "
+                f"(controlling compartment {comp}) against GF high {limit:g} % ({_status(a)})")
         if gf > limit + 1e-6:
             yield r.breach(text + " is above the policy", **kw)
         else:

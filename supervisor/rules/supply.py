@@ -52,20 +52,26 @@ def _figures(ctx: CheckContext, r: Rule) -> Iterator[tuple[Any, an.Supply | None
 
 
 def _compare(
-    r: Rule, what: str, have: float, need: float, unit: str, basis: str, dive: str
+    ctx: CheckContext, r: Rule, what: str, have: float, need: float, quantity: str, basis: str,
+    dive: str,
 ) -> Finding:
-    kw = dict(measured=round(have, 1), limit=round(need, 1), unit=unit, dive=dive)
+    """``have`` against ``need``, litres (``quantity`` "volume") or L/min ("flow"), shown
+    in the plan's unit system."""
+    u = ctx.units
+    conv, unit = (u.to_flow, u.flow_unit) if quantity == "flow" else (u.to_gas, u.gas_unit)
+    h, n = conv(have), conv(need)
+    kw = dict(measured=round(h, 1), limit=round(n, 1), unit=unit, dive=dive)
+    fmt = ".1f" if quantity == "flow" and u.imperial else ".0f"
+    text = f"{what}: {h:{fmt}} {unit} against a need of {n:{fmt}} {unit} ({basis})"
     if have + 1e-9 < need:
-        return r.breach(f"{what}: {have:.0f} {unit} against a need of {need:.0f} {unit} ({basis})",
-                        **kw)
+        return r.breach(text, **kw)
     tail = "" if r.confirmed() else "; planning figures by an older-edition method: needs review"
-    return r.ok(f"{what}: {have:.0f} {unit} against a need of {need:.0f} {unit} ({basis}){tail}",
-                **kw)
+    return r.ok(text + tail, **kw)
 
 
-def _basis(s: an.Supply) -> str:
+def _basis(ctx: CheckContext, s: an.Supply) -> str:
     who = "diver and standby diver" if s.people == 2 else "diver"
-    return f"{who} at {s.rmv_lpm:.1f} L/min"
+    return f"{who} at {ctx.units.show_rmv(s.rmv_lpm)}"
 
 
 @FAMILY.rule(
@@ -82,12 +88,13 @@ def primary(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield bad
             continue
         if s.primary_delivery_lpm is not None:
-            yield _compare(r, "primary compressor delivery", s.primary_delivery_lpm,
-                           s.peak_flow_lpm, "L/min", _basis(s) + " at the maximum depth", d.id)
+            yield _compare(ctx, r, "primary compressor delivery", s.primary_delivery_lpm,
+                           s.peak_flow_lpm, "flow", _basis(ctx, s) + " at the maximum depth",
+                           d.id)
         else:
-            yield _compare(r, f"primary {s.primary_kind} above the minimum manifold pressure",
-                           s.primary_available_l or 0.0, s.need_l, "L",
-                           _basis(s) + ", the whole dive", d.id)
+            yield _compare(ctx, r, f"primary {s.primary_kind} above the minimum manifold "
+                           "pressure", s.primary_available_l or 0.0, s.need_l, "volume",
+                           _basis(ctx, s) + ", the whole dive", d.id)
 
 
 @FAMILY.rule(
@@ -107,13 +114,14 @@ def secondary(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.note("no secondary supply in the plan; the regulatory rules say when one is "
                          "required", dive=d.id)
         elif s.secondary_delivery_lpm is not None:
-            yield _compare(r, "secondary compressor delivery", s.secondary_delivery_lpm,
-                           s.peak_flow_lpm, "L/min", _basis(s) + " at the maximum depth", d.id)
+            yield _compare(ctx, r, "secondary compressor delivery", s.secondary_delivery_lpm,
+                           s.peak_flow_lpm, "flow", _basis(ctx, s) + " at the maximum depth",
+                           d.id)
         else:
-            yield _compare(r, f"secondary {s.secondary_kind} above the minimum manifold pressure",
-                           s.secondary_available_l or 0.0, s.recovery_need_l, "L",
-                           _basis(s) + ", ascent and decompression from the end of the bottom "
-                           "time", d.id)
+            yield _compare(ctx, r, f"secondary {s.secondary_kind} above the minimum manifold "
+                           "pressure", s.secondary_available_l or 0.0, s.recovery_need_l,
+                           "volume", _basis(ctx, s) + ", ascent and decompression from the end "
+                           "of the bottom time", d.id)
 
 
 @FAMILY.rule(
@@ -149,29 +157,33 @@ def over_bottom(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             field = f"gas_supply.{label}."
             field += "delivery_pressure_bar" if src.kind == "compressor" else "pressure_bar"
             bar = src.supply_pressure_bar
+            u = ctx.units
+            mmp = u.stated_psig(s.mmp_psig)
+            over = f"{u.stated_psig(s.over_bottom_psig)} over bottom"
             if bar is None:
                 yield r.review(
                     f"needs review: the plan gives no {label} compressor delivery pressure "
-                    f"({field}); it must hold at least {s.mmp_psig:.0f} psig at the manifold "
-                    f"({s.over_bottom_psig:.0f} psig over bottom)",
-                    measured=None, limit=round(s.mmp_psig, 0), unit="psig", dive=d.id,
+                    f"({field}); it must hold at least {mmp} at the manifold ({over})",
+                    measured=None, limit=round(u.to_gauge(s.mmp_psig * C.BAR_PER_PSI), 1),
+                    unit=u.gauge_unit, dive=d.id,
                 )
                 continue
             psig = bar / C.BAR_PER_PSI
             what = "delivering" if src.kind == "compressor" else "charged to"
-            kw = dict(measured=round(psig, 0), unit="psig", dive=d.id)
-            text = f"{label} {src.kind} {what} {psig:.0f} psig ({bar:g} bar, {field})"
+            kw = dict(measured=round(u.to_gauge(bar), 1), unit=u.gauge_unit, dive=d.id)
+            held = (f"{psig:.0f} psig ({bar:g} bar, {field})" if u.imperial
+                    else f"{bar:g} bar ({field})")
+            text = f"{label} {src.kind} {what} {held}"
             if s.bottom_psig is not None and psig + 1e-9 < s.bottom_psig:
                 yield r.finding(
                     "fail", text + f" is below the water pressure at {ctx.show(d.max_depth)} "
-                    f"({s.bottom_psig:.0f} psig): it cannot deliver gas to the diver",
-                    limit=round(s.bottom_psig, 0), citation=f"plan consistency ({field})",
-                    status=None, **kw,
+                    f"({u.stated_psig(s.bottom_psig)}): it cannot deliver gas to the diver",
+                    limit=round(u.to_gauge(s.bottom_psig * C.BAR_PER_PSI), 1),
+                    citation=f"plan consistency ({field})", status=None, **kw,
                 )
                 continue
-            text += (f" against a minimum manifold pressure of {s.mmp_psig:.0f} psig "
-                     f"({s.over_bottom_psig:.0f} psig over bottom)")
-            kw["limit"] = round(s.mmp_psig, 0)
+            text += f" against a minimum manifold pressure of {mmp} ({over})"
+            kw["limit"] = round(u.to_gauge(s.mmp_psig * C.BAR_PER_PSI), 1)
             if psig + 1e-9 < s.mmp_psig:
                 yield r.breach(text, **kw)
             else:
@@ -200,12 +212,21 @@ def bailout(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                              "and procedure rules say when one is required", dive=d.id)
             continue
         e = s.egs
-        kw = dict(measured=round(s.bailout_psig, 0), limit=round(e.required_psig, 0),
-                  unit="psig", dive=d.id)
-        text = (f"bailout charged to {s.bailout_psig:.0f} psig; {e.total_scf:.1f} scf to reach "
-                f"{'the first stop' if d.water_stops else 'the surface'}"
+        u = ctx.units
+        have_bar = s.bailout_psig * C.BAR_PER_PSI
+        need_bar = e.required_psig * C.BAR_PER_PSI
+        kw = dict(measured=round(u.to_gauge(have_bar), 1), limit=round(u.to_gauge(need_bar), 1),
+                  unit=u.gauge_unit, dive=d.id)
+        if u.imperial:
+            needs = f"{e.required_psig:.0f} psig ({e.required_psig_rounded:.0f} psig rounded up)"
+        else:
+            needs = (f"{round(need_bar, 1):g} bar ({e.required_psig:.0f} psig; "
+                     f"{e.required_psig_rounded:.0f} psig = "
+                     f"{round(e.required_psig_rounded * C.BAR_PER_PSI, 1):g} bar rounded up)")
+        text = (f"bailout charged to {u.show_pressure(have_bar)}; {u.stated_scf(e.total_scf)} "
+                f"to reach {'the first stop' if d.water_stops else 'the surface'}"
                 f" ({an.EGS_BOTTOM_MIN:g} min at the bottom, {e.ascent_min:g} min ascent) needs "
-                f"{e.required_psig:.0f} psig ({e.required_psig_rounded:.0f} rounded up)")
+                f"{needs}")
         if s.bailout_psig + 1e-9 < e.required_psig:
             yield r.breach(text, **kw)
         else:
@@ -228,16 +249,19 @@ def oxygen(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if s.oxygen_need_l is None:
             continue
         need, have = s.oxygen_need_l, s.oxygen_available_l or 0.0
-        kw = dict(measured=round(have, 0), limit=round(need, 0), unit="L", dive=d.id)
+        u = ctx.units
+        kw = dict(measured=round(u.to_gas(have), 0), limit=round(u.to_gas(need), 0),
+                  unit=u.gas_unit, dive=d.id)
         if ctx.plan.gas_supply.oxygen_decompression is None or have <= 0:
             yield r.finding(
-                "fail", f"the plan breathes {need:.0f} L of oxygen at its stops but holds no "
+                "fail", f"the plan breathes {u.show_gas(need)} of oxygen at its stops but "
+                "holds no "
                 "decompression oxygen (gas_supply.oxygen_decompression)",
                 citation="plan consistency (gas_supply.oxygen_decompression)", status=None, **kw,
             )
             continue
-        yield _compare(r, "decompression oxygen", have, need, "L",
-                       f"the diver at {s.rmv_lpm:.1f} L/min", d.id)
+        yield _compare(ctx, r, "decompression oxygen", have, need, "volume",
+                       f"the diver at {ctx.units.show_rmv(s.rmv_lpm)}", d.id)
 
 
 @FAMILY.rule(
@@ -279,10 +303,12 @@ def chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         what = "surface decompression and a treatment" if any(
             k.startswith("surface decompression") for k in g.parts) else "a treatment"
-        text = (f"chamber flasks {g.available_l:.0f} L against a need of {g.need_l:.0f} L for "
-                f"{what}, pressurising and ventilating ({'; '.join(g.basis)})")
-        kw = dict(measured=round(g.available_l, 0), limit=round(g.need_l, 0), unit="L",
-                  dive=d.id)
+        u = ctx.units
+        text = (f"chamber flasks {u.show_gas(g.available_l)} against a need of "
+                f"{u.show_gas(g.need_l)} for {what}, pressurising and ventilating "
+                f"({'; '.join(g.basis)})")
+        kw = dict(measured=round(u.to_gas(g.available_l), 0),
+                  limit=round(u.to_gas(g.need_l), 0), unit=u.gas_unit, dive=d.id)
         own = g.status is None
         cite = (f"{CFR_340}; plan consistency (chamber figures of the plan)" if own
                 else f"{CFR_340}; {an.CHAMBER_SOURCES}")

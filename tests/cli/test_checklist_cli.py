@@ -85,7 +85,7 @@ EXIT_FOR = {"conforms": 0, "needs-review": 0, "does-not-conform": 1}
 HEADINGS = ("Dives and their planned schedules", "Emergency contacts", "Site conditions",
             "Reference tables and model", "Findings to act on: failures and warnings, by dive",
             "Schedules", "Proposed (plan)", "Reference table: ", "Planned profile and model "
-            "ceiling", "Compartment loading at surfacing", "Oxygen exposure",
+            "ceiling", "Surfacing gradient factor by compartment", "Oxygen exposure",
             "Gas supply against need", "Contingency schedules", "Bottom-time overrun",
             "Deeper than planned", "Loss of decompression oxygen", "Chamber",
             "Pre-dive checklist: surface-supplied air", "Cautions", "Signatures",
@@ -451,12 +451,12 @@ def test_harbour_job_page_1_is_a_one_page_summary(
                      "Document sha256"):
         assert fragment in first, fragment
     assert pages[1].startswith("Findings to act on")
-    # an msw plan prints bar and litres; a figure the check states in psig is converted, the
-    # stated one in parentheses beside it
+    # an msw plan prints bar and litres (issue 8: one unit system per plan); a figure a source
+    # states in psig or scf appears only in parentheses beside its conversion
     body = " ".join(pages)
     outside = re.sub(r"\([^()]*\)", "", body)
     assert " psig" not in outside and " scf" not in outside and " bar" in outside
-    assert re.search(r"\d bar \(\d+ psig\)", body)
+    assert re.search(r"\d bar", outside) and re.search(r"\d L\b", outside)
 
 
 def test_harbour_job_checklist_is_short(harbour_pages: tuple[list[str], dict[str, Any]]) -> None:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from pathlib import Path
 from typing import Any
 
 import pytest
@@ -79,24 +80,44 @@ def test_profile_chart_refuses_bad_data(chart: Any) -> None:
     assert charts.profile_chart(chart, "fsw", "m") is None
 
 
-def test_compartment_chart_marks_bars_over_the_limit(check_result: dict[str, Any]) -> None:
+def test_compartment_chart_marks_bars_over_gf_high(check_result: dict[str, Any]) -> None:
     comps = dict(check_result["dives"][0]["compartments"])
-    comps["loading_percent_of_limit"] = [50.0] * 15 + [104.0]
-    g = charts.compartment_chart(comps)
+    comps["surfacing_gf_percent"] = [50.0] * 14 + [84.0, 86.0]
+    g = charts.compartment_chart(comps, gf_high=0.85)
     assert isinstance(g, Drawing)
     bars = [c for c in g.contents if isinstance(c, Rect)]
     assert len(bars) == 16
-    assert sum(1 for b in bars if b.fillColor == charts.INK) == 1
+    assert sum(1 for b in bars if b.fillColor == charts.INK) == 1  # only 86 % is above 85 %
     text = _strings(g)
-    assert "104" in text and "16" in text
+    assert "86" in text and "16" in text and "GF high 85 %" in " ".join(text)
+
+
+def test_compartment_chart_tallest_bar_is_the_surfacing_gf_of_the_text() -> None:
+    """Issue 8 §2: one definition of surfacing gradient factor (text, JSON, chart)."""
+    from supervisor.check import run_check
+    from supervisor.quantities import gf_percent_text
+
+    root = Path(__file__).resolve().parents[2]
+    dive = run_check(root / "examples" / "demo-job.toml")["dives"][1]
+    per = dive["compartments"]["surfacing_gf_percent"]
+    assert max(per) == dive["model_margin"]["surfacing_gf_percent"]
+    g = charts.compartment_chart(dive["compartments"], gf_high=0.85)
+    assert gf_percent_text(max(per)).removesuffix(" %") in _strings(g)
+
+
+def test_compartment_chart_explains_a_negative_value(check_result: dict[str, Any]) -> None:
+    comps = dict(check_result["dives"][0]["compartments"])
+    comps["surfacing_gf_percent"] = [-12.0] + [40.0] * 15
+    text = _strings(charts.compartment_chart(comps))
+    assert "<0" in text and "undersaturated" in " ".join(text)
 
 
 @pytest.mark.parametrize(
     "comps",
-    [None, {"labels": ["1"], "loading_percent_of_limit": []},
-     {"labels": ["1", "2"], "loading_percent_of_limit": [1.0]},
-     {"labels": "12", "loading_percent_of_limit": [1.0, 2.0]},
-     {"labels": ["1"], "loading_percent_of_limit": [None]}],
+    [None, {"labels": ["1"], "surfacing_gf_percent": []},
+     {"labels": ["1", "2"], "surfacing_gf_percent": [1.0]},
+     {"labels": "12", "surfacing_gf_percent": [1.0, 2.0]},
+     {"labels": ["1"], "surfacing_gf_percent": [None]}],
 )
 def test_compartment_chart_refuses_bad_data(comps: Any) -> None:
     assert charts.compartment_chart(comps) is None

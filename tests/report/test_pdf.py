@@ -50,7 +50,7 @@ def test_every_required_section_is_present(rendered: tuple[bytes, str, list[str]
         "Findings to act on: failures and warnings, by dive", "Dive D1: Morgan Ellery",
         "Schedules", "Proposed (plan)", "Reference table: usn-air-decompression",
         "Model: zhl16c GF 30/85", "Planned profile and model ceiling",
-        "Compartment loading at surfacing", "Oxygen exposure", "Gas supply against need",
+        "Surfacing gradient factor by compartment", "Oxygen exposure", "Gas supply against need",
         "Contingency schedules", "Bottom-time overrun", "Deeper than planned",
         "Loss of decompression oxygen", "Information (reported, not judged)", "Chamber",
         "Pre-dive checklist: surface-supplied air", "Cautions", "Signatures",
@@ -103,7 +103,8 @@ def test_dive_numbers_match_the_check(rendered: tuple[bytes, str, list[str]]) ->
     for fragment in ("20 7 air in-water 10 18 air in-water", "20 4 air in-water 10 21 air",
                      "30 2 air in-water 20 6 air in-water 10 24 air", "repetitive group K",
                      "total stop time: 32 min", "total ascent time: 35.3 min",
-                     "no-stop limit: 19.5 min", "Surfacing gradient factor 81 %",
+                     "no-stop limit: 19.5 min",
+                     "Surfacing gradient factor of the planned profile 81 %",
                      "controlling compartment 5", "bottom 0.84", "decompression 0.34",
                      "CNS [% of limit] 23.7", "pulmonary dose [OTU] 41",
                      # fsw plan: free gas in scf (10750 L, 9600 L), flow in scfm (125 L/min)
@@ -112,7 +113,7 @@ def test_dive_numbers_match_the_check(rendered: tuple[bytes, str, list[str]]) ->
                      "bottom time: 40 min", "dive: 110 fsw for 30 min",
                      "total stop time 44 min"):
         assert fragment in dive, fragment
-    assert " 81 " in dive.split("Compartment loading at surfacing")[1]  # bar label
+    assert " 81 " in dive.split("Surfacing gradient factor by compartment")[1]  # bar label
 
 
 def test_missing_sections_read_not_computed(check_result: dict[str, Any],

@@ -16,7 +16,13 @@ from supervisor import analysis as an
 from supervisor import constants as C
 from supervisor.rules.supply import CFR_340, FAMILY, NAVY_CH8
 
-PEAK_60 = 2 * 1.4 * an.L_PER_FT3 * (60 + 33) / 33  # diver + standby at 60 fsw [L/min]
+# An fsw plan states gas in scf, scfm and psig (issue 8: one unit system per plan).
+PEAK_60 = 2 * 1.4 * (60 + 33) / 33  # diver + standby at 60 fsw, 1.4 acfm each [scfm]
+
+
+def scf(litres: float) -> float:
+    """Free litres in scf (1 ft³ = 28.316846592 L, NIST SP 811)."""
+    return litres / an.L_PER_FT3
 
 
 def _o2_dive(**kw):
@@ -36,7 +42,7 @@ def test_primary_compressor_short_warns():
     d["gas_supply"]["primary"]["delivery_lpm"] = 150
     f = only(run(d, FAMILY, "supply-primary"), "warn")
     assert f.rule == "supply-primary"
-    assert (f.measured, f.unit) == (150, "L/min")
+    assert (f.measured, f.unit) == (pytest.approx(scf(150), abs=0.05), "scfm")
     assert f.limit == pytest.approx(PEAK_60, abs=0.1)  # Navy flow x ata, two divers
     assert CFR_340 in f.citation and NAVY_CH8 in f.citation
 
@@ -53,8 +59,8 @@ def test_primary_bank_pass_and_short():
     f = only(run(_bank(10, 50), FAMILY, "supply-primary"), "warn")
     mmp_bar = 117 * C.BAR_PER_PSI
     # (50 - MMP) bar x 10 L / 1 atm of free gas, Boyle (Navy Va formula)
-    assert f.measured == pytest.approx((50 - mmp_bar) * 10 / C.P_ATM_BAR, abs=0.05)
-    assert f.unit == "L" and f.measured < f.limit
+    assert f.measured == pytest.approx(scf((50 - mmp_bar) * 10 / C.P_ATM_BAR), abs=0.05)
+    assert f.unit == "scf" and f.measured < f.limit
 
 
 def test_secondary_pass_and_short():
@@ -63,7 +69,8 @@ def test_secondary_pass_and_short():
     d["gas_supply"]["secondary"].update(water_volume_l=1, pressure_bar=10)
     f = only(run(d, FAMILY, "supply-secondary"), "warn")
     assert f.rule == "supply-secondary" and f.measured < f.limit
-    assert f.measured == pytest.approx((10 - 117 * C.BAR_PER_PSI) * 1 / C.P_ATM_BAR, abs=0.05)
+    assert f.measured == pytest.approx(scf((10 - 117 * C.BAR_PER_PSI) * 1 / C.P_ATM_BAR),
+                                       abs=0.05)
     assert CFR_340 in f.citation
 
 
@@ -162,8 +169,8 @@ def test_oxygen_pass_and_short():
     only(run(_o2_dive(), FAMILY, "supply-oxygen"), "pass")
     f = only(run(_o2_dive(water_volume_l=1, pressure_bar=5), FAMILY, "supply-oxygen"), "warn")
     assert f.rule == "supply-oxygen" and f.measured < f.limit
-    # 10 min of oxygen at 20 fsw, 1.4 acfm: (20 + 33) / 33 x 39.6 L/min x 10 min and more
-    assert f.limit >= 10 * an.RMV_LPM * 53 / 33
+    # 10 min of oxygen at 20 fsw, 1.4 acfm: (20 + 33) / 33 x 1.4 acfm x 10 min and more [scf]
+    assert f.unit == "scf" and f.limit >= 10 * 1.4 * 53 / 33 - 0.5
 
 
 def test_oxygen_missing_fails():
@@ -200,17 +207,17 @@ OWN_NEED = 6000 * 60 / 33 + 200 * 120 * (1 + 60 / 33)
 
 def test_chamber_gas_own_figures_pass():
     f = only(run(_chamber_dive(**OWN), FAMILY, "supply-chamber"), "pass")
-    assert f.limit == pytest.approx(OWN_NEED, abs=1)
+    assert f.limit == pytest.approx(scf(OWN_NEED), abs=1)
     # 1000 L at 200 bar above 60 fsw: no more than the ideal-gas (Boyle) content
-    assert 0.8 * 1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR < f.measured
-    assert f.measured < 1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR
+    assert scf(0.8 * 1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR) < f.measured
+    assert f.measured < scf(1000 * (200 - 60 * C.BAR_PER_FSW) / C.P_ATM_BAR)
     assert f.verified and f.source_status is None
 
 
 def test_chamber_gas_own_figures_short_fails():
     f = only(run(_chamber_dive(flask_l=200, **OWN), FAMILY, "supply-chamber"), "fail")
     assert f.rule == "supply-chamber" and f.measured < f.limit
-    assert f.limit == pytest.approx(OWN_NEED, abs=1)
+    assert f.limit == pytest.approx(scf(OWN_NEED), abs=1)
     assert CFR_340 in f.citation and "plan consistency" in f.citation
 
 
@@ -255,8 +262,8 @@ def test_chamber_gas_from_navy_defaults_short_warns():
     # no dump stated; every lock pressurised once to 60 fsw, then Treatment Table 6 step by
     # step (regression arithmetic of this project's own sizing rule, spelt out above)
     f = only(run(_chamber_dive(flask_l=1000), FAMILY, "supply-chamber"), "warn")
-    assert f.limit == pytest.approx(6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, False),
-                                    abs=1)
+    assert f.limit == pytest.approx(
+        scf(6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, False)), abs=1)
     assert f.source_status == "FROM MEMORY" and "short" in f.message
     assert "Treatment Table 6 as its timeline" in f.message and "288 min" in f.message
 
@@ -264,8 +271,8 @@ def test_chamber_gas_from_navy_defaults_short_warns():
 def test_chamber_gas_default_sized_with_every_extension_when_asked():
     f = only(run(_chamber_dive(flask_l=1000, treatment_extensions=True), FAMILY,
                  "supply-chamber"), "warn")
-    assert f.limit == pytest.approx(6000 * 60 / 33 + _tt6_ventilation_l(TT6_EXT_STEPS, False),
-                                    abs=1)
+    assert f.limit == pytest.approx(
+        scf(6000 * 60 / 33 + _tt6_ventilation_l(TT6_EXT_STEPS, False)), abs=1)
     assert "with every extension (488 min)" in f.message
 
 
@@ -281,21 +288,21 @@ def test_chamber_gas_overboard_dump_uses_air_rates():
     # the plan's own treatment figures: 2 acfm for the patient at rest + 4 acfm for each of
     # two tenders (Navy §22-5.4), 285 min at 60 fsw
     q = (2 + 2 * 4) * an.L_PER_FT3
-    assert f.limit == pytest.approx(6000 * 60 / 33 + q * 285 * (1 + 60 / 33), abs=1)
+    assert f.limit == pytest.approx(scf(6000 * 60 / 33 + q * 285 * (1 + 60 / 33)), abs=1)
 
 
 def test_chamber_gas_default_overboard_dump_air_rates_per_step():
     d = _chamber_dive(flask_l=4000, bibs_overboard_dump=True, treatment_occupants=3)
     f = only(run(d, FAMILY, "supply-chamber"), "pass")
-    assert f.limit == pytest.approx(
-        6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, True, occupants=3), abs=1)
+    assert f.limit == pytest.approx(scf(
+        6000 * 60 / 33 + _tt6_ventilation_l(TT6_VENT_STEPS, True, occupants=3)), abs=1)
 
 
 def test_chamber_gas_treatment_figure_from_the_manual():
     d = _chamber_dive(treatment_gas_l=50000, treatment_depth=60)
     del d["chamber"]["lock_volumes_l"]  # not needed without chamber stops
     f = only(run(d, FAMILY, "supply-chamber"), "pass")
-    assert f.limit == 50000 and f.verified
+    assert f.limit == pytest.approx(scf(50000), abs=1) and f.verified
 
 
 def test_chamber_not_on_site_needs_review():
