@@ -155,6 +155,14 @@ def shortfall(ctx: CheckContext, checks: list[StopCheck]) -> str:
     )
 
 
+def _stop_figures(ctx: CheckContext, c: StopCheck) -> tuple[str, str]:
+    """Measured and limit of a short stop with their context (never a bare "0 min / 1 min")."""
+    where = (f"{c.place} oxygen time" if c.depth == 0 else
+             f"{c.place} stop at {c.depth:g} {ctx.unit} on {c.gas}")
+    have = "none" if c.proposed_min is None else f"{c.proposed_min:g} min"
+    return f"{where}: {have}", f"{where}: {c.required_min:g} min"
+
+
 def table_check(ctx: CheckContext, a: an.DiveAnalysis) -> TableCheck:
     """Compare one dive's proposed stops with the reference table (module docstring).
 
@@ -285,10 +293,10 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         elif tc.state == "short":
             worst = next(c for c in tc.stops if not c.ok)
             text = shortfall(ctx, tc.stops)
+            measured, limit = _stop_figures(ctx, worst)
             yield _breach(
                 r, look, f"the proposed stops do not cover {where} ({_row_state(look)}): {text}",
-                measured=worst.proposed_min if worst.proposed_min is not None else 0.0,
-                limit=worst.required_min, unit="min", dive=d.id,
+                measured=measured, limit=limit, dive=d.id,
             )
         elif tc.trusted:
             yield r.ok(

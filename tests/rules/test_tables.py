@@ -51,7 +51,9 @@ def test_short_stop_on_an_unverified_row_warns():
               stops=[{"depth": 10, "minutes": 3}])
     f = only(run(d, FAMILY, "table-conformance"), "warn")
     assert f.rule == "table-conformance"
-    assert (f.measured, f.limit, f.unit) == (3, 5, "min")  # the fictional row: 10 fsw 5 min
+    # the fictional row: 10 fsw 5 min; issue 8: the figures carry the stop, never "3 / 5 min"
+    assert (f.measured, f.limit) == ("water stop at 10 fsw on air: 3 min",
+                                     "water stop at 10 fsw on air: 5 min")
     assert f.citation == NAVY_TABLE_USE and not f.verified
 
 
@@ -61,7 +63,8 @@ def test_short_stop_on_a_trusted_row_fails(tmp_path):
     f = only(run(d, FAMILY, "table-conformance"), "fail")
     # 55 min enters the 60 min row: 20 fsw 2 min is missing
     assert f.rule == "table-conformance"
-    assert (f.measured, f.limit) == (0.0, 2)
+    assert (f.measured, f.limit) == ("water stop at 20 fsw on air: none",
+                                     "water stop at 20 fsw on air: 2 min")
     assert "missing" in f.message and f.citation == NAVY_TABLE_USE
 
 
@@ -151,7 +154,8 @@ CASES: dict[str, Case] = {
         passing=lambda tmp: _with(trusted_table(tmp), **ROW_60_50),
         failing=lambda tmp: _with(trusted_table(tmp), bottom_time_min=55,
                                   decompression="in-water", stops=[{"depth": 10, "minutes": 12}]),
-        measured=0.0, limit=2, citation=NAVY_TABLE_USE),
+        measured="water stop at 20 fsw on air: none", limit="water stop at 20 fsw on air: 2 min",
+        citation=NAVY_TABLE_USE),
     "table-outside": Case(
         passing=lambda _: _with(TABLE, **ROW_60_50),
         failing=lambda _: _with(TABLE, max_depth=100, bottom_time_min=20,
