@@ -77,6 +77,17 @@ def main() -> int:
                 extra = t.min - bare.min
                 print(f"check {n:3d} dives {flag or '(table)':8s} {t.fmt(1, 's', 6)}  "
                       f"extra {extra:6.3f} s  per dive {1e3 * extra / n:7.1f} ms")
+        # the bundled demo job (three dives, one surface decompression): issue 8's figure
+        demo = ROOT / "examples" / "demo-job.toml"
+        demo_mods = loaded_modules(["check", str(demo)], env, tmp)
+        demo_bare = run_command(bare_command(demo_mods), env, REPEAT, WARMUP, ok_codes=(0,))
+        demo_t = run_command([sys.executable, "-m", "supervisor", "check", str(demo)], env,
+                             REPEAT, WARMUP)
+        print(f"bare interpreter importing the demo check's {len(demo_mods)} modules: "
+              f"{demo_bare.fmt(1, 's', 6)}")
+        print(f"check examples/demo-job.toml     {demo_t.fmt(1, 's', 6)}")
+    rep.target("check, demo job: extra over a bare start with the same imports",
+               demo_t.min - demo_bare.min, "<", 0.5, ".3f", "s")
     for flag in ("", "--json"):
         label = flag or "table"
         rep.target(f"check, 50 dives, {label}: extra over the bare start",

@@ -40,3 +40,15 @@ def test_excerpt_of_short_values() -> None:
     assert excerpt("70") == "'70'"
     assert excerpt(3.5) == "3.5"
     assert "\x1b" not in excerpt("\x1b[2J")
+
+
+def test_control_pattern_matches_the_control_test_for_every_code_point() -> None:
+    """The fast scan (one regular expression) and the per-character test agree everywhere."""
+    from supervisor.text import CONTROL_NOT_LF_RE, CONTROL_RE, _is_control
+
+    for code in range(0x110000):
+        if 0xD800 <= code <= 0xDFFF:
+            continue
+        ch = chr(code)
+        assert (CONTROL_RE.match(ch) is not None) == _is_control(ch), hex(code)
+        assert (CONTROL_NOT_LF_RE.match(ch) is not None) == (_is_control(ch) and ch != "\n")

@@ -43,12 +43,10 @@ def json_text(obj: Any, indent: int | None = 2) -> str:
     """
     import json
 
-    from supervisor.text import _is_control
+    from supervisor.text import CONTROL_NOT_LF_RE
 
     text = json.dumps(obj, indent=indent, ensure_ascii=False)
-    if not any(_is_control(c) and c != "\n" for c in text):
-        return text
-    return "".join(f"\\u{ord(c):04x}" if c != "\n" and _is_control(c) else c for c in text)
+    return CONTROL_NOT_LF_RE.sub(lambda m: f"\\u{ord(m.group()):04x}", text)
 
 
 def error_line(message: object) -> None:

@@ -157,8 +157,8 @@ def shortfall(ctx: CheckContext, checks: list[StopCheck]) -> str:
 
 def _stop_figures(ctx: CheckContext, c: StopCheck) -> tuple[str, str]:
     """Measured and limit of a short stop with their context (never a bare "0 min / 1 min")."""
-    where = (f"{c.place} oxygen time" if c.depth == 0 else
-             f"{c.place} stop at {c.depth:g} {ctx.unit} on {c.gas}")
+    where = (f"{c.place} O2 time" if c.depth == 0 else
+             f"{c.depth:g} {ctx.unit} {c.place} {c.gas}")
     have = "none" if c.proposed_min is None else f"{c.proposed_min:g} min"
     return f"{where}: {have}", f"{where}: {c.required_min:g} min"
 

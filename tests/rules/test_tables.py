@@ -52,8 +52,7 @@ def test_short_stop_on_an_unverified_row_warns():
     f = only(run(d, FAMILY, "table-conformance"), "warn")
     assert f.rule == "table-conformance"
     # the fictional row: 10 fsw 5 min; issue 8: the figures carry the stop, never "3 / 5 min"
-    assert (f.measured, f.limit) == ("water stop at 10 fsw on air: 3 min",
-                                     "water stop at 10 fsw on air: 5 min")
+    assert (f.measured, f.limit) == ("10 fsw water air: 3 min", "10 fsw water air: 5 min")
     assert f.citation == NAVY_TABLE_USE and not f.verified
 
 
@@ -63,8 +62,7 @@ def test_short_stop_on_a_trusted_row_fails(tmp_path):
     f = only(run(d, FAMILY, "table-conformance"), "fail")
     # 55 min enters the 60 min row: 20 fsw 2 min is missing
     assert f.rule == "table-conformance"
-    assert (f.measured, f.limit) == ("water stop at 20 fsw on air: none",
-                                     "water stop at 20 fsw on air: 2 min")
+    assert (f.measured, f.limit) == ("20 fsw water air: none", "20 fsw water air: 2 min")
     assert "missing" in f.message and f.citation == NAVY_TABLE_USE
 
 
@@ -154,7 +152,7 @@ CASES: dict[str, Case] = {
         passing=lambda tmp: _with(trusted_table(tmp), **ROW_60_50),
         failing=lambda tmp: _with(trusted_table(tmp), bottom_time_min=55,
                                   decompression="in-water", stops=[{"depth": 10, "minutes": 12}]),
-        measured="water stop at 20 fsw on air: none", limit="water stop at 20 fsw on air: 2 min",
+        measured="20 fsw water air: none", limit="20 fsw water air: 2 min",
         citation=NAVY_TABLE_USE),
     "table-outside": Case(
         passing=lambda _: _with(TABLE, **ROW_60_50),
