@@ -31,7 +31,14 @@ from pathlib import Path
 from typing import Any
 
 from supervisor import __version__, analysis
-from supervisor.findings import Finding, could_not_run, counts, sort_findings, verdict
+from supervisor.findings import (
+    Finding,
+    could_not_run,
+    counts,
+    one_per_fact,
+    sort_findings,
+    verdict,
+)
 from supervisor.plan import (
     Dive,
     Plan,
@@ -329,7 +336,7 @@ def check_plan(
     rule_findings, runs = run_families(ctx, fams)
     found += rule_findings
     found += pending_findings(plan, fams)
-    found = sort_findings(found)
+    found = sort_findings(one_per_fact(found))
     by_dive = _by_dive(found)
     stamp = (now or _dt.datetime.now(_dt.UTC)).astimezone(_dt.UTC)
     pol = ctx.policy

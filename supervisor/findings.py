@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import copy
 from collections.abc import Iterable
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field, fields, replace
 from typing import Any, Literal
 
 Severity = Literal["fail", "warn", "info", "pass"]
@@ -95,6 +95,48 @@ _JSON_FIELDS: tuple[str, ...] = tuple(f.name for f in fields(Finding) if f.name 
 def sort_findings(findings: Iterable[Finding]) -> list[Finding]:
     """Return findings worst first; stable within a severity (rule order kept)."""
     return sorted(findings, key=lambda f: _RANK[f.severity])
+
+
+def one_per_fact(findings: Iterable[Finding]) -> list[Finding]:
+    """Keep one finding per dive and fact: the worst; the others' citations go into it.
+
+    Findings that name a fact (``extra["fact"]``, set by rules that may report the same
+    fact, such as a missing chamber) are merged per (dive, fact): the most severe one
+    stays, in its place, with ``also_cited`` listing the rule and citation of each
+    finding it stands for, and the message saying so.  Findings without a fact are
+    kept as they are.  An unverified finding among them keeps the merged one
+    unverified.
+
+    Parameters
+    ----------
+    findings : iterable of Finding
+
+    Returns
+    -------
+    list of Finding
+        In the original order, merged findings at the position of the kept one.
+    """
+    items = list(findings)
+    groups: dict[tuple[str | None, str], list[int]] = {}
+    for i, f in enumerate(items):
+        fact = f.extra.get("fact")
+        if fact:
+            groups.setdefault((f.dive, str(fact)), []).append(i)
+    drop: set[int] = set()
+    for idx in groups.values():
+        if len(idx) < 2:
+            continue
+        keep = min(idx, key=lambda i: (_RANK[items[i].severity], i))
+        others = [items[i] for i in idx if i != keep]
+        k = items[keep]
+        also = [{"rule": o.rule, "citation": o.citation, "severity": o.severity} for o in others]
+        cites = "; ".join(f"{o.rule}: {o.citation}" for o in others)
+        extra = {**k.extra, "also_cited": also}
+        items[keep] = replace(k, message=f"{k.message} (also required by {cites})",
+                              verified=k.verified and all(o.verified for o in others),
+                              extra=extra)
+        drop.update(i for i in idx if i != keep)
+    return [f for i, f in enumerate(items) if i not in drop]
 
 
 def counts(findings: Iterable[Finding]) -> dict[str, int]:

@@ -71,3 +71,23 @@ def test_to_json_has_contract_keys_and_rounds():
                 "dive", "source_status"):
         assert key in j
     assert j["measured"] == 1.235
+
+
+def test_one_finding_per_dive_and_fact_keeps_the_worst() -> None:
+    """Issue 8 §3: one fact (no chamber) reported by three rules is one finding, the worst."""
+    from supervisor.findings import one_per_fact
+
+    def f(rule: str, sev: str, dive: str | None, fact: str | None, verified: bool = True):
+        return Finding(rule=rule, severity=sev, message=f"{rule} says", citation=f"cite {rule}",
+                       dive=dive, verified=verified, extra={"fact": fact} if fact else {})
+
+    got = one_per_fact([
+        f("a", "warn", "D1", "no-chamber", verified=False), f("b", "fail", "D1", "no-chamber"),
+        f("c", "warn", "D2", "no-chamber"), f("d", "warn", "D1", None),
+        f("e", "warn", "D1", "no-chamber"),
+    ])
+    assert [x.rule for x in got] == ["b", "c", "d"]
+    b = got[0]
+    assert b.severity == "fail" and not b.verified
+    assert [x["rule"] for x in b.extra["also_cited"]] == ["a", "e"]
+    assert "also required by a: cite a; e: cite e" in b.message

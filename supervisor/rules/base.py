@@ -231,8 +231,14 @@ class Rule:
         citation: str | None = None,
         status: str | None = _UNSET,
         verified: bool = True,
+        fact: str | None = None,
     ) -> Finding:
-        """Return a finding of this rule; keyword arguments override the rule's defaults."""
+        """Return a finding of this rule; keyword arguments override the rule's defaults.
+
+        ``fact`` names the fact the finding is about when other rules may report the same
+        fact (e.g. ``"no-chamber"``): the check keeps one finding per dive and fact, the
+        worst, and lists the others' citations in it (:func:`supervisor.findings.one_per_fact`).
+        """
         return Finding(
             rule=rule or self.id,
             severity=severity,  # type: ignore[arg-type]
@@ -245,6 +251,7 @@ class Rule:
             source_status=self.source_status if status is _UNSET else status,
             verified=verified,
             family=self.family,
+            extra={"fact": fact} if fact else {},
         )
 
     def breach(

@@ -39,6 +39,9 @@ FAMILY = Family("gas-supply", "Gas supply")
 CFR_340 = "46 CFR 197.340"
 NAVY_CH8 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 8"
 
+#: The fact "no chamber at the site", which several rules report (one finding per dive).
+NO_CHAMBER = "no-chamber"
+
 
 def _figures(ctx: CheckContext, r: Rule) -> Iterator[tuple[Any, an.Supply | None, Finding | None]]:
     pa = an.for_context(ctx)
@@ -290,7 +293,7 @@ def chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review(
                 "needs review: no chamber on site in the plan; the gas of the chamber the dive "
                 "relies on is not sized here (dive plus one hour, and a treatment)",
-                dive=d.id,
+                dive=d.id, fact=NO_CHAMBER,
             )
             continue
         if g.error is not None or g.need_l is None or g.available_l is None:
