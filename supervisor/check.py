@@ -31,6 +31,7 @@ from pathlib import Path
 from typing import Any
 
 from supervisor import __version__, analysis
+from supervisor.analysis.altitude import check_section as altitude_section
 from supervisor.findings import (
     Finding,
     could_not_run,
@@ -370,6 +371,7 @@ def check_plan(
         },
         "policy": pol.model_dump(mode="json"),
         "dives": [_dive_entry(ctx, d, *by_dive) for d in plan.dives],
+        "altitude": altitude_section(ctx),
         "team": [
             {
                 "name": m.name,

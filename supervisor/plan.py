@@ -35,6 +35,11 @@ ascent_rate             30 fsw/min         U.S. Navy Diving Manual Rev 4 Change 
 ascent_rate_min/max     20 / 40 fsw/min    U.S. Navy Diving Manual Rev 4 Change A ch. 14
                                            tolerance (OLDER-EDITION)
 stop_step, last_stop    10 fsw / 3 msw     common practice, no source
+current_max_kt          1.5 kt             common practice, no source (unset: a current
+                                           above it warns; set: it fails)
+altitude_wait_*_h       12 / 18 / 24 h     common guidance, FROM MEMORY (tables/limits/
+                                           altitude-after-diving.toml); a policy value
+                                           shorter than it is never used
 ======================  =================  =============================================
 
 msw defaults are the fsw values converted and rounded to a practical figure.
@@ -68,6 +73,7 @@ from supervisor.errors import InputError, PlanError
 from supervisor.gas import Gas, parse_gas
 from supervisor.plan_errors import Problems, problems_from, show
 from supervisor.plan_fields import (  # noqa: F401  (re-exported: the plan module's API)
+    MAX_ALTITUDE_WAIT_H,
     MAX_DIVES,
     MAX_PLAN_DEPTH_FSW,
     MAX_STOP_MIN,
@@ -75,11 +81,14 @@ from supervisor.plan_fields import (  # noqa: F401  (re-exported: the plan modul
     MAX_TEAM,
     MAX_TIMELINE_MIN,
     MAX_TOTAL_STOP_MIN,
+    MAX_TRAVELS,
     REFERENCE_TABLE_KINDS,
     Depth,
     GasText,
     PositiveDepth,
     Rate,
+    TravelAltitude,
+    altitude_unit,
     bundled_reference_tables,
     check_reference_table,
     ctx_unit,
@@ -175,6 +184,28 @@ def _to_date(value: Any) -> Any:
     if isinstance(value, _dt.datetime):
         return value.date()
     return value
+
+
+def _to_datetime(value: Any) -> Any:
+    """A TOML date-time or ISO text as a datetime; a date alone or other text is refused."""
+    form = "expected an ISO date-time such as 2026-05-14T08:30 (optionally with a UTC offset)"
+    if isinstance(value, str):
+        try:
+            return _dt.datetime.fromisoformat(value.strip())
+        except ValueError:
+            raise ValueError(f"got {excerpt(value)}; {form}") from None
+    if isinstance(value, _dt.datetime):
+        return value
+    if isinstance(value, _dt.date):
+        raise ValueError(f"got the date {value.isoformat()} without a time; {form}")
+    if isinstance(value, _dt.time):
+        raise ValueError(f"got the time {value.isoformat()} without a date; {form}")
+    raise ValueError(f"got {show(value)}; {form}")
+
+
+#: A date-time of the plan: a TOML date-time or ISO text (naive: the site's local time).
+DateTime = Annotated[_dt.datetime, BeforeValidator(_to_datetime),
+                     WithJsonSchema({"type": "string", "format": "date-time"})]
 
 
 def _to_roles(value: Any) -> Any:
@@ -273,6 +304,10 @@ class Site(_Section):
     )
     code_flag_a: bool | None = Field(None, description="Rigid code flag A, at least 1 m high")
     code_flag_a_lit: bool | None = Field(None, description="Code flag A lit at night")
+    night_lighting: bool | None = Field(
+        None, description="Night diving: lighting of the work site, the water entry and exit "
+        "point and the diver"
+    )
 
 
 class ChamberEquipment(_Section):
@@ -523,6 +558,25 @@ class Policy(_Section):
     ascent_rate_max: Rate | None = Field(None, description="Fastest ascent [plan unit/min]")
     stop_step: PositiveDepth | None = _depth_field("Spacing of decompression stops", None)
     last_stop: Depth | None = _depth_field("Shallowest water stop", None)
+    current_max_kt: float | None = Field(
+        None, gt=0, le=15, description="Strongest water current the contractor dives in [kt]; "
+        "unset: 1.5 kt (common practice, no source), which only warns"
+    )
+    altitude_wait_single_h: float | None = Field(
+        None, gt=0, le=MAX_ALTITUDE_WAIT_H, description="Shortest time on the surface before "
+        "an ascent to altitude after a single no-decompression dive [h]; unset: the common "
+        "guidance (12 h, from memory); a shorter value is not used"
+    )
+    altitude_wait_repetitive_h: float | None = Field(
+        None, gt=0, le=MAX_ALTITUDE_WAIT_H, description="Shortest time on the surface before "
+        "an ascent to altitude after repetitive dives or several days of diving [h]; unset: "
+        "the common guidance (18 h, from memory); a shorter value is not used"
+    )
+    altitude_wait_decompression_h: float | None = Field(
+        None, gt=0, le=MAX_ALTITUDE_WAIT_H, description="Shortest time on the surface before "
+        "an ascent to altitude after a decompression dive [h]; unset: the common guidance "
+        "(24 h, from memory); a shorter value is not used"
+    )
 
     @model_validator(mode="after")
     def _ordered(self) -> Policy:
@@ -649,6 +703,11 @@ class Dive(_Section):
     stage: bool = Field(False, description="In-water stage provided")
     standby_hose: bool = Field(False, description="Extra hose for the standby diver")
     direct_ascent_possible: bool = Field(True, description="The diver can ascend directly")
+    start: DateTime | None = Field(
+        None, description="Planned time of leaving the surface, an ISO date-time such as "
+        "2026-05-14T08:30 (the site's local time, or with a UTC offset); times the wait "
+        "before travel to altitude"
+    )
 
     @model_validator(mode="after")
     def _consistent(self, info: ValidationInfo) -> Dive:
@@ -755,6 +814,22 @@ class Dive(_Section):
         return self.gas_mix.name != "air"
 
 
+class AltitudeTravel(_Section):
+    """A planned ascent to altitude after the dives: a flight or a drive over high ground."""
+
+    diver: str = Field(
+        min_length=1, max_length=text_cap("name"), description="Who travels (a team member)"
+    )
+    altitude: TravelAltitude = Field(
+        description="Highest altitude of the travel (a commercial cabin: 8,000 ft): in ft in an "
+        "fsw plan, in m in an msw plan"
+    )
+    departure: DateTime = Field(
+        description="Earliest planned departure, an ISO date-time such as 2026-05-15T09:00 "
+        "(the same kind as dives[].start: local, or with a UTC offset)"
+    )
+
+
 class Plan(_Section):
     """A whole plan file (``schema = "supervisor-plan/1"``)."""
 
@@ -782,6 +857,11 @@ class Plan(_Section):
     policy: Policy = Field(default_factory=Policy, description="The contractor's policy limits")
     dives: list[Dive] = Field(
         min_length=1, max_length=MAX_DIVES, description="Proposed dives in order"
+    )
+    altitude_travel: list[AltitudeTravel] = Field(
+        default_factory=list, max_length=MAX_TRAVELS,
+        description="Planned travel to altitude after the dives (flights, drives over high "
+        "ground), per diver",
     )
 
     @model_validator(mode="after")
@@ -827,6 +907,7 @@ class Plan(_Section):
                     )
                 )
             ids.append(d.id)
+        problems += _time_problems(self, known)
         for i, b in enumerate(self.gas_supply.bailout):
             if b.diver not in known:
                 problems.append(
@@ -936,6 +1017,15 @@ class Plan(_Section):
             return up, float(dive.surface_transfer_min), down, True
         return up, max(SURD_INTERVAL_MIN - up - down, 0.0), down, False
 
+    @property
+    def altitude_unit(self) -> str:
+        """Unit of ``altitude_travel[].altitude``: ft in an fsw plan, m in an msw plan."""
+        return altitude_unit(self.unit)
+
+    def altitude_to_m(self, altitude: float) -> float:
+        """A travel altitude in the plan's altitude unit converted to metres [m]."""
+        return float(altitude) * (C.M_PER_FT if self.altitude_unit == "ft" else 1.0)
+
     def to_fsw(self, depth: float) -> float:
         """Convert a plan depth to fsw [fsw] (both are pressure units)."""
         return depth if self.unit == "fsw" else float(convert_pressure(depth, "msw", "fsw"))
@@ -943,6 +1033,39 @@ class Plan(_Section):
     def from_fsw(self, depth_fsw: float) -> float:
         """Convert a depth in fsw to the plan unit [plan unit]."""
         return depth_fsw if self.unit == "fsw" else float(convert_pressure(depth_fsw, "fsw", "msw"))
+
+
+def _time_problems(plan: Plan, known: set[str]) -> list[tuple[str, str]]:
+    """Travellers are team members; the plan's date-times are all local or all with offsets;
+    a diver's stated dive starts follow the plan's order."""
+    problems: list[tuple[str, str]] = []
+    stamps = [(f"dives[{i}].start", d.start) for i, d in enumerate(plan.dives)
+              if d.start is not None]
+    for i, t in enumerate(plan.altitude_travel):
+        if t.diver not in known:
+            problems.append((f"altitude_travel[{i}].diver",
+                             f"got {excerpt(t.diver)}; expected the name of a team member"))
+        stamps.append((f"altitude_travel[{i}].departure", t.departure))
+    if stamps:
+        first_aware = stamps[0][1].utcoffset() is not None
+        for where, t in stamps[1:]:
+            if (t.utcoffset() is not None) != first_aware:
+                kind = "with" if first_aware else "without"
+                problems.append((where, f"got {t.isoformat()}; expected a date-time {kind} a "
+                                 f"UTC offset, like {stamps[0][0]}"))
+                return problems
+    last: dict[str, tuple[int, _dt.datetime]] = {}
+    for i, d in enumerate(plan.dives):
+        if d.start is None:
+            continue
+        prev = last.get(d.diver)
+        if prev is not None and d.start <= prev[1]:
+            problems.append((f"dives[{i}].start",
+                             f"got {d.start.isoformat()}; expected a time after the start of "
+                             f"{excerpt(d.diver)}'s earlier dive dives[{prev[0]}] "
+                             f"({prev[1].isoformat()})"))
+        last[d.diver] = (i, d.start)
+    return problems
 
 
 def _timeline_problems(plan: Plan) -> list[tuple[str, str]]:

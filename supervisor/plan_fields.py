@@ -32,6 +32,15 @@ dives in a plan        up to 200            four times a week-long job of 50 div
 team                   up to 60 members     common practice, no source
 one diver's timeline   up to 30 days        one job plan; split longer work (common
                                             practice, no source)
+altitude of a planned  0-30,000 ft          a typing-error guard above any road or
+travel to altitude     (0-9,144 m)          pressurised cabin; fsw plans state it in
+                                            ft, msw plans in m (common practice, no
+                                            source)
+planned travels        up to 200            one per diver and dive (common practice,
+                                            no source)
+policy wait before     up to 168 h          a week; longer is a typing error (common
+altitude                                    practice, no source)
+policy current limit   up to 15 kt          the plan's own current range
 =====================  ===================  =========================================
 
 Text fields are capped (:data:`TEXT_CAPS`) so that a title fits a page heading and
@@ -47,6 +56,7 @@ from typing import Annotated, Any
 
 from pydantic import AfterValidator, Field, ValidationInfo, WithJsonSchema
 
+from supervisor import constants as C
 from supervisor.gas import parse_gas
 from supervisor.text import excerpt
 from supervisor.units import convert_pressure
@@ -65,6 +75,12 @@ MAX_DIVES = 200
 MAX_TEAM = 60
 #: Longest timeline of one diver's dives in a plan [min] (30 days).
 MAX_TIMELINE_MIN = 30 * 24 * 60.0
+#: Highest altitude of a planned travel after diving [ft] (module docstring).
+MAX_TRAVEL_ALTITUDE_FT = 30000.0
+#: Most planned travels to altitude in a plan [count].
+MAX_TRAVELS = 200
+#: Longest wait before altitude a policy may set [h] (a week).
+MAX_ALTITUDE_WAIT_H = 168.0
 
 #: Longest text of each kind of field [characters] (common practice, no source: a
 #: job title of a few hundred characters, a person's name, a short identifier).
@@ -104,6 +120,18 @@ def rate_range(unit: str) -> tuple[float, float]:
             round(_to_unit(MAX_RATE_FSW_PER_MIN, unit), 1))
 
 
+def altitude_unit(unit: str) -> str:
+    """Unit of a travel altitude in a plan of depth ``unit``: ft for fsw, m for msw."""
+    return "m" if unit == "msw" else "ft"
+
+
+def altitude_range(unit: str) -> tuple[float, float]:
+    """Accepted travel altitudes ``(lowest, highest)`` in the altitude unit of ``unit``."""
+    if unit == "msw":
+        return 0.0, round(MAX_TRAVEL_ALTITUDE_FT * C.M_PER_FT, 1)
+    return 0.0, MAX_TRAVEL_ALTITUDE_FT
+
+
 def ctx_unit(info: ValidationInfo | None) -> str:
     """The plan's unit from the validation context (``"plan unit"`` when unknown)."""
     ctx = info.context if info is not None else None
@@ -122,11 +150,13 @@ def ctx_base_dir(info: ValidationInfo | None) -> Path | None:
 class UnitRange:
     """Marks a field whose accepted range depends on the plan's unit (depth or rate)."""
 
-    quantity: str  # "depth" or "rate"
+    quantity: str  # "depth", "rate" or "altitude"
     positive: bool = False  # a depth that must be deeper than 0 (the low bound excluded)
 
     def bounds(self, unit: str) -> tuple[float, float]:
-        """``(low, high)`` in ``unit``."""
+        """``(low, high)`` in ``unit`` (an altitude: in ft for fsw, m for msw)."""
+        if self.quantity == "altitude":
+            return altitude_range(unit)
         return depth_range(unit) if self.quantity == "depth" else rate_range(unit)
 
 
@@ -145,6 +175,16 @@ def _check_rate(value: float, info: ValidationInfo) -> float:
     lo, hi = rate_range(unit if unit != "plan unit" else "fsw")
     if not lo <= value <= hi:
         raise ValueError(f"got {value:g}; expected a rate from {lo:g} to {hi:g} {unit}/min")
+    return value
+
+
+def _check_altitude(value: float, info: ValidationInfo) -> float:
+    unit = ctx_unit(info)
+    lo, hi = altitude_range(unit if unit != "plan unit" else "fsw")
+    if not lo <= value <= hi:
+        shown = altitude_unit(unit) if unit != "plan unit" else "ft (fsw plan) or m (msw plan)"
+        raise ValueError(f"got {value:g}; expected an altitude from {lo:g} to {hi:g} {shown} "
+                         f"above sea level")
     return value
 
 
@@ -168,6 +208,10 @@ Rate = Annotated[float, WithJsonSchema({"type": "number", "minimum": _R_LO, "max
 PositiveDepth = Annotated[float, WithJsonSchema({"type": "number", "exclusiveMinimum": _D_LO,
                                                  "maximum": _D_HI}),
                           UnitRange("depth", positive=True), AfterValidator(_check_depth)]
+#: Altitude of a planned travel after diving: ft in an fsw plan, m in an msw plan.
+TravelAltitude = Annotated[float, WithJsonSchema({"type": "number", "minimum": 0.0,
+                                                  "maximum": MAX_TRAVEL_ALTITUDE_FT}),
+                           UnitRange("altitude"), AfterValidator(_check_altitude)]
 GasText = Annotated[str, Field(max_length=TEXT_CAPS["gas"]), AfterValidator(_check_gas)]
 
 

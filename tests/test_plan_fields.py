@@ -146,7 +146,8 @@ def _probes(b: dict[str, float], is_int: bool) -> list[float]:
 
 # a message about the field's own range (not a rule between two fields)
 _RANGE = {str: re.compile(r"characters; expected at most \d"),
-          float: re.compile(r"expected (?:[<>]=? |a (?:depth|rate) (?:from |[<>]=? ))-?\d"),
+          float: re.compile(r"expected (?:[<>]=? |an? (?:depth|rate|altitude) (?:from |[<>]=? ))"
+                            r"-?\d"),
           int: re.compile(r"expected [<>]=? -?\d")}
 
 

@@ -191,12 +191,28 @@ def _item_groups(items: Sequence[Any]) -> list[tuple[str, list[Mapping[str, Any]
     return groups
 
 
+#: The rule set of each jurisdiction, as its citations begin.
+_HOME_CFR = {"osha-1910-t": "29 CFR", USCG: "46 CFR"}
+
+
+def cited_for(citations: Sequence[object], jurisdiction: object) -> str:
+    """An item's citations for the job's jurisdiction: its own rule set first, the other's
+    labelled "cross-reference: " (a plan without a jurisdiction keeps them as written)."""
+    cits = [str(c) for c in citations]
+    home = _HOME_CFR.get(str(jurisdiction))
+    if home is None:
+        return "; ".join(cits)
+    own = [c for c in cits if c.startswith(home)]
+    return "; ".join(own + [f"cross-reference: {c}" for c in cits if c not in own])
+
+
 def _item_cells(item: Mapping[str, Any], record: Mapping[str, Any]) -> list[object]:
     body = [para(text(item.get("text")), ITEM)]
     if item.get("applies_when"):
         body.append(para(f"Applies when: {item['applies_when']}.", SMALL))
     status = stated(item.get("source_status"))
-    cite = [rich([("; ".join(str(c) for c in item.get("citations") or []) or MISSING, False),
+    where = m(record.get("job")).get("jurisdiction")
+    cite = [rich([(cited_for(item.get("citations") or [], where) or MISSING, False),
                   (f" ({status})", status != "VERIFIED")], SMALL)]
     if stated_in_plan(record, [str(x) for x in item.get("stated_by") or []]):
         cite.append(rich([("Stated in plan", True), ("; confirm on site.", False)],
@@ -221,7 +237,10 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
             title = f"Pre-dive checklist: mode not recognised ({given}), every item shown"
         out.append(para(title, H2))
         intro = ("Dives: " + ", ".join(dives) + ". ") if dives else ""
-        out.append(rich([(intro, True), (text(section.get("note")), False),
+        home = _HOME_CFR.get(str(m(record.get("job")).get("jurisdiction")))
+        rule_set = (f" This job is under {home}: its paragraphs come first; a paragraph of the "
+                    "other rule set is marked as a cross-reference." if home else "")
+        out.append(rich([(intro, True), (text(section.get("note")) + rule_set, False),
                          (" An item marked \"stated in plan\" is what the plan says; tick it "
                           "only when it is confirmed on site.", False)], SMALL))
         out.append(Spacer(1, 3))

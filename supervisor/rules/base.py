@@ -27,7 +27,7 @@ Rules never compute physics themselves: engine results are put in
 from __future__ import annotations
 
 from collections.abc import Callable, Iterable
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any, Literal
 
 from supervisor.findings import CONFIRMED_STATUSES, Finding
@@ -175,6 +175,11 @@ class Rule:
         Jurisdictions the rule applies to; ``None`` for all.
     func : callable
         ``func(ctx, rule)`` yielding findings.
+    citations : dict or None
+        The citation under a jurisdiction, where it differs from ``citation``
+        (e.g. the USCG paragraph for a USCG job, or the other rule set's paragraph
+        labelled ``"cross-reference: ..."``); :meth:`run` puts it on every finding
+        that carries the default citation.
     """
 
     id: str
@@ -186,14 +191,28 @@ class Rule:
     kind: RuleKind
     jurisdictions: frozenset[str] | None
     func: RuleFunc
+    citations: dict[str, str] | None = field(default=None, hash=False, compare=False)
+
+    def citation_for(self, jurisdiction: str) -> str:
+        """The rule's citation in a job under ``jurisdiction``."""
+        return (self.citations or {}).get(jurisdiction, self.citation)
 
     def applies(self, ctx: CheckContext) -> bool:
         """Whether the rule applies to the plan's jurisdiction."""
         return self.jurisdictions is None or ctx.jurisdiction in self.jurisdictions
 
     def run(self, ctx: CheckContext) -> list[Finding]:
-        """Run the rule and return its findings (exceptions propagate)."""
-        return list(self.func(ctx, self))
+        """Run the rule and return its findings (exceptions propagate).
+
+        A finding carrying the rule's default citation gets the citation of the
+        plan's jurisdiction (:attr:`citations`).
+        """
+        got = list(self.func(ctx, self))
+        cite = self.citation_for(ctx.jurisdiction)
+        if cite == self.citation:
+            return got
+        return [replace(f, citation=cite) if isinstance(f, Finding) and f.citation == self.citation
+                else f for f in got]
 
     def confirmed(self, status: str | None = _UNSET, kind: str | None = None) -> bool:
         """Whether an answer of this rule rests on a confirmed source.
@@ -370,6 +389,7 @@ class Family:
         kind: RuleKind = "regulatory",
         jurisdictions: Iterable[str] | None = None,
         name: str | None = None,
+        citations: dict[str, str] | None = None,
     ) -> Callable[[RuleFunc], RuleFunc]:
         """Decorator registering ``func(ctx, rule)`` as a rule of this family.
 
@@ -381,6 +401,8 @@ class Family:
             See :class:`Rule`.
         name : str or None
             Unique key when several functions share one rule id.
+        citations : dict or None
+            Citation per jurisdiction where it differs (see :class:`Rule`).
 
         Raises
         ------
@@ -403,6 +425,7 @@ class Family:
                     kind=kind,
                     jurisdictions=frozenset(jurisdictions) if jurisdictions is not None else None,
                     func=func,
+                    citations=dict(citations) if citations else None,
                 )
             )
             return func

@@ -14,11 +14,15 @@
   correction is needed from sea level to 300 ft; above 10,000 ft the Navy
   procedure does not apply.  The model takes the divers' tissues as settled at the
   site's pressure: after a recent ascent to the site, that needs review.
-* Flying or driving to altitude after diving: the model's time on the surface
-  until no compartment's ceiling with GF high is below the pressure of an 8,000 ft
-  cabin, beside the Navy rule, which rests on the highest repetitive group of the
-  previous 24 hours; the bundled references give no groups, so the rule-based
-  interval is not available and must be taken from the current table.
+* Flying or driving to altitude after diving: never a wait shorter than the
+  trade's minimum (12 h after a single no-stop dive, 18 h after repetitive dives
+  or several days of diving, 24 h after a decompression dive: common guidance,
+  FROM MEMORY, :mod:`supervisor.analysis.altitude`), or the contractor's longer
+  policy value.  The model's time to an 8,000 ft cabin is shown beside it only
+  when longer.  The Navy rule rests on the highest repetitive group of the
+  previous 24 hours; no verified table of it is bundled.  Planned travel
+  (``altitude_travel``) departing before the minimum fails; with no travel
+  planned the wait is information.
 
 References
 ----------
@@ -26,15 +30,20 @@ References
        dives, diving at altitude, ascent to altitude after diving.
 .. [2] NOAA Diving Center, *Topside* vol. 2 no. 9 (1999): flying after diving with
        the Navy table, 8,000 ft cabin.
+.. [3] Common guidance on flying after diving (12, 18, 24 h), recalled from memory;
+       thought to follow the Divers Alert Network Flying After Recreational Diving
+       Workshop (Sheffield PJ, Vann RD, eds., 2002).
 """
 
 from __future__ import annotations
 
 from collections.abc import Iterator
+from typing import Any
 
 from supervisor import analysis as an
+from supervisor.analysis import altitude as alt
 from supervisor.findings import Finding
-from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.base import NONE, NOT_STATED, CheckContext, Family, Rule
 from supervisor.units import sea_level_equivalent_depth
 
 FAMILY = Family("repetitive-altitude", "Repetitive diving, altitude and flying")
@@ -42,6 +51,11 @@ FAMILY = Family("repetitive-altitude", "Repetitive diving, altitude and flying")
 NAVY_CH9 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 9"
 TOPSIDE = "NOAA Diving Center, Topside 2(9), 1999 (Navy flying-after-diving table)"
 NOT_COMPUTED = "not computed"
+GUIDANCE = ("common guidance on flying after diving, from memory (12 h after a single no-stop "
+            "dive, 18 h after repetitive dives or several days of diving, 24 h after a "
+            "decompression dive; table altitude-after-diving)")
+NAVY_NOT_BUNDLED = ("the Navy table's interval (highest repetitive group of the previous 24 h) "
+                    "is not bundled: where it is longer, it governs")
 NO_CORRECTION_M = 300 * 0.3048  # 300 ft [m]
 NAVY_ALTITUDE_MAX_M = 10000 * 0.3048  # 10,000 ft [m]
 
@@ -178,43 +192,108 @@ def altitude(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 
 @FAMILY.rule(
     "exposure-flying",
-    title="Time before flying or driving to altitude after the last dive",
-    citation=TOPSIDE,
+    title="Time on the surface before travel to altitude (flying, driving over high ground)",
+    citation=GUIDANCE,
     kind="reference",
-    source_status="OLDER-EDITION",
+    source_status="FROM MEMORY",
 )
 def flying(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """The model's time to an 8,000 ft cabin beside the (unavailable) table interval.
+    """The trade's minimum wait before altitude per diver; each planned travel against it.
 
-    Always needs review: a model figure is not a flying rule, and the table
-    interval cannot be looked up without repetitive groups.
+    The minimum (12 h, 18 h or 24 h, common guidance from memory, or the contractor's
+    longer policy value) is the wait stated; the model's time appears beside it only
+    when longer.  Without a planned travel this is information.  A planned departure
+    before the minimum fails: the minimum is a default that guards against immediate
+    harm.  After the minimum but before a longer model time, or when the dives' clock
+    times are unknown, the travel needs review.
     """
     pa = an.for_context(ctx)
-    gf = ctx.policy.gf_high
-    for day in pa.divers.values():
-        last = day.dive_ids[-1]
-        t = day.time_to_altitude_min.get(an.CABIN_ALTITUDE_M)
-        if ctx.plan.site.altitude_m >= an.CABIN_ALTITUDE_M:
-            yield r.note(
-                f"{day.diver}: the site is at or above 8,000 ft; the Navy rule needs no interval "
-                "before a commercial flight (cabin at a higher pressure)",
-                dive=last,
-            )
-            continue
-        if t is None:
-            why = day.errors.get("altitude", f"more than {an.ALTITUDE_SEARCH_MAX_MIN // 60} h")
-            yield r.review(
-                f"needs review: {day.diver}: the model's time before flying could not be given "
-                f"({why}); take the interval from the current table",
-                dive=last, measured=NOT_COMPUTED, unit="min",
-            )
-            continue
-        h, m = divmod(int(t), 60)
-        yield r.review(
-            f"needs review: {day.diver}: the model (GF high {gf:g} %) gives {h} h {m:02d} min on "
-            f"the surface after {last} before ascending to 8,000 ft (a commercial cabin); this is "
-            "a model figure, not a flying rule: the Navy table interval (highest repetitive group "
-            "of the previous 24 h, OLDER-EDITION) is not available in the bundled references; "
-            "take the interval from the current table and the contractor's manual",
-            measured=float(t), unit="min", dive=last,
+    waits = alt.for_context(ctx)
+    for w in waits:
+        yield from _wait_findings(ctx, r, w)
+    for i in alt.travellers_without_dives(ctx.plan, pa):
+        yield _no_dive_travel(ctx, r, i)
+
+
+def _wait_text(ctx: CheckContext, w: alt.AltitudeWait) -> str:
+    parts = [f"{w.diver}: at least {alt.hours_minutes(w.hours * 60)} on the surface after "
+             f"{w.after_dive} before any ascent to altitude (a flight, or a drive higher than the "
+             f"site): {w.basis_text}"]
+    if w.model_cabin_min is not None:
+        parts.append(f"the model gives longer to an 8,000 ft cabin: "
+                     f"{alt.hours_minutes(w.model_cabin_min)} (GF high {ctx.policy.gf_high:g} %)")
+    if w.earliest_departure is not None:
+        parts.append(f"surfacing {alt.clock(w.surfaced_at)}, earliest departure "  # type: ignore[arg-type]
+                     f"{alt.clock(w.earliest_departure)}")
+    if ctx.plan.site.altitude_m >= an.CABIN_ALTITUDE_M:
+        parts.append("the site is at or above 8,000 ft: a commercial cabin is no ascent from it "
+                     "(Navy rule, OLDER-EDITION); the minimum applies to travel higher than the "
+                     "site")
+    parts += w.notes
+    parts.append(NAVY_NOT_BUNDLED)
+    return "; ".join(parts)
+
+
+def _wait_findings(ctx: CheckContext, r: Rule, w: alt.AltitudeWait) -> Iterator[Finding]:
+    base = dict(dive=w.after_dive, citation=w.source, status=w.source_status)
+    text = _wait_text(ctx, w)
+    if not w.travel:
+        tail = "; ".join(w.reviews)
+        yield r.note(f"{text}{'; ' + tail if tail else ''}; no travel to altitude is planned "
+                     "(altitude_travel)", limit=w.hours, unit="h", **base)
+        return
+    yield r.note(text, limit=w.hours, unit="h", **base)
+    for why in w.reviews:
+        yield r.review(f"needs review: {w.diver}: {why}", measured=NOT_COMPUTED, limit=w.hours,
+                       unit="h", **base)
+    for t in w.travel:
+        yield _travel_finding(r, w, t, base)
+
+
+def _travel_finding(r: Rule, w: alt.AltitudeWait, t: alt.Travel,
+                    base: dict[str, Any]) -> Finding:
+    where = f"{w.diver}: travel to {t.altitude:,.0f} {t.unit} departing {alt.clock(t.departure)}"
+    on_surface = (None if w.surfaced_at is None else
+                  round((t.departure - w.surfaced_at).total_seconds() / 3600.0, 2))
+    kw = dict(limit=w.hours, unit="h", **base)
+    if not t.ascent:
+        return r.ok(f"{where}: {t.reason}", measured=on_surface, verified=w.verified,
+                    kind="policy" if w.from_policy else None, **kw)
+    if t.ok is False:
+        return r.breach(
+            f"{where}: {t.reason} (earliest departure {alt.clock(t.earliest)}; "  # type: ignore[arg-type]
+            f"{w.basis_text}); a departure before the minimum is refused: the minimum guards "
+            "against immediate harm",
+            measured=on_surface, kind="policy",
+            **{**kw, "citation": f"{w.source}; a default guarding against immediate harm"},
         )
+    if t.ok is None:
+        if t.earliest is None:
+            return r.review(f"needs review: {where}: {t.reason}; at least "
+                            f"{alt.hours_minutes(w.hours * 60)} after surfacing from "
+                            f"{w.after_dive} ({w.basis_text})", measured=NOT_STATED, **kw)
+        model = (f"{alt.hours_minutes(t.model_wait_min)}, earliest "
+                 f"{alt.clock(t.model_earliest)}" if t.model_wait_min is not None  # type: ignore[arg-type]
+                 else "longer than its 72 h search")
+        return r.review(f"needs review: {where}: {t.reason} (model: {model}); a model time is "
+                        "not a flying rule: the supervisor and a diving medical officer decide",
+                        measured=on_surface, **{**kw, "limit": round(
+                            (t.model_wait_min or 72 * 60) / 60.0, 2)})
+    return r.ok(f"{where}: {t.reason} (earliest departure {alt.clock(t.earliest)})",  # type: ignore[arg-type]
+                measured=on_surface, verified=w.verified,
+                kind="policy" if w.from_policy else None, **kw)
+
+
+def _no_dive_travel(ctx: CheckContext, r: Rule, i: int) -> Finding:
+    t = ctx.plan.altitude_travel[i]
+    m = ctx.member(t.diver)
+    where = (f"{t.diver}: travel to {t.altitude:,.0f} {ctx.plan.altitude_unit} departing "
+             f"{alt.clock(t.departure)}")
+    if m is not None and (m.has("diver") or m.has("standby-diver")):
+        return r.review(
+            f"needs review: {where}: no dive of {t.diver} is in this plan, but they hold a diving "
+            "role; if they dive (a standby who goes in), or dived before this plan, the minimum "
+            "wait before altitude applies from their surfacing",
+            measured=NONE, limit="a dive in the plan", citation=GUIDANCE)
+    return r.note(f"{where}: {t.diver} does not dive in this plan; no wait before altitude is "
+                  "computed", citation=GUIDANCE)

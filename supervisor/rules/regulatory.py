@@ -24,6 +24,7 @@ References
 from __future__ import annotations
 
 from collections.abc import Iterator
+from typing import Any
 
 from supervisor.findings import Finding
 from supervisor.plan import Dive
@@ -56,6 +57,7 @@ RESERVE = "a diver-carried reserve (gas_supply.bailout)"
 LOCATION_RESERVE = "a dive-location reserve (gas_supply.secondary)"
 READY = "a chamber ready at the site"
 SUPERVISOR = "a team member with the supervisor role"
+ENTRY_DIVER = "a diver at the entry point (dive.entry_diver)"
 
 
 def chamber_state(ctx: CheckContext) -> str:
@@ -70,6 +72,27 @@ def chamber_state(ctx: CheckContext) -> str:
 
 def _deco_text(ctx: CheckContext, dive: Dive) -> str:
     return "outside the no-decompression limits" if ctx.outside_ndl(dive) else ""
+
+
+def entry_point(r: Rule, d: Dive, missing: str = "confined space: no diver named at the "
+                "underwater entry point", **kw: Any) -> Finding:
+    """A diver at the entry point of a confined space other than the diver (OSHA and USCG)."""
+    if d.entry_diver and d.entry_diver != d.diver:
+        return r.ok(f"diver at the entry point: {d.entry_diver}", dive=d.id, **kw)
+    return r.breach(missing, dive=d.id, measured=d.entry_diver or NONE, limit=ENTRY_DIVER, **kw)
+
+
+def tended(ctx: CheckContext, r: Rule, d: Dive) -> Finding:
+    """The dive is tended by someone other than the diver (OSHA and USCG)."""
+    t = ctx.tender_for(d)
+    if t is None or t.name == d.diver:
+        return r.breach(
+            "no tender for this surface-supplied air diver",
+            dive=d.id,
+            measured=t.name if t is not None else NONE,
+            limit="a tender other than the diver",
+        )
+    return r.ok(f"tended by {t.name}", dive=d.id)
 
 
 # ---------------------------------------------------------------------------
@@ -213,15 +236,7 @@ def osha_scuba_entry(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     if not ctx.plan.site.confined_space:
         return
     for d in ctx.dives(SCUBA):
-        if d.entry_diver and d.entry_diver != d.diver:
-            yield r.ok(f"diver at the entry point: {d.entry_diver}", dive=d.id)
-        else:
-            yield r.breach(
-                "confined space: no diver named at the underwater entry point",
-                dive=d.id,
-                measured=d.entry_diver or NONE,
-                limit="a diver at the entry point (dive.entry_diver)",
-            )
+        yield entry_point(r, d)
 
 
 @FAMILY.rule(
@@ -329,16 +344,22 @@ def osha_ssa_bell(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 def osha_ssa_tended(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """Each surface-supplied air diver is tended in the water."""
     for d in ctx.dives(SS_AIR):
-        t = ctx.tender_for(d)
-        if t is None or t.name == d.diver:
-            yield r.breach(
-                "no tender for this surface-supplied air diver",
-                dive=d.id,
-                measured=t.name if t is not None else NONE,
-                limit="a tender other than the diver",
-            )
-        else:
-            yield r.ok(f"tended by {t.name}", dive=d.id)
+        yield tended(ctx, r, d)
+
+
+@FAMILY.rule(
+    "osha-425-c2",
+    title="Surface-supplied air in an enclosed or confining space: a diver at the entry point",
+    citation="29 CFR 1910.425(c)(2)",
+    source_status="FROM MEMORY",
+    jurisdictions=OSHA,
+)
+def osha_ssa_entry(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """A diver stationed at the underwater entry point of an enclosed or confining space."""
+    if not ctx.plan.site.confined_space:
+        return
+    for d in ctx.dives(SS_AIR):
+        yield entry_point(r, d)
 
 
 def _deep_or_deco(ctx: CheckContext, d: Dive) -> bool:
@@ -529,16 +550,7 @@ def osha_mixed_team(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             yield r.ok("standby diver available", dive=d.id, status=st)
         if ctx.plan.site.confined_space:
-            if d.entry_diver and d.entry_diver != d.diver:
-                yield r.ok(f"entry-point diver: {d.entry_diver}", dive=d.id, status=st)
-            else:
-                yield r.breach(
-                    "confined space: no diver at the entry point",
-                    dive=d.id,
-                    status=st,
-                    measured=d.entry_diver or NONE,
-                    limit="a diver at the entry point (dive.entry_diver)",
-                )
+            yield entry_point(r, d, "confined space: no diver at the entry point", status=st)
 
 
 @FAMILY.rule(

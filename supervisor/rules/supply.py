@@ -33,10 +33,16 @@ from supervisor import analysis as an
 from supervisor import constants as C
 from supervisor.findings import Finding
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.citations import OSHA_ID, USCG_ID, cross_reference, own_or_cross
 
 FAMILY = Family("gas-supply", "Gas supply")
 
 CFR_340 = "46 CFR 197.340"
+
+
+def _cross(citation: str) -> dict[str, str]:
+    """46 CFR 197.340 is the USCG rule: in another job it is a cross-reference."""
+    return {j: cross_reference(citation) for j in (OSHA_ID, "none")}
 NAVY_CH8 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 8"
 
 #: The fact "no chamber at the site", which several rules report (one finding per dive).
@@ -81,6 +87,7 @@ def _basis(ctx: CheckContext, s: an.Supply) -> str:
     "supply-primary",
     title="Primary supply covers the dive",
     citation=f"{CFR_340} (primary supply); {NAVY_CH8} (flow x ata x time)",
+    citations=_cross(f"{CFR_340} (primary supply); {NAVY_CH8} (flow x ata x time)"),
     kind="reference",
     source_status="OLDER-EDITION",
 )
@@ -104,6 +111,7 @@ def primary(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     "supply-secondary",
     title="Secondary supply recovers the divers",
     citation=f"{CFR_340} (secondary supply); {NAVY_CH8} (secondary supply)",
+    citations=_cross(f"{CFR_340} (secondary supply); {NAVY_CH8} (secondary supply)"),
     kind="reference",
     source_status="OLDER-EDITION",
 )
@@ -240,6 +248,7 @@ def bailout(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     "supply-oxygen",
     title="Decompression oxygen held",
     citation=f"{CFR_340}; {NAVY_CH8} (flow x ata x time)",
+    citations=_cross(f"{CFR_340}; {NAVY_CH8} (flow x ata x time)"),
     kind="reference",
     source_status="OLDER-EDITION",
 )
@@ -271,6 +280,7 @@ def oxygen(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     "supply-chamber",
     title="Chamber gas for the dive and a treatment",
     citation=f"{CFR_340} (chamber supplied for the dive and one hour after)",
+    citations=_cross(f"{CFR_340} (chamber supplied for the dive and one hour after)"),
     kind="reference",
     source_status="VERIFIED",
 )
@@ -313,8 +323,9 @@ def chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         kw = dict(measured=round(u.to_gas(g.available_l), 0),
                   limit=round(u.to_gas(g.need_l), 0), unit=u.gas_unit, dive=d.id)
         own = g.status is None
-        cite = (f"{CFR_340}; plan consistency (chamber figures of the plan)" if own
-                else f"{CFR_340}; {an.CHAMBER_SOURCES}")
+        cfr = own_or_cross(ctx, CFR_340, USCG_ID)
+        cite = (f"{cfr}; plan consistency (chamber figures of the plan)" if own
+                else f"{cfr}; {an.CHAMBER_SOURCES}")
         if g.available_l + 1e-9 < g.need_l:
             yield r.breach("short: " + text, status=g.status, kind="plan" if own else None,
                            citation=cite, **kw)

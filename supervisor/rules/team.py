@@ -1,6 +1,8 @@
 """Team and equipment rules: the roles a dive needs, present and kept apart.
 
-These rules hold for every jurisdiction.  Whether the plan can be carried out
+These rules hold for every jurisdiction; their citations follow it: a USCG job
+cites 46 CFR 197 Subpart B, an OSHA job 29 CFR 1910 Subpart T, and a plan with
+no jurisdiction both, each labelled as a cross-reference.  Whether the plan can be carried out
 as written (a named supervisor, a diver who is a diver, nobody tending
 themselves, someone to run the chamber a surface decompression needs) is the
 plan's own consistency and fails.  The usual crew for a mode (a standby diver
@@ -13,6 +15,7 @@ References
 .. [1] 29 CFR 1910.410, .424(c), .425(c), .426(c) and the OSHA directive
        CPL 02-00-151 (2011) on team size, as summarised in the project's
        regulation notes (team size DERIVED; directive repost SECONDARY).
+.. [2] 46 CFR 197.410, 197.430, 197.432(c), (e)(5)-(6), 197.434(e)-(f).
 """
 
 from __future__ import annotations
@@ -21,10 +24,22 @@ from collections.abc import Iterator
 
 from supervisor.findings import Finding
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.citations import USCG_ID, cross_reference
 
 FAMILY = Family("team", "Team and equipment")
 
 TEAM_SIZE = "29 CFR 1910 Subpart T team reading (1910.424(c), .425(c), .426(c); OSHA CPL 02-00-151)"
+#: The same team reading from 46 CFR 197 Subpart B, for a USCG job.
+TEAM_SIZE_USCG = ("46 CFR 197 Subpart B team reading (197.430 SCUBA standby and tending; "
+                  "197.432(c), (e)(5)-(6) surface-supplied air; 197.434(e)-(f) mixed gas)")
+#: Who runs the chamber: 46 CFR 197.410 (a non-diving member trained to operate it, VERIFIED)
+#: for a USCG job; 29 CFR 1910.423(c)(5)-(6) (FROM MEMORY) in the OSHA team reading.
+CHAMBER_OPERATOR_USCG = "46 CFR 197.410 (a member trained to operate the chamber)"
+#: The citation of the team-size rules by jurisdiction; without one, both as cross-references.
+TEAM_CITATIONS = {
+    USCG_ID: TEAM_SIZE_USCG,
+    "none": f"{cross_reference(TEAM_SIZE)}; {cross_reference(TEAM_SIZE_USCG)}",
+}
 
 
 @FAMILY.rule(
@@ -113,6 +128,7 @@ def roles_distinct(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     citation=TEAM_SIZE,
     source_status="DERIVED",
     kind="reference",
+    citations=TEAM_CITATIONS,
 )
 def standby_present(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """A standby diver holding a diving role is available for each dive."""
@@ -143,6 +159,7 @@ def standby_present(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     citation=TEAM_SIZE,
     source_status="DERIVED",
     kind="reference",
+    citations=TEAM_CITATIONS,
 )
 def tender_present(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """Someone other than the diver tends each surface-supplied or line-tended dive."""
@@ -176,6 +193,8 @@ def _chamber_reasons(ctx: CheckContext) -> list[str]:
     citation=TEAM_SIZE,
     source_status="DERIVED",
     kind="reference",
+    citations={USCG_ID: f"{TEAM_SIZE_USCG}; {CHAMBER_OPERATOR_USCG}",
+               "none": TEAM_CITATIONS["none"]},
 )
 def chamber_operator(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """A chamber operator on the team when a dive needs a chamber at the site.

@@ -22,6 +22,7 @@ from supervisor.findings import Finding
 from supervisor.plan import Dive
 from supervisor.rules.base import NONE, CheckContext, Family, Rule
 from supervisor.rules.regulatory import (
+    ENTRY_DIVER,
     LOCATION_RESERVE,
     MIXED,
     READY,
@@ -34,7 +35,9 @@ from supervisor.rules.regulatory import (
     TENDER,
     chamber_reaches,
     chamber_state,
+    entry_point,
     mixed_status,
+    tended,
 )
 
 FAMILY = Family("regulatory-uscg", "USCG commercial-diving rules (46 CFR 197 Subpart B)")
@@ -111,7 +114,7 @@ def uscg_scuba(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 "confined space: no diver at the entry point",
                 dive=d.id,
                 measured=d.entry_diver or NONE,
-                limit="a diver at the entry point (dive.entry_diver)",
+                limit=ENTRY_DIVER,
             )
 
 
@@ -203,6 +206,35 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 dive=d.id,
             )
         ]
+
+
+@FAMILY.rule(
+    "uscg-432-c",
+    title="Surface-supplied air: each diver continuously tended",
+    citation="46 CFR 197.432(c)",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_ss_tended(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Each surface-supplied air diver is continuously tended, at any depth."""
+    for d in ctx.dives(SS_AIR):
+        yield tended(ctx, r, d)
+
+
+@FAMILY.rule(
+    "uscg-432-d",
+    title="Surface-supplied air in a confined space: a diver at the entry point tends the line",
+    citation="46 CFR 197.432(d)",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_ss_entry(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """In a confined space a diver stationed at the underwater entry point tends the line."""
+    if not ctx.plan.site.confined_space:
+        return
+    for d in ctx.dives(SS_AIR):
+        yield entry_point(r, d, "confined space: no diver named at the underwater entry point "
+                          "to tend the line")
 
 
 @FAMILY.rule(

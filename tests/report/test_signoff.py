@@ -124,3 +124,13 @@ def test_signature_section_states_the_signer(check_result: dict[str, Any]) -> No
     text = " ".join(_texts(signoff.signature_section(check_result, 500, other)))
     assert "Digitally signed by Ivo Strand in place of the plan's supervisor Dana Whitcombe." \
         in text
+
+
+@pytest.mark.parametrize(("jurisdiction", "shown"), [
+    ("uscg-46-197-b", "46 CFR 197.420; cross-reference: 29 CFR 1910.420(a)"),
+    ("osha-1910-t", "29 CFR 1910.420(a); cross-reference: 46 CFR 197.420"),
+    ("none", "29 CFR 1910.420(a); 46 CFR 197.420"),
+])
+def test_item_citations_follow_the_jurisdiction(jurisdiction: str, shown: str) -> None:
+    """A USCG job cites 46 CFR 197 first; the other rule set is labelled a cross-reference."""
+    assert signoff.cited_for(["29 CFR 1910.420(a)", "46 CFR 197.420"], jurisdiction) == shown

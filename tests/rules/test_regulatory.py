@@ -719,6 +719,11 @@ CASES: dict[str, Case] = {
         passing=lambda _: _b(), failing=lambda _: _no_tender(_b(tender=None)),
         measured="none", limit="a tender other than the diver", citation=_cfr("425(c)(1)"),
         severity="warn"),
+    "osha-425-c2": Case(
+        passing=lambda _: _confined(_b(entry_diver="Stan Standby")),
+        failing=lambda _: _confined(_b()),
+        measured="none", limit="a diver at the entry point (dive.entry_diver)",
+        citation=_cfr("425(c)(2)"), severity="warn"),
     "osha-425-c3": Case(
         passing=lambda _: _deep(), failing=lambda _: _deep(tender=None),
         measured="none", limit="a separate tender (dive.tender)", citation=_cfr("425(c)(3)")),
@@ -874,3 +879,12 @@ def test_every_warning_on_the_example_jobs_meets_the_contract(name):
         if js["family"] in CONTRACT_FAMILIES and js["severity"] in _c.BAD:
             _c.reported(Finding(**{k: js[k] for k in Finding.__dataclass_fields__
                                    if k in js and k != "extra"}))
+
+
+def test_osha_425_c2_confined_air_dive_needs_an_entry_diver(base, run):
+    """29 CFR 1910.425(c)(2) (FROM MEMORY row): a diver at the entry point; only warns."""
+    d = _confined(base())
+    f = _one_bad(run(d, FAMILY, "osha-425-c2"))
+    assert (f.severity, f.citation, f.source_status) == ("warn", "29 CFR 1910.425(c)(2)",
+                                                         "FROM MEMORY")
+    assert run(base(), FAMILY, "osha-425-c2") == []  # not a confined space: nothing to say

@@ -210,6 +210,14 @@ CASES: dict[str, Case] = {
     "uscg-432": Case(
         passing=lambda _: _u(**_DEEP), failing=lambda _: _u(**dict(_DEEP, stage=False)),
         measured="none", limit="a stage or a bell", citation="46 CFR 197.432"),
+    "uscg-432-c": Case(
+        passing=lambda _: _u(), failing=lambda _: _untended(_u(tender=None)),
+        measured="none", limit="a tender other than the diver", citation="46 CFR 197.432(c)"),
+    "uscg-432-d": Case(
+        passing=lambda _: _set(_u(entry_diver="Stan Standby"), "site", confined_space=True),
+        failing=lambda _: _set(_u(), "site", confined_space=True),
+        measured="none", limit="a diver at the entry point (dive.entry_diver)",
+        citation="46 CFR 197.432(d)"),
     "uscg-434": Case(
         passing=lambda _: _hx(), failing=lambda _: _no_secondary(_hx()),
         measured="none", limit="a dive-location reserve (gas_supply.secondary)",
@@ -233,6 +241,11 @@ CASES: dict[str, Case] = {
 }
 
 
+def _untended(d):
+    d["team"][3]["role"] = "chamber-operator"  # no tender left on the team
+    return d
+
+
 def _no_operator(d):
     d["team"][4]["role"] = "tender"
     return d
@@ -246,3 +259,21 @@ def test_contract(key, tmp_path):
 
 def test_contract_covers_every_rule():
     _c.check_covers(FAMILY, CASES)
+
+
+def test_uscg_432_c_shallow_air_dive_is_tended_too(uscg, run):
+    """46 CFR 197.432(c): every surface-supplied air diver is continuously tended (any depth)."""
+    d = uscg(max_depth=30, tender=None)
+    d["team"][3]["role"] = "chamber-operator"
+    [f] = _bad(run(d, FAMILY, "uscg-432-c"))
+    assert (f.severity, f.citation, f.source_status) == ("fail", "46 CFR 197.432(c)", "VERIFIED")
+
+
+def test_uscg_432_d_confined_space_entry_diver(uscg, run):
+    """46 CFR 197.432(d): in a confined space a diver at the entry point tends the line."""
+    d = uscg()
+    d["site"]["confined_space"] = True
+    [f] = _bad(run(d, FAMILY, "uscg-432-d"))
+    assert (f.severity, f.measured) == ("fail", "none")
+    d["dives"][0]["entry_diver"] = "Stan Standby"
+    _all_pass(run(d, FAMILY, "uscg-432-d"))
