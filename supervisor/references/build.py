@@ -312,43 +312,58 @@ def build_rows(spec: BuildSpec) -> tuple[list[dict[str, Any]], list[ScheduleResu
 
 
 def _surd_never_less(spec: BuildSpec, rows: list[dict[str, Any]]) -> None:
-    """Raise a surface-decompression row that needs less than the shorter row before it.
+    """Raise a surface-decompression row that needs less than a shorter or shallower row.
 
-    The model can give a longer bottom time less in-water time in this mode (its
+    The model can give a longer or deeper dive less in-water time in this mode (its
     gradient-factor line moves with a deeper first stop, and the shallower stops
     that make up for it in the water are done in the chamber here).  A table never
-    lists less decompression for a longer bottom time at one depth, so such a row
-    takes, stop by stop, the longer of its own and the row before's water stops and
+    lists less decompression for a longer bottom time or a deeper depth, so such a
+    row takes, stop by stop, the longer of its own and that row's water stops and
     the larger number of chamber periods; its total ascent follows the file's
     convention and its note says so.  Rows are in depth, then bottom-time order.
     """
-    floor: dict[str, Any] | None = None
+    by_time: dict[float, dict[str, Any]] = {}  # the deepest row so far at each bottom time
+    floor: dict[str, Any] | None = None  # the row before at the same depth
     for k, row in enumerate(rows):
         if k and row["depth"] != rows[k - 1]["depth"]:
             floor = None
         sched = row.get("surd_o2")
         if not sched or not sched["stops"]:
             continue
-        water = {s["depth"]: s["minutes"] for s in sched["stops"] if s["place"] == "water"}
-        periods = float(sched.get("chamber_o2_periods") or 0.0)
-        stop_time = math.fsum(s["minutes"] for s in sched["stops"])
-        total = sched.get("total_ascent")
-        if floor is not None and (
-                stop_time < floor["stop_time"] - 1e-9 or periods < floor["periods"]
-                or (total is not None and floor["total"] is not None
-                    and total < floor["total"] - 1e-9)):
-            water = {d: max(water.get(d, 0), floor["water"].get(d, 0))
-                     for d in set(water) | set(floor["water"])}
-            periods = max(periods, floor["periods"])
+        mine = _surd_figures(row["bottom_time"], sched)
+        for _ in range(2):  # raising for one neighbour may fall short of the other
+            low = [f for f in (floor, by_time.get(row["bottom_time"])) if f is not None
+                   and _less(mine, f)]
+            if not low:
+                break
+            water = dict(mine["water"])
+            for f in low:
+                water = {d: max(water.get(d, 0), f["water"].get(d, 0))
+                         for d in set(water) | set(f["water"])}
+            periods = max([mine["periods"], *(f["periods"] for f in low)])
             sched.update(_surd_schedule(spec, float(row["depth"]), water, periods))
-            stop_time = math.fsum(s["minutes"] for s in sched["stops"])
-            total = sched.get("total_ascent")
-            row["note"] += (f"; surface decompression raised to at least the "
-                            f"{_num(floor['bottom_time'])}-min row's, stop by stop (the model "
-                            "gives less here; a table never lists less decompression for a "
-                            "longer bottom time)")
-        floor = {"water": water, "periods": periods, "bottom_time": row["bottom_time"],
-                 "stop_time": stop_time, "total": total}
+            mine = _surd_figures(row["bottom_time"], sched)
+            row["note"] += "; surface decompression raised to at least " + " and ".join(
+                f"the {f['label']} row's" for f in low) + (
+                ", stop by stop (the model gives less here; a table never lists less "
+                "decompression for a longer bottom time or a deeper depth)")
+        mine["label"] = f"{_num(row['depth'])} {spec.unit} / {_num(row['bottom_time'])} min"
+        floor = by_time[row["bottom_time"]] = mine
+
+
+def _surd_figures(bottom_time: float, sched: dict[str, Any]) -> dict[str, Any]:
+    """Water stops, periods, stop time and total ascent of a surface-decompression schedule."""
+    return {"water": {s["depth"]: s["minutes"] for s in sched["stops"] if s["place"] == "water"},
+            "periods": float(sched.get("chamber_o2_periods") or 0.0),
+            "stop_time": math.fsum(s["minutes"] for s in sched["stops"]),
+            "total": sched.get("total_ascent"), "bottom_time": bottom_time, "label": ""}
+
+
+def _less(a: dict[str, Any], b: dict[str, Any]) -> bool:
+    """Whether schedule ``a`` lists less decompression than ``b`` in any of the file's checks."""
+    return (a["stop_time"] < b["stop_time"] - 1e-9 or a["periods"] < b["periods"]
+            or (a["total"] is not None and b["total"] is not None
+                and a["total"] < b["total"] - 1e-9))
 
 
 def _surd_schedule(spec: BuildSpec, depth: float, water: dict[float, float],

@@ -198,3 +198,34 @@ def test_build_document_has_no_date_or_version():
     text = json.dumps(doc)
     assert __version__ not in text
     assert tomllib.loads(build_mod.dumps_table(doc)) == doc
+
+
+def test_a_longer_or_deeper_row_never_lists_less_surface_decompression():
+    """Where the model gives a longer or deeper dive less in this mode (its gradient-factor
+    line moves with the first stop), the row is raised to its neighbour's, stop by stop,
+    and says so; every other row is the engine's (this project's model, no outside table)."""
+    spec = replace(FSW_SPEC, depths=(85.0, 90.0, 95.0))
+    doc = build_document(spec)
+    t = load_table_doc(doc, spec)
+    raised = [r for r in t.rows if "surface decompression raised" in r.note]
+    assert raised  # 90 fsw / 50 min and 95 fsw / 45 min on this grid
+    for r in raised:
+        eng = plan_schedule(build_mod._request(spec, r.depth, r.bottom_time, "surd_o2"))
+        water = {s.depth: s.minutes for s in eng.stops if s.place == "water"}
+        listed = {s.depth: s.minutes for s in r.surd_o2.stops if s.place == "water"}
+        assert all(listed.get(d, 0) >= m for d, m in water.items())
+        assert r.surd_o2.chamber_o2_periods >= eng.chamber_o2_periods
+    for depth in spec.depths:
+        rows = [r for r in t.rows if r.depth == depth and r.surd_o2 is not None]
+        times = [r.surd_o2.stop_minutes for r in rows]
+        assert times == sorted(times)
+
+
+def load_table_doc(doc, spec):
+    from pathlib import Path
+
+    from supervisor.references.loader import inspect_document
+
+    table, issues = inspect_document(doc, Path(f"{spec.name}.toml"), strict=True)
+    assert table is not None, issues
+    return table
