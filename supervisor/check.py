@@ -40,6 +40,7 @@ from supervisor.findings import (
     sort_findings,
     verdict,
 )
+from supervisor.periods import merge_stops
 from supervisor.plan import (
     Dive,
     Plan,
@@ -279,10 +280,10 @@ def _dive_entry(
         "max_depth": d.max_depth,
         "bottom_time_min": d.bottom_time_min,
         "decompression": d.decompression,
-        "proposed_stops": [
-            {"depth": s.depth, "minutes": s.minutes, "gas": d.stop_gas(s).name, "place": s.place}
-            for s in d.stops
-        ],
+        # a plan writes each oxygen period and air break as a stop; one stop with its periods
+        "proposed_stops": merge_stops(
+            (s.depth, s.minutes, d.stop_gas(s).name, s.place) for s in d.stops
+        ),
         "descent_rate": ctx.plan.descent_rate(d),
         "ascent_rate": ctx.plan.ascent_rate(d),
         "in_water_stop_min": d.in_water_stop_min,

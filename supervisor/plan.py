@@ -40,6 +40,13 @@ current_max_kt          1.5 kt             common practice, no source (unset: a 
 altitude_wait_*_h       12 / 18 / 24 h     common guidance, FROM MEMORY (tables/limits/
                                            altitude-after-diving.toml); a policy value
                                            shorter than it is never used
+surd_chamber_first_     50 / 40 fsw        U.S. Navy Diving Manual Rev 7 ch. 9 surface
+depth, surd_chamber_    (15 / 12 msw)      decompression on oxygen (SECONDARY); Rev 4
+later_depth                                Change A ch. 14 (OLDER-EDITION); the msw
+                                           depths from memory
+surd_interval_max_min   5 min              idem (SECONDARY; OLDER-EDITION)
+surface_interval_gf_    none: 275 %,       DERIVED from this project's model, no
+max                     needs review       published limit (rules.procedure)
 ======================  =================  =============================================
 
 msw defaults are the fsw values converted and rounded to a practical figure.
@@ -141,6 +148,8 @@ _UNIT_DEFAULTS: dict[str, tuple[float, float]] = {
     "ascent_rate_max": (40.0, 12.0),
     "stop_step": (10.0, 3.0),
     "last_stop": (10.0, 3.0),
+    "surd_chamber_first_depth": (50.0, 15.0),
+    "surd_chamber_later_depth": (40.0, 12.0),
 }
 
 
@@ -577,6 +586,19 @@ class Policy(_Section):
         "an ascent to altitude after a decompression dive [h]; unset: the common guidance "
         "(24 h, from memory); a shorter value is not used"
     )
+    surd_chamber_first_depth: PositiveDepth | None = _depth_field(
+        "Surface decompression: chamber depth of the first half oxygen period (default "
+        "50 fsw, 15 msw)", None)
+    surd_chamber_later_depth: PositiveDepth | None = _depth_field(
+        "Surface decompression: chamber depth of the later oxygen periods (default 40 fsw, "
+        "12 msw)", None)
+    surd_interval_max_min: float = Field(
+        5.0, gt=0, le=60, description="Surface decompression: longest surface interval, from "
+        "leaving the last water stop to arriving at the first chamber depth [min]")
+    surface_interval_gf_max: float | None = Field(
+        None, gt=0, le=1000, description="Surface decompression: highest supersaturation during "
+        "the surface interval, as a percentage of the M-value gradient [%]; not stated: a "
+        "default of this project with no source, beyond which the plan needs review")
 
     @model_validator(mode="after")
     def _ordered(self) -> Policy:
@@ -600,6 +622,10 @@ class Policy(_Section):
             )
         if self.stop_step is not None and self.stop_step <= 0:
             problems.append(("stop_step", f"got {self.stop_step:g}; expected a step > 0"))
+        first, later = self.surd_chamber_first_depth, self.surd_chamber_later_depth
+        if first is not None and later is not None and later > first:
+            problems.append(("surd_chamber_later_depth", f"got {later:g}; expected no deeper "
+                             f"than surd_chamber_first_depth ({first:g})"))
         if problems:
             raise Problems(problems)
         return self
@@ -610,6 +636,10 @@ class Policy(_Section):
         fill = {k: v[idx] for k, v in _UNIT_DEFAULTS.items() if getattr(self, k) is None}
         if self.last_stop is None and self.stop_step is not None:
             fill["last_stop"] = self.stop_step
+        first = self.surd_chamber_first_depth
+        if self.surd_chamber_later_depth is None and first is not None:
+            # a first depth shallower than the default later one: every period there
+            fill["surd_chamber_later_depth"] = min(fill["surd_chamber_later_depth"], first)
         return self.model_copy(update=fill)
 
 

@@ -220,3 +220,47 @@ def test_same_plan_same_findings():
     a = run_check(BASE, now=NOW)
     b = run_check(BASE, now=NOW)
     assert a == b
+
+
+def _surd_plan() -> dict:
+    """The base plan's dive as a 130 fsw / 60 min surface-decompression dive (fictional)."""
+    d = _data()
+    d["chamber"] = {**d.get("chamber", {}), "on_site": True, "ready": True}
+    d["policy"]["reference_table"] = "zhl16c-gf30-85-air-fsw"
+    d["dives"][0].update(
+        max_depth=130, bottom_time_min=60, decompression="surface-oxygen",
+        surface_transfer_min=3,
+        stops=[{"depth": 70, "minutes": 3}, {"depth": 60, "minutes": 5},
+               {"depth": 50, "minutes": 8}, {"depth": 40, "minutes": 12},
+               {"depth": 50, "minutes": 15, "gas": "oxygen", "place": "chamber"},
+               {"depth": 40, "minutes": 15, "gas": "oxygen", "place": "chamber"},
+               {"depth": 40, "minutes": 5, "gas": "air", "place": "chamber"},
+               {"depth": 40, "minutes": 15, "gas": "oxygen", "place": "chamber"}])
+    return d
+
+
+def test_every_stop_of_the_check_carries_its_periods():
+    """Issue 8: air breaks are visible; each stop lists its periods (gas, minutes) in order."""
+    r = run_check(plan_from_dict(_surd_plan()), now=NOW)
+    [dive] = r["dives"]
+    proposed = dive["proposed_stops"]
+    # the plan's oxygen, air-break and oxygen stops at 40 fsw in the chamber are one stop
+    assert [(s["depth"], s["minutes"], s["gas"], s["place"]) for s in proposed[-2:]] == [
+        (50, 15, "oxygen", "chamber"), (40, 35, "oxygen", "chamber")]
+    assert proposed[-1]["periods"] == [{"gas": "oxygen", "minutes": 15},
+                                       {"gas": "air", "minutes": 5},
+                                       {"gas": "oxygen", "minutes": 15}]
+    sections = [proposed, dive["model_schedule"]["stops"], dive["reference_schedule"]["stops"],
+                *(c["stops"] for c in dive["contingency"].values() if c)]
+    for stops in sections:
+        for s in stops:
+            assert s["periods"], s
+            assert all(set(p) == {"gas", "minutes"} for p in s["periods"])
+            assert sum(p["minutes"] for p in s["periods"] if p["gas"] == s["gas"]) <= \
+                s["minutes"] + 1e-9
+    model = [s for s in dive["model_schedule"]["stops"] if s["place"] == "chamber"]
+    assert [s["depth"] for s in model] == [50, 40]  # the policy's chamber depths
+    assert model[0]["periods"] == [{"gas": "oxygen", "minutes": 15}]
+    # a chamber stop of more than one period never reads as one continuous oxygen line
+    text = [f["message"] for f in r["findings"] if f["rule"] == "contingency-schedules"]
+    assert any("O2 15, air 5" in t for t in text), text

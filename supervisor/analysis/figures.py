@@ -23,7 +23,6 @@ from supervisor.analysis.assumptions import (
     O2_AIR_BREAK,
     O2_SWITCH_DEPTH_FSW,
     RMV_LPM,
-    SURD_CHAMBER_DEPTH_FSW,
     SURD_INTERVAL_MIN,
 )
 from supervisor.analysis.chamber import ChamberGas, chamber_gas
@@ -121,8 +120,9 @@ def schedule_request(
     dive gives depth, time, gas and rates.  Decompression gases are those of the
     proposed water stops (each from its deepest proposed stop), with oxygen from
     :data:`O2_SWITCH_DEPTH_FSW` for an ``in-water-oxygen`` dive that names none.
-    Surface decompression follows the proposed chamber stops (first chamber stop
-    depth and gas), else the Navy 50 fsw on oxygen.
+    Surface decompression follows the policy's chamber pattern
+    (``surd_chamber_first_depth`` then ``surd_chamber_later_depth``, no deeper than
+    the dive) on the gas of the proposed chamber stops, oxygen by default.
 
     Parameters
     ----------
@@ -151,8 +151,10 @@ def schedule_request(
         water = dive.water_stops
         leave = min(s.depth for s in water) if water else dive.max_depth
         leave = max(leave, float(pol.last_stop))
-        c_depth = chamber[0].depth if chamber else plan.from_fsw(SURD_CHAMBER_DEPTH_FSW)
+        # the policy's chamber pattern: the first half-period, then the later periods
+        c_depth = min(float(pol.surd_chamber_first_depth), float(dive.max_depth))
         c_depth = max(c_depth, float(pol.last_stop))
+        c_later = min(float(pol.surd_chamber_later_depth), c_depth)
         c_gases = [dive.stop_gas(s) for s in chamber if dive.stop_gas(s).fo2 > C.FO2_AIR + 1e-9]
         c_gas = c_gases[0].name if c_gases else "oxygen"
         if chamber:
@@ -169,6 +171,7 @@ def schedule_request(
             chamber_gas=c_gas,
             air_break=O2_AIR_BREAK,
             compression_rate=compress,
+            second_depth=c_later,
         )
     o2_break = O2_AIR_BREAK if any(parse_gas(g).fo2 > 0.5 for g, _ in deco) else None
     return ScheduleRequest(

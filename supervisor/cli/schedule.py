@@ -10,6 +10,7 @@ import typer
 from supervisor.cli._common import fail_input, guarded, json_text, say
 from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedule
 from supervisor.gas import parse_gas
+from supervisor.periods import periods_text
 from supervisor.plan_fields import rate_range
 from supervisor.quantities import gf_percent_text
 from supervisor.text import excerpt
@@ -20,6 +21,11 @@ UNIT_DEFAULTS = {
     "fsw": (75.0, 30.0, 10.0, 10.0),
     "msw": (23.0, 9.0, 3.0, 3.0),
 }
+
+#: Chamber depths of surface decompression by unit: first half-period, later periods.
+#: 50 then 40 fsw (U.S. Navy Diving Manual Rev 7 ch. 9 as quoted by secondary sources;
+#: Rev 4 Change A ch. 14, older edition); 15 then 12 msw (from memory).
+CHAMBER_DEPTHS = {"fsw": (50.0, 40.0), "msw": (15.0, 12.0)}
 
 _GF = re.compile(r"^\s*(\d+(?:\.\d+)?)\s*/\s*(\d+(?:\.\d+)?)\s*$")
 
@@ -80,9 +86,16 @@ def _table(js: dict) -> str:
         + ("unlimited" if js["no_stop_limit_min"] is None else f"{js['no_stop_limit_min']} min"),
     ]
     if js["stops"]:
-        lines.append(f"{'stop':>8}  {'min':>5}  {'gas':<8} place")
+        lines.append(f"{'stop':>8}  {'min':>5}  {'gas':<8} {'place':<8} periods")
         for s in js["stops"]:
-            lines.append(f"{s['depth']:>5} {u}  {s['minutes']:>5}  {s['gas']:<8} {s['place']}")
+            periods = [(p["gas"], p["minutes"]) for p in s.get("periods") or []]
+            shown = periods_text(periods) if len(periods) > 1 else ""
+            lines.append(f"{s['depth']:>5} {u}  {s['minutes']:>5}  {s['gas']:<8} "
+                         f"{s['place']:<8} {shown}".rstrip())
+        if js.get("chamber_o2_periods") is not None:
+            lines.append(f"chamber oxygen: {js['chamber_o2_periods']:g} period(s) of "
+                         f"{js['chamber_period_min']:g} min (model: the least number of "
+                         "half-periods that clears the obligation)")
     else:
         lines.append("no decompression stops")
     ox = js["oxygen"] or {}
@@ -151,7 +164,13 @@ def register(app: typer.Typer) -> None:
         ),
         chamber_depth: float = typer.Option(
             None, "--chamber-depth",
-            help="First chamber stop (50 fsw, 15 msw; with --surface-decompression).",
+            help="Chamber depth of the first oxygen half-period (50 fsw, 15 msw; with "
+            "--surface-decompression).",
+        ),
+        chamber_second_depth: float = typer.Option(
+            None, "--chamber-second-depth",
+            help="Chamber depth of the later oxygen periods (40 fsw, 12 msw; with "
+            "--surface-decompression).",
         ),
         chamber_compression_rate: float = typer.Option(
             None, "--chamber-compression-rate",
@@ -175,6 +194,7 @@ def register(app: typer.Typer) -> None:
         dd, da, ds, dl = UNIT_DEFAULTS[unit]
         lo, hi = parse_gf(gf)
         chamber_options = {"--surface-interval": surd_interval, "--chamber-depth": chamber_depth,
+                           "--chamber-second-depth": chamber_second_depth,
                            "--chamber-compression-rate": chamber_compression_rate,
                            "--chamber-air-break": chamber_air_break}
         if surd is None:
@@ -192,15 +212,21 @@ def register(app: typer.Typer) -> None:
                            f"{fastest:g} {unit}/min")
         sd = None
         if surd is not None:
+            first, second = CHAMBER_DEPTHS[unit]
+            c1 = first if chamber_depth is None else chamber_depth
+            if chamber_second_depth is None:
+                # the default second depth, or the first when it is given shallower than that
+                c2 = min(second, c1) if math.isfinite(c1) else second
+            else:
+                c2 = chamber_second_depth
             sd = SurfaceDecompression(
                 leave_water_depth=surd,
                 surface_interval_min=5.0 if surd_interval is None else surd_interval,
-                chamber_depth=chamber_depth
-                if chamber_depth is not None
-                else (50.0 if unit == "fsw" else 15.0),
+                chamber_depth=c1,
                 chamber_gas="oxygen",
                 air_break=_parse_break(chamber_air_break or "30/5", "--chamber-air-break"),
                 compression_rate=chamber_compression_rate,
+                second_depth=c2,
             )
         req = ScheduleRequest(
             depth=depth,

@@ -64,6 +64,7 @@ from supervisor.engine.kinetics import (
 )
 from supervisor.errors import InputError, ScheduleError
 from supervisor.gas import AIR, Gas, parse_gas
+from supervisor.periods import chamber_pattern, cycle_periods, periods_json, stop_text
 from supervisor.profile import Profile, Segment
 from supervisor.units import DEPTH_UNITS, bar_per_depth_unit
 
@@ -173,9 +174,31 @@ CONVENTIONS: dict[str, str] = {
 }
 
 
+#: The chamber pattern of surface decompression, as printed with every such schedule.
+SURD_PATTERN = (
+    "chamber oxygen in whole or half periods: the first half-period at the first chamber "
+    "depth, the rest at the second, an air break after every full period that more oxygen "
+    "follows (travel between the depths on oxygen, not counted in the periods), then the "
+    "ascent to the surface on air; the number of half-periods is the least after which no "
+    "compartment's GF-high ceiling is below the surface (this model's figure). Pattern after "
+    "the U.S. Navy Diving Manual, Rev 7 ch. 9 (as quoted by secondary sources) and Rev 4 "
+    "Change A ch. 14 (older edition): 30-min periods, 5-min air breaks, 50 then 40 fsw; the "
+    "metric depths 15 then 12 m are from memory"
+)
+
+
 @dataclass(frozen=True)
 class SurfaceDecompression:
     """Surface decompression: leave the water, recompress in a chamber, decompress on a gas.
+
+    Parameters
+    ----------
+    The chamber follows the trade's pattern (:func:`supervisor.periods.chamber_pattern`):
+    the chamber gas in whole or half periods of ``air_break[0]`` minutes, the
+    first half-period at ``chamber_depth`` and the rest at ``second_depth``, an
+    air break of ``air_break[1]`` minutes after every full period that more gas
+    follows; the number of half-periods is the least that clears the model's
+    obligation (module docstring).
 
     Parameters
     ----------
@@ -185,14 +208,18 @@ class SurfaceDecompression:
     surface_interval_min : float
         Time from leaving the last water stop to arriving at chamber depth [min].
     chamber_depth : float
-        Depth of the first chamber stop [unit].
+        Chamber depth of the first half-period [unit].
     chamber_gas : str
-        Gas breathed at the chamber stops (``oxygen`` by default).
+        Gas breathed in the chamber periods (``oxygen`` by default).
     air_break : tuple of float or None
-        (gas minutes, air minutes) cycle for the chamber gas; ``None`` for none.
+        (period minutes, air-break minutes); ``None`` gives 30-min periods without
+        air breaks.
     compression_rate : float or None
-        Rate of the chamber compression to the first chamber stop [unit/min];
+        Rate of the chamber compression to the first chamber depth [unit/min];
         ``None`` uses the dive's descent rate.
+    second_depth : float or None
+        Chamber depth of the periods after the first half-period [unit], no deeper
+        than ``chamber_depth``; ``None`` keeps every period at ``chamber_depth``.
     """
 
     leave_water_depth: float
@@ -201,10 +228,26 @@ class SurfaceDecompression:
     chamber_gas: str = "oxygen"
     air_break: tuple[float, float] | None = (30.0, 5.0)
     compression_rate: float | None = None
+    second_depth: float | None = None
 
     def compression(self, descent_rate: float) -> float:
         """Chamber compression rate in force [unit/min]."""
         return descent_rate if self.compression_rate is None else self.compression_rate
+
+    @property
+    def later_depth(self) -> float:
+        """Chamber depth of the periods after the first half-period [unit]."""
+        return self.chamber_depth if self.second_depth is None else float(self.second_depth)
+
+    @property
+    def period_min(self) -> float:
+        """Length of one chamber period [min] (30 without air breaks)."""
+        return 30.0 if self.air_break is None else float(self.air_break[0])
+
+    @property
+    def break_min(self) -> float:
+        """Air break after a full chamber period [min] (0: none)."""
+        return 0.0 if self.air_break is None else float(self.air_break[1])
 
 
 @dataclass(frozen=True)
@@ -360,6 +403,12 @@ class ScheduleRequest:
                     f"got {si!r} min; expected from the travel time ({travel:.2f} min: up from "
                     f"{sd.leave_water_depth:g} {u}, down to {sd.chamber_depth:g} {u}) to 60 min",
                 )
+            second = sd.second_depth
+            if second is not None and (not _num(second) or second <= 0
+                                       or second > sd.chamber_depth + 1e-9):
+                raise InputError(
+                    "--chamber-second-depth", f"got {second!r}; expected a depth > 0 and no "
+                    f"deeper than the first chamber depth ({sd.chamber_depth:g} {u})")
             parse_gas(sd.chamber_gas, "surface_decompression.chamber_gas")
             if sd.air_break is not None and (
                 len(sd.air_break) != 2 or not all(_num(x) and x > 0 for x in sd.air_break)
@@ -376,21 +425,38 @@ def _finite(v: Any) -> bool:
 
 @dataclass(frozen=True)
 class Stop:
-    """A decompression stop: depth [unit], whole minutes, gas and place."""
+    """A decompression stop: depth [unit], minutes, gas, place and breathing periods.
+
+    ``minutes`` is the time at the stop, air breaks included (whole minutes in
+    the water; chamber stops are whole or half oxygen periods).  ``periods``
+    lists what is breathed in order, ``(gas, minutes)``: one period on ``gas``
+    for a stop without air breaks.
+    """
 
     depth: float
-    minutes: int
+    minutes: int | float
     gas: str
     place: str = "water"
+    periods: tuple[tuple[str, float], ...] = ()
+
+    @property
+    def breathing(self) -> list[tuple[str, float]]:
+        """The stop's periods (one on its gas when none are recorded)."""
+        return list(self.periods) if self.periods else [(self.gas, float(self.minutes))]
 
     def to_dict(self) -> dict[str, Any]:
-        """JSON-ready dictionary."""
+        """JSON-ready dictionary; ``periods`` lists the breathing periods in order."""
         return {
             "depth": _num_out(self.depth),
-            "minutes": int(self.minutes),
+            "minutes": _num_out(self.minutes),
             "gas": self.gas,
             "place": self.place,
+            "periods": periods_json(self.breathing),
         }
+
+    def text(self, unit: str) -> str:
+        """The stop in words, its periods shown when it has air breaks."""
+        return stop_text(self.depth, self.minutes, self.gas, self.place, unit, self.breathing)
 
 
 def _num_out(x: float) -> float | int:
@@ -414,6 +480,7 @@ class ScheduleResult:
     controlling_compartment: str
     coefficient_status: str
     surface_interval_max_gf: float | None = None
+    chamber_o2_periods: float | None = None
     oxygen: Any = None
     labels: tuple[str, ...] = field(default=())
     warnings: list[str] = field(default_factory=list)
@@ -421,6 +488,7 @@ class ScheduleResult:
     def to_json(self) -> dict[str, Any]:
         """The ``supervisor.schedule/1`` JSON object."""
         r = self.request
+        sd = r.surface_decompression
         ox = self.oxygen
         oxygen = ox.to_dict() if hasattr(ox, "to_dict") else {"cns_percent": None, "otu": None}
         return {
@@ -448,6 +516,17 @@ class ScheduleResult:
             "surface_interval_max_gf_percent": None
             if self.surface_interval_max_gf is None
             else round(100 * self.surface_interval_max_gf, 1),
+            "chamber_o2_periods": self.chamber_o2_periods,
+            "chamber_period_min": None if sd is None else _num_out(sd.period_min),
+            "surface_decompression": None if sd is None else {
+                "leave_water_depth": _num_out(sd.leave_water_depth),
+                "surface_interval_min": _num_out(sd.surface_interval_min),
+                "chamber_depths": [_num_out(sd.chamber_depth), _num_out(sd.later_depth)],
+                "chamber_gas": parse_gas(sd.chamber_gas).name,
+                "period_min": _num_out(sd.period_min),
+                "air_break_min": _num_out(sd.break_min),
+                "pattern": SURD_PATTERN,
+            },
             "oxygen": oxygen,
             "warnings": list(self.warnings),
             "descent_rate": _num_out(r.descent_rate),
@@ -608,6 +687,22 @@ class _Batch:
                 self.segs[i].append(
                     Segment(float(d0[i]), float(d1[i]), float(m[i]), gases[i], place, label)
                 )
+
+    def stop_periods(self, gas: Gas, minutes: float, arrival: float) -> list[tuple[str, float]]:
+        """Breathing periods of an in-water stop from its arrival in the air-break cycle."""
+        ab = self.r0.o2_air_break
+        if ab is None:
+            return [(gas.name, minutes)]
+        periods, _ = cycle_periods(gas.name, minutes, ab[0], ab[1], arrival)
+        return periods
+
+    def record_periods(self, b: int, depth: float, periods: list[tuple[str, float]],
+                       place: str, label: str = "stop") -> None:
+        """Record one row's stop as one level segment per breathing period."""
+        for name, minutes in periods:
+            if minutes > 0:
+                self.segs[b].append(Segment(depth, depth, minutes, parse_gas(name), place,
+                                            label))  # type: ignore[arg-type]
 
     # -- no-stop limit ------------------------------------------------------------------
     def no_stop_limits(self, pn_desc, ph_desc, t_desc) -> list[int | None]:
@@ -854,6 +949,7 @@ class _Batch:
             stopping = here & (phase == 1)
             if stopping.any():
                 gf_next = bm.gf_at_depth(nxt, first_stop, r0.gf_low, r0.gf_high)
+                arrival = cycle.copy()
                 mins, pn, ph, cycle = self.stop_minutes(
                     stopping, pn, ph, s, nxt, cur_gas, gf_next, r0.o2_air_break, cycle, "water"
                 )
@@ -861,27 +957,35 @@ class _Batch:
                 # would break the GF-low ceiling; a dive beyond the no-stop limit always has one)
                 short = stopping & (mins == 0) & (np.abs(first_stop - s) < 1e-9)
                 if short.any():
+                    ab = r0.o2_air_break
+                    # the forced minute is breathed where the oxygen / air-break cycle stands
+                    gas_1 = [AIR if ab is not None and g.fo2 > 0.5 and c >= ab[0] else g
+                             for g, c in zip(cur_gas, cycle, strict=True)]
                     one = np.where(short, 1.0, 0.0)
-                    pn2, ph2 = self.segment(pn, ph, cur, cur, one, cur_gas)
+                    pn2, ph2 = self.segment(pn, ph, cur, cur, one, gas_1)
                     pn = np.where(short[:, None], pn2, pn)
                     ph = np.where(short[:, None], ph2, ph)
                     mins = np.where(short, 1, mins)
-                    ab = r0.o2_air_break
                     if ab is not None:
                         # the forced minute counts in the oxygen / air-break cycle
                         o2 = short & np.array([g.fo2 > 0.5 for g in cur_gas])
                         cycle = np.where(o2, (cycle + 1) % (ab[0] + ab[1]), cycle)
-                self.record(stopping & (mins > 0), s, s, mins, cur_gas, "water", "stop")
                 for b in np.flatnonzero(stopping & (mins > 0)):
-                    stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water"))
+                    periods = self.stop_periods(cur_gas[b], float(mins[b]), float(arrival[b]))
+                    self.record_periods(b, s, periods, "water")
+                    stops[b].append(Stop(s, int(mins[b]), cur_gas[b].name, "water",
+                                         tuple(periods)))
                 ascent_time += np.where(stopping, mins, 0)
                 _within_range(stops, s, r0)
 
-        si_gf = [None] * B
+        si_gf: list[float | None] = [None] * B
+        chamber_periods: list[float | None] = [None] * B
+        chamber_warnings: list[list[str]] = [[] for _ in range(B)]
         pend = phase == 2
         if sd is not None and pend.any():
             pn, ph, cur = self._surface_decompression(
-                pend, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf
+                pend, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf,
+                chamber_periods, chamber_warnings,
             )
             phase = np.where(pend, 4, phase)  # 4: finished in the chamber, at the surface
         # final ascent to the surface (rows still in the water)
@@ -900,7 +1004,7 @@ class _Batch:
 
         for b, req in enumerate(self.reqs):
             prof = Profile(self.segs[b], req.unit, req.p_surface_bar, req.water)  # type: ignore[arg-type]
-            warnings = _gas_warnings(prof) if details else []
+            warnings = (_gas_warnings(prof) + chamber_warnings[b]) if details else []
             if details and req.o2_air_break is not None and not any(
                 s.gas.fo2 > 0.5 for s in prof.segments if s.label == "stop"
             ):
@@ -918,7 +1022,7 @@ class _Batch:
                     stops=stops[b],
                     no_stop_limit_min=ndl[b],
                     first_stop_depth=float(first_stop[b]) if first_stop[b] > 0 else None,
-                    total_stop_min=int(sum(s.minutes for s in stops[b])),
+                    total_stop_min=int(round(sum(s.minutes for s in stops[b]))),
                     total_ascent_min=float(ascent_time[b]),
                     profile=prof,
                     final_p_n2=pn[b].copy(),
@@ -927,6 +1031,7 @@ class _Batch:
                     controlling_compartment=self.c.labels[ctrl],
                     coefficient_status=status,
                     surface_interval_max_gf=si_gf[b],
+                    chamber_o2_periods=chamber_periods[b],
                     oxygen=_oxygen.profile_exposure(prof) if details else None,
                     labels=self.c.labels,
                     warnings=warnings,
@@ -935,9 +1040,21 @@ class _Batch:
         return results
 
     def _surface_decompression(
-        self, rows, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf
+        self, rows, pn, ph, cur, cur_gas, first_stop, stops, ascent_time, si_gf, periods_out,
+        warnings,
     ):
-        """Surface, recompress in the chamber and decompress there (rows in SurD)."""
+        """Surface, recompress in the chamber and decompress there in oxygen periods.
+
+        The surface interval (ascent, deck, compression) is followed by the chamber
+        pattern of :class:`SurfaceDecompression`: half-periods of the chamber gas,
+        the first at the first chamber depth and the rest at the second, an air
+        break after every full period that more gas follows.  A row is done after
+        the least number of half-periods (at least one) after which no
+        compartment's GF-high ceiling is below the surface (the ceiling judged on
+        leaving the chamber depth, as at every stop); the chamber then surfaces on
+        air at the ascent rate.  Rows are computed in lock-step, one half-period at
+        a time.
+        """
         r0 = self.r0
         sd = r0.surface_decompression
         assert sd is not None
@@ -953,58 +1070,79 @@ class _Batch:
         )
         self.record(rows, 0.0, 0.0, on_surface, [AIR] * self.B, "surface", SURFACE_INTERVAL)
         gf_peak = np.maximum(gf_peak, bm.gradient_factor(pn, ph, self.ps, self.c).max(axis=1))
+        d1, d2 = float(sd.chamber_depth), sd.later_depth
         pn, ph = self.segment(
-            pn,
-            ph,
-            np.where(rows, 0.0, cur),
-            np.where(rows, sd.chamber_depth, cur),
-            down,
-            [AIR] * self.B,
+            pn, ph, np.where(rows, 0.0, cur), np.where(rows, d1, cur), down, [AIR] * self.B
         )
-        self.record(
-            rows,
-            0.0,
-            sd.chamber_depth,
-            down,
-            [AIR] * self.B,
-            "chamber",
-            SURFACE_INTERVAL + ": compression",
-        )
+        self.record(rows, 0.0, d1, down, [AIR] * self.B, "chamber",
+                    SURFACE_INTERVAL + ": compression")
         ascent_time += up + on_surface + down
         for b in np.flatnonzero(rows):
             si_gf[b] = float(gf_peak[b])
-        cgas = [parse_gas(sd.chamber_gas)] * self.B
-        cur = np.where(rows, sd.chamber_depth, cur)
-        step, last = r0.stop_step, r0.last_stop
-        i_first = int(math.floor(sd.chamber_depth / step + 1e-9))
-        i_last = int(round(last / step))
-        cycle = np.zeros(self.B)
-        for i in range(i_first, i_last - 1, -1):
-            s = i * step
-            nxt = (i - 1) * step if i - 1 >= i_last else 0.0
-            tt = np.where(rows, (cur - s) / r0.ascent_rate, 0.0)
-            pn2, ph2 = self.segment(pn, ph, cur, np.where(rows, s, cur), tt, cgas)
-            pn = np.where(rows[:, None], pn2, pn)
-            ph = np.where(rows[:, None], ph2, ph)
-            self.record(rows, cur, s, tt, cgas, "chamber", "travel")
-            ascent_time += tt
-            cur = np.where(rows, s, cur)
-            gf_next = bm.gf_at_depth(
-                nxt, np.maximum(first_stop, sd.chamber_depth), r0.gf_low, r0.gf_high
-            )
-            mins, pn, ph, cycle = self.stop_minutes(
-                rows, pn, ph, s, nxt, cgas, gf_next, sd.air_break, cycle, "chamber"
-            )
-            self.record(rows & (mins > 0), s, s, mins, cgas, "chamber", "stop")
-            for b in np.flatnonzero(rows & (mins > 0)):
-                stops[b].append(Stop(s, int(mins[b]), cgas[b].name, "chamber"))
-            ascent_time += np.where(rows, mins, 0)
-            _within_range(stops, s, r0)
-        tt = np.where(rows, cur / r0.ascent_rate, 0.0)
-        pn2, ph2 = self.segment(pn, ph, cur, np.where(rows, 0.0, cur), tt, cgas)
+        gas = parse_gas(sd.chamber_gas)
+        cgas, air = [gas] * self.B, [AIR] * self.B
+        half, brk = sd.period_min / 2.0, sd.break_min
+        travel = (d1 - d2) / r0.ascent_rate
+        n = np.zeros(self.B, dtype=int)
+        active = rows.copy()
+        most = max(1, int(math.ceil(min(r0.max_stop_min, r0.max_total_stop_min) / half)))
+        k = 0
+        while active.any():
+            k += 1
+            if k > most:
+                raise BeyondRangeError(
+                    f"beyond the model's range: not computed (the chamber does not clear within "
+                    f"{most} half-periods of {half:g} min)")
+            if k == 2 and travel > 0:
+                # to the second chamber depth on the chamber gas (not counted in the periods)
+                tt = np.where(active, travel, 0.0)
+                pn2, ph2 = self.segment(pn, ph, d1, d2, tt, cgas)
+                pn = np.where(active[:, None], pn2, pn)
+                ph = np.where(active[:, None], ph2, ph)
+                ascent_time += tt
+                gf2 = bm.gf_at_depth(d2, np.maximum(first_stop, d1), r0.gf_low, r0.gf_high)
+                deep = active & np.any(
+                    self.ceiling(pn2, ph2, np.asarray(gf2)[..., None]) > self.p(d2) + _EPS,
+                    axis=-1)
+                for b in np.flatnonzero(deep):
+                    warnings[b].append(
+                        f"chamber: after the first half-period at {_num_out(d1)} {r0.unit} the "
+                        f"model's ceiling is deeper than {_num_out(d2)} {r0.unit}, where the "
+                        "pattern goes next (needs review)")
+            depth = d1 if k == 1 else d2
+            if k >= 3 and k % 2 == 1 and brk > 0:
+                bt = np.where(active, brk, 0.0)
+                pn2, ph2 = self.segment(pn, ph, depth, depth, bt, air)
+                pn = np.where(active[:, None], pn2, pn)
+                ph = np.where(active[:, None], ph2, ph)
+                ascent_time += bt
+            ht = np.where(active, half, 0.0)
+            pn2, ph2 = self.segment(pn, ph, depth, depth, ht, cgas)
+            pn = np.where(active[:, None], pn2, pn)
+            ph = np.where(active[:, None], ph2, ph)
+            ascent_time += ht
+            clear = np.all(self.ceiling(pn, ph, r0.gf_high) <= self.ps + _EPS, axis=-1)
+            done = active & clear
+            n[done] = k
+            active &= ~clear
+        for b in np.flatnonzero(rows):
+            pattern = chamber_pattern(int(n[b]), d1, d2, sd.period_min, brk, gas.name)
+            for j, (depth, periods) in enumerate(pattern):
+                if j:
+                    self.record(np.arange(self.B) == b, pattern[j - 1][0], depth, travel, cgas,
+                                "chamber", "travel")
+                self.record_periods(int(b), depth, periods, "chamber")
+                minutes = math.fsum(m for _, m in periods)
+                stops[b].append(Stop(depth, _num_out(minutes), gas.name, "chamber",
+                                     tuple(periods)))
+            periods_out[b] = float(n[b]) / 2.0
+        _within_range(stops, d2, r0)
+        last = np.where(rows, np.where(n > 1, d2, d1), cur)
+        tt = np.where(rows, last / r0.ascent_rate, 0.0)
+        pn2, ph2 = self.segment(pn, ph, last, np.where(rows, 0.0, last), tt, air)
         pn = np.where(rows[:, None], pn2, pn)
         ph = np.where(rows[:, None], ph2, ph)
-        self.record(rows, cur, 0.0, tt, cgas, "chamber", "decompression to surface")
+        self.record(rows, last, 0.0, tt, air, "chamber", "decompression to surface")
         ascent_time += tt
         return pn, ph, np.where(rows, 0.0, cur)
 

@@ -28,18 +28,27 @@ engine's schedule for the same dive under the build's settings:
     in-water stops at and deeper than ``surd_leave_water`` only, then the
     surface interval (``surd_interval`` minutes from leaving the water stop to
     arriving at ``chamber_depth`` in the chamber: ascent, time on deck,
-    compression at the descent rate), then chamber stops on oxygen on the
-    table's stop grid from ``chamber_depth`` up to the last stop with
-    ``chamber_air_break`` cycles counted in the stop minutes (the cycle starts on
-    arrival in the chamber), then the chamber's ascent to the surface.  Chamber
-    stops are listed with ``place = "chamber"``; ``chamber_o2_periods`` is the
-    chamber oxygen time (stop minutes less air breaks) in oxygen periods,
-    rounded up to the next half period.  Only for depths at or deeper than the
-    chamber depth (the engine puts the first chamber stop no deeper than the
-    dive).  The row gives no ``total_ascent`` for this mode: the file format's
-    total-ascent check counts chamber time in whole and half periods, which a
-    minute-by-minute chamber schedule does not fill; the total from leaving the
-    bottom to leaving the chamber is in the row's ``note``.
+    compression at the descent rate), then the chamber in the trade's pattern
+    (:data:`supervisor.engine.schedule.SURD_PATTERN`): oxygen in whole or half
+    periods of ``chamber_air_break[0]`` minutes, the first half-period at
+    ``chamber_depth`` and the rest at ``chamber_second_depth``, a
+    ``chamber_air_break[1]``-minute air break after every full period that more
+    oxygen follows, then the chamber's ascent to the surface on air.  The number
+    of half-periods is the engine's: the least that clears the model's
+    obligation.  Chamber stops are listed with ``place = "chamber"`` and their
+    oxygen minutes (the air breaks between periods are not stop time, as the
+    file's ``chamber_air_break_min`` convention says); ``chamber_o2_periods`` is
+    the engine's count and ``total_ascent`` the engine's time from leaving the
+    bottom to leaving the chamber, except for a schedule without water stops
+    (the file's total-ascent check then counts no travel to the surface
+    interval; the total is in the row's ``note``).  Only for depths at or deeper
+    than the chamber depth (the engine puts the first chamber depth no deeper
+    than the dive).
+
+The chamber pattern (30-min periods, 5-min air breaks, 50 then 40 fsw) follows
+the U.S. Navy Diving Manual, Rev 7 ch. 9 as quoted by secondary sources and Rev
+4 Change A ch. 14 (older edition); the metric chamber depths 15 then 12 m are
+from memory.  The number of periods is this project's model output (COMPUTED).
 """
 
 from __future__ import annotations
@@ -55,10 +64,12 @@ from supervisor.engine.buhlmann import load_coefficients
 from supervisor.engine.schedule import (
     ScheduleRequest,
     ScheduleResult,
+    Stop,
     SurfaceDecompression,
     plan_schedules,
 )
 from supervisor.errors import InputError
+from supervisor.periods import chamber_pattern
 from supervisor.references.canonical import atomic_write_text, dumps_table
 from supervisor.references.loader import InvalidTableError, inspect_document
 from supervisor.references.schema import MODE_TITLES, MODES, SCHEMA_ID
@@ -103,9 +114,11 @@ class BuildSpec:
         Surface interval from leaving the water stop to arriving at the chamber
         depth [min].
     chamber_depth : float
-        First chamber stop [unit].
+        Chamber depth of the first oxygen half-period [unit].
+    chamber_second_depth : float
+        Chamber depth of the later oxygen periods [unit].
     chamber_air_break : tuple of float
-        Chamber (oxygen minutes, air minutes) cycle.
+        Chamber (oxygen period minutes, air-break minutes).
     """
 
     unit: str
@@ -123,6 +136,7 @@ class BuildSpec:
     surd_leave_water: float | None = None
     surd_interval: float = 5.0
     chamber_depth: float = 50.0
+    chamber_second_depth: float = 40.0
     chamber_air_break: tuple[float, float] = (30.0, 5.0)
 
     @property
@@ -142,12 +156,15 @@ class BuildSpec:
 #: The two bundled computed tables: 30-190 fsw with stops every 10 fsw, and the
 #: metric variant 9-57 msw with stops every 3 msw.  Rates and stop grids are the
 #: defaults of ``supervisor schedule``; in-water oxygen from 30 fsw / 9 msw;
-#: surface decompression leaves the water after the 40 fsw / 12 msw stop and
-#: starts in the chamber at 50 fsw / 15 msw (choices of this build).
+#: surface decompression leaves the water after the 40 fsw / 12 msw stop (a choice of
+#: this build) and breathes chamber oxygen at 50 then 40 fsw / 15 then 12 msw (the
+#: trade's pattern; the metric depths from memory).
 FSW_SPEC = BuildSpec("fsw", tuple(float(d) for d in range(30, 200, 10)), 75.0, 30.0, 10.0, 10.0,
-                     o2_switch=30.0, surd_leave_water=40.0, chamber_depth=50.0)
+                     o2_switch=30.0, surd_leave_water=40.0, chamber_depth=50.0,
+                     chamber_second_depth=40.0)
 MSW_SPEC = BuildSpec("msw", tuple(float(d) for d in range(9, 60, 3)), 23.0, 9.0, 3.0, 3.0,
-                     o2_switch=9.0, surd_leave_water=12.0, chamber_depth=15.0)
+                     o2_switch=9.0, surd_leave_water=12.0, chamber_depth=15.0,
+                     chamber_second_depth=12.0)
 
 
 def model_title(model: str) -> str:
@@ -170,7 +187,8 @@ def _request(spec: BuildSpec, depth: float, bottom_time: float,
         extra = {"surface_decompression": SurfaceDecompression(
             leave_water_depth=float(spec.surd_leave_water),  # type: ignore[arg-type]
             surface_interval_min=spec.surd_interval, chamber_depth=spec.chamber_depth,
-            chamber_gas="oxygen", air_break=tuple(spec.chamber_air_break))}
+            chamber_gas="oxygen", air_break=tuple(spec.chamber_air_break),
+            second_depth=spec.chamber_second_depth)}
     return ScheduleRequest(
         depth=depth, bottom_time_min=bottom_time, unit=spec.unit, gas="air", model=spec.model,
         gf_low=spec.gf_low, gf_high=spec.gf_high, descent_rate=spec.descent_rate,
@@ -181,38 +199,26 @@ def _request(spec: BuildSpec, depth: float, bottom_time: float,
     )
 
 
-def oxygen_minutes(stop_minutes: float, air_break: tuple[float, float]) -> float:
-    """Oxygen minutes in ``stop_minutes`` of stops that count their air breaks.
-
-    The (oxygen, air) cycle starts with oxygen and runs on across the stops
-    (the engine's convention): every full cycle gives its oxygen minutes, and a
-    part cycle gives up to one oxygen period.
-    """
-    o2, air = air_break
-    full, rest = divmod(float(stop_minutes), o2 + air)
-    return full * o2 + min(rest, o2)
-
-
-def chamber_periods(o2_minutes: float, period: float) -> float:
-    """Chamber oxygen minutes in oxygen periods, rounded up to the next half period."""
-    if o2_minutes <= 0:
-        return 0.0
-    return math.ceil(o2_minutes / (period / 2) - 1e-9) / 2
-
-
 def _num(x: float) -> int | float:
     r = round(float(x), 2)
     return int(r) if r.is_integer() else r
 
 
+def _stop_minutes(stop: Stop) -> float:
+    """A stop's minutes as the file lists them: chamber stops without their air breaks."""
+    if stop.place != "chamber":
+        return float(stop.minutes)
+    return math.fsum(m for g, m in stop.breathing if g == stop.gas)
+
+
 def _stops(res: ScheduleResult) -> list[dict[str, Any]]:
-    return [{"depth": _num(s.depth), "minutes": int(s.minutes), "gas": s.gas,
+    return [{"depth": _num(s.depth), "minutes": _num(_stop_minutes(s)), "gas": s.gas,
              "place": s.place} for s in res.stops]
 
 
-def _surd_chamber_o2(spec: BuildSpec, res: ScheduleResult) -> float:
-    chamber = sum(s.minutes for s in res.stops if s.place == "chamber")
-    return oxygen_minutes(chamber, spec.chamber_air_break)
+def _surd_chamber_o2(res: ScheduleResult) -> float:
+    """Chamber oxygen minutes of a surface-decompression schedule (air breaks left out)."""
+    return math.fsum(_stop_minutes(s) for s in res.stops if s.place == "chamber")
 
 
 _LABEL = {"air": "air", "air_o2": "air/oxygen", "surd_o2": "surface decompression"}
@@ -229,20 +235,17 @@ def _row(spec: BuildSpec, by_mode: dict[str, ScheduleResult]) -> dict[str, Any]:
     note = ("model surfacing supersaturation, share of the M-value gradient: " + ", ".join(gf))
     surd = by_mode.get("surd_o2")
     if surd is not None and surd.surface_interval_max_gf is not None:
-        # the engine went through the surface interval and the chamber (even where no
-        # chamber stop needs time, the chamber ascent is still on oxygen)
-        o2 = _surd_chamber_o2(spec, surd)
         note += (f"; surface decompression: {_num(surd.total_ascent_min)} min from leaving the "
-                 f"bottom to leaving the chamber, chamber oxygen stops {_num(o2)} min, "
-                 f"supersaturation peaks at {100 * surd.surface_interval_max_gf:.0f} % of the "
-                 "M-value gradient during the surface interval")
+                 f"bottom to leaving the chamber, chamber oxygen {_num(_surd_chamber_o2(surd))} "
+                 f"min in {surd.chamber_o2_periods:g} period(s), supersaturation peaks at "
+                 f"{100 * surd.surface_interval_max_gf:.0f} % of the M-value gradient during "
+                 "the surface interval")
     row.update({"repetitive_group": "", "exceptional_exposure": False, "note": note})
     for mode, r in by_mode.items():
         sched: dict[str, Any] = {"stops": _stops(r)}
-        if mode == "surd_o2":
-            sched["chamber_o2_periods"] = _num(
-                chamber_periods(_surd_chamber_o2(spec, r), spec.chamber_air_break[0]))
-        else:
+        if mode == "surd_o2" and r.chamber_o2_periods is not None:
+            sched["chamber_o2_periods"] = _num(r.chamber_o2_periods)
+        if mode != "surd_o2" or any(s.place == "water" for s in r.stops):
             sched["total_ascent"] = _num(r.total_ascent_min)
         row[mode] = sched
     row.update({
@@ -302,7 +305,88 @@ def build_rows(spec: BuildSpec) -> tuple[list[dict[str, Any]], list[ScheduleResu
                 for k in idx]
         for k, res in zip(idx, plan_schedules(reqs) if reqs else [], strict=True):
             by_row[k][mode] = res
-    return [_row(spec, m) for m in by_row], kept
+    rows = [_row(spec, m) for m in by_row]
+    if "surd_o2" in spec.modes:
+        _surd_never_less(spec, rows)
+    return rows, kept
+
+
+def _surd_never_less(spec: BuildSpec, rows: list[dict[str, Any]]) -> None:
+    """Raise a surface-decompression row that needs less than a shorter or shallower row.
+
+    The model can give a longer or deeper dive less in-water time in this mode (its
+    gradient-factor line moves with a deeper first stop, and the shallower stops
+    that make up for it in the water are done in the chamber here).  A table never
+    lists less decompression for a longer bottom time or a deeper depth, so such a
+    row takes, stop by stop, the longer of its own and that row's water stops and
+    the larger number of chamber periods; its total ascent follows the file's
+    convention and its note says so.  Rows are in depth, then bottom-time order.
+    """
+    by_time: dict[float, dict[str, Any]] = {}  # the deepest row so far at each bottom time
+    floor: dict[str, Any] | None = None  # the row before at the same depth
+    for k, row in enumerate(rows):
+        if k and row["depth"] != rows[k - 1]["depth"]:
+            floor = None
+        sched = row.get("surd_o2")
+        if not sched or not sched["stops"]:
+            continue
+        mine = _surd_figures(row["bottom_time"], sched)
+        for _ in range(2):  # raising for one neighbour may fall short of the other
+            low = [f for f in (floor, by_time.get(row["bottom_time"])) if f is not None
+                   and _less(mine, f)]
+            if not low:
+                break
+            water = dict(mine["water"])
+            for f in low:
+                water = {d: max(water.get(d, 0), f["water"].get(d, 0))
+                         for d in set(water) | set(f["water"])}
+            periods = max([mine["periods"], *(f["periods"] for f in low)])
+            sched.update(_surd_schedule(spec, float(row["depth"]), water, periods))
+            mine = _surd_figures(row["bottom_time"], sched)
+            row["note"] += "; surface decompression raised to at least " + " and ".join(
+                f"the {f['label']} row's" for f in low) + (
+                ", stop by stop (the model gives less here; a table never lists less "
+                "decompression for a longer bottom time or a deeper depth)")
+        mine["label"] = f"{_num(row['depth'])} {spec.unit} / {_num(row['bottom_time'])} min"
+        floor = by_time[row["bottom_time"]] = mine
+
+
+def _surd_figures(bottom_time: float, sched: dict[str, Any]) -> dict[str, Any]:
+    """Water stops, periods, stop time and total ascent of a surface-decompression schedule."""
+    return {"water": {s["depth"]: s["minutes"] for s in sched["stops"] if s["place"] == "water"},
+            "periods": float(sched.get("chamber_o2_periods") or 0.0),
+            "stop_time": math.fsum(s["minutes"] for s in sched["stops"]),
+            "total": sched.get("total_ascent"), "bottom_time": bottom_time, "label": ""}
+
+
+def _less(a: dict[str, Any], b: dict[str, Any]) -> bool:
+    """Whether schedule ``a`` lists less decompression than ``b`` in any of the file's checks."""
+    return (a["stop_time"] < b["stop_time"] - 1e-9 or a["periods"] < b["periods"]
+            or (a["total"] is not None and b["total"] is not None
+                and a["total"] < b["total"] - 1e-9))
+
+
+def _surd_schedule(spec: BuildSpec, depth: float, water: dict[float, float],
+                   periods: float) -> dict[str, Any]:
+    """A surface-decompression schedule from its water stops and chamber periods."""
+    o2, brk = spec.chamber_air_break
+    stops = [{"depth": _num(d), "minutes": _num(m), "gas": "air", "place": "water"}
+             for d, m in sorted(water.items(), reverse=True) if m > 0]
+    for d, parts in chamber_pattern(int(round(2 * periods)), spec.chamber_depth,
+                                    spec.chamber_second_depth, o2, brk):
+        stops.append({"depth": _num(d), "minutes": _num(math.fsum(m for g, m in parts
+                                                                   if g == "oxygen")),
+                      "gas": "oxygen", "place": "chamber"})
+    out: dict[str, Any] = {"stops": stops, "chamber_o2_periods": _num(periods)}
+    ws = [s for s in stops if s["place"] == "water"]
+    if ws:
+        # travel to the last water stop, the water stops, the surface interval, the chamber
+        chamber = (periods * o2 + max(0, math.ceil(periods - 1e-9) - 1) * brk
+                   + spec.chamber_depth / spec.ascent_rate)
+        out["total_ascent"] = _num((depth - ws[-1]["depth"]) / spec.ascent_rate
+                                   + math.fsum(s["minutes"] for s in ws)
+                                   + spec.surd_interval + chamber)
+    return out
 
 
 def _mode_conventions(spec: BuildSpec) -> tuple[dict[str, Any], list[str]]:
@@ -326,28 +410,34 @@ def _mode_conventions(spec: BuildSpec) -> tuple[dict[str, Any], list[str]]:
             "CNS table): the engine warns for every such schedule.")
     if "surd_o2" in spec.modes:
         o2, air = spec.chamber_air_break
+        c1, c2 = spec.chamber_depth, spec.chamber_second_depth
         conv.update({"chamber_o2_period_min": float(o2), "chamber_air_break_min": float(air),
                      "surface_interval_min": float(spec.surd_interval),
-                     "chamber_travel_min": _num(spec.chamber_depth / spec.ascent_rate)})
+                     "chamber_travel_min": _num(c1 / spec.ascent_rate)})
         notes.append(
             f"Surface decompression on oxygen (surd_o2): the in-water air stops at and deeper "
             f"than {spec.surd_leave_water:g} {u}, then a surface interval of "
             f"{spec.surd_interval:g} min from leaving the water stop (or, with no stop that "
             "deep, the depth of the first stop) to arriving at "
-            f"{spec.chamber_depth:g} {u} in the chamber (ascent at {spec.ascent_rate:g} "
+            f"{c1:g} {u} in the chamber (ascent at {spec.ascent_rate:g} "
             f"{u}/min, air on deck, compression on air at {spec.descent_rate:g} {u}/min), then "
-            f"chamber stops on oxygen every {spec.stop_step:g} {u} from {spec.chamber_depth:g} "
-            f"to {spec.last_stop:g} {u} (those needing no time left out) in cycles of {o2:g} "
-            f"min oxygen and {air:g} min air counted in the stop minutes, starting on arrival "
-            f"in the chamber; chamber travel at {spec.ascent_rate:g} {u}/min "
-            f"(chamber_travel_min, {spec.chamber_depth:g} {u} to the surface). Chamber stops "
-            "are listed with place = chamber; chamber_o2_periods is the chamber oxygen time "
-            f"(stop minutes less air breaks) in {o2:g}-min periods, rounded up to the next "
-            "half period. No total_ascent is given for this mode (the file format's check "
-            "counts chamber time in whole and half periods, which these minute-by-minute "
-            "chamber stops do not fill); the row note gives the total and the peak "
-            "supersaturation of the surface interval. Only depths at or deeper than "
-            f"{spec.chamber_depth:g} {u} have this mode.")
+            f"chamber oxygen in whole or half {o2:g}-min periods: the first half-period "
+            f"({o2 / 2:g} min) at {c1:g} {u}, the rest at {c2:g} {u}, a {air:g}-min air break "
+            "after every full period that more oxygen follows, then the ascent to the surface "
+            f"on air; chamber travel at {spec.ascent_rate:g} {u}/min on oxygen between the "
+            f"depths, not counted in the periods (chamber_travel_min: {c1:g} {u} to the "
+            "surface in all). The number of periods (chamber_o2_periods) is the least number "
+            "of half-periods after which the model's GF-high ceiling is at the surface "
+            "(COMPUTED). Chamber stops are listed with place = chamber and their oxygen "
+            "minutes; the air breaks are not stop time. The pattern follows the U.S. Navy "
+            "Diving Manual, Rev 7 ch. 9 (as quoted by secondary sources) and Rev 4 Change A "
+            "ch. 14 (older edition): 30-min periods, 5-min air breaks, 50 then 40 fsw; the "
+            "metric depths 15 then 12 m are from memory. total_ascent is the engine's time "
+            "from leaving the bottom to leaving the chamber, left out where the schedule has "
+            "no water stop (the file's check then counts no travel to the surface interval; "
+            "the row note gives the total); the row note also gives the peak supersaturation "
+            "of the surface interval. Only depths at or deeper than "
+            f"{c1:g} {u} have this mode.")
     return conv, notes
 
 
@@ -366,7 +456,8 @@ def build_document(spec: BuildSpec) -> dict[str, Any]:
                          f"{spec.o2_air_break[0]:g}/{spec.o2_air_break[1]:g}",
                "surd_o2": f"--surface-decompression {spec.surd_leave_water:g} "
                           f"--surface-interval {spec.surd_interval:g} --chamber-depth "
-                          f"{spec.chamber_depth:g} --chamber-air-break "
+                          f"{spec.chamber_depth:g} --chamber-second-depth "
+                          f"{spec.chamber_second_depth:g} --chamber-air-break "
                           f"{spec.chamber_air_break[0]:g}/{spec.chamber_air_break[1]:g}"}
     same = "; ".join(f"{m}: {options[m]}" for m in spec.modes if m in options)
     return {
@@ -391,7 +482,16 @@ def build_document(spec: BuildSpec) -> dict[str, Any]:
             "notes": "Every schedule is the engine's (the same as `supervisor schedule` with "
                      "the same options" + (f"; {same}" if same else "") + f"). The "
                      f"{spec.model} coefficients used have source status {status}; the "
-                     "schedules are no more certain than that. Model output for planning "
+                     "schedules are no more certain than that." + (
+                         " The surface-decompression chamber pattern (whole or half 30-min "
+                         "oxygen periods with 5-min air breaks, the first half-period at "
+                         f"{spec.chamber_depth:g} {u}, the rest at "
+                         f"{spec.chamber_second_depth:g} {u}) is the trade's, known here from "
+                         "secondary copies of the U.S. Navy Diving Manual Rev 7 ch. 9 and "
+                         "from Rev 4 Change A ch. 14 (older edition)"
+                         + (", its metric depths from memory" if u == "msw" else "")
+                         + "; the number of periods in each row is model output (COMPUTED)."
+                         if "surd_o2" in spec.modes else "") + " Model output for planning "
                      "review, not a table issued by any authority. Regenerate with "
                      "`supervisor tables build`.",
         },

@@ -17,6 +17,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from supervisor.errors import InputError, TableError
+from supervisor.periods import breaks_between, cycle_across, periods_json
 from supervisor.references.loader import Table
 from supervisor.references.schema import MODE_TITLES, MODES, Mode, Schedule
 
@@ -86,6 +87,7 @@ class LookupResult:
     verification: str = "unverified"
     source_status: str = ""
     notes: tuple[str, ...] = field(default_factory=tuple)
+    periods: tuple[tuple[tuple[str, float], ...], ...] = field(default_factory=tuple)
 
     @property
     def needs_review(self) -> bool:
@@ -111,7 +113,8 @@ class LookupResult:
             "repetitive_group": self.repetitive_group,
             "exceptional_exposure": self.exceptional_exposure,
             "mode": self.mode,
-            "stops": [s.model_dump() for s in self.schedule.stops] if self.schedule else [],
+            "stops": [self._stop(i, s) for i, s in enumerate(self.schedule.stops)]
+            if self.schedule else [],
             "total_ascent_min": self.schedule.total_ascent if self.schedule else None,
             "chamber_o2_periods": self.schedule.chamber_o2_periods if self.schedule else None,
             "permitted": self.permitted,
@@ -120,6 +123,42 @@ class LookupResult:
             "needs_review": self.needs_review,
             "notes": list(self.notes),
         }
+
+
+    def _stop(self, i: int, stop: Any) -> dict[str, Any]:
+        """One stop of the schedule with its breathing periods (air breaks)."""
+        d = stop.model_dump()
+        periods = self.periods[i] if i < len(self.periods) else ((d["gas"], d["minutes"]),)
+        d["periods"] = periods_json(periods)
+        return d
+
+
+def schedule_periods(conventions: Any, schedule: Schedule) -> tuple[
+        tuple[tuple[str, float], ...], ...]:
+    """Breathing periods of each stop of a table schedule, from the table's conventions.
+
+    In the water, oxygen stops whose minutes count the air breaks
+    (``air_breaks_in_stop_time``) run one oxygen/air cycle across the oxygen
+    stops; otherwise a break follows every full oxygen period that more oxygen
+    follows.  Chamber stops take ``chamber_o2_period_min`` periods with
+    ``chamber_air_break_min`` breaks between them, not counted in the stop minutes.
+    Without period and break lengths a stop is one period.
+    """
+    def get(name: str) -> Any:
+        return getattr(conventions, name, None)
+
+    out: list[tuple[tuple[str, float], ...]] = []
+    water = [(s.gas, float(s.minutes)) for s in schedule.stops if s.place == "water"]
+    chamber = [(s.gas, float(s.minutes)) for s in schedule.stops if s.place != "water"]
+    if get("air_breaks_in_stop_time"):
+        wp = cycle_across(water, get("o2_period_min"), get("air_break_min"))
+    else:
+        wp = breaks_between(water, get("o2_period_min"), get("air_break_min"))
+    cp = breaks_between(chamber, get("chamber_o2_period_min"), get("chamber_air_break_min"))
+    wi, ci = iter(wp), iter(cp)
+    for s in schedule.stops:
+        out.append(tuple(next(wi) if s.place == "water" else next(ci)))
+    return tuple(out)
 
 
 def _check_inputs(depth: float, bottom_time: float) -> tuple[float, float]:
@@ -283,5 +322,5 @@ def lookup_schedule(table: Table, depth: float, bottom_time: float,
         bottom_time=r.bottom_time, row=hit + 1, repetitive_group=r.repetitive_group or None,
         exceptional_exposure=r.exceptional_exposure, mode=mode, schedule=sched,
         permitted=sched.permitted, verification=verification, source_status=status,
-        notes=notes,
+        notes=notes, periods=schedule_periods(table.model.conventions, sched),
     )

@@ -352,9 +352,16 @@ def _stop_checks(t: DecompressionTable, i: int, r: DecompressionRow, mode: str,
     out: list[Issue] = []
     c = t.conventions
     unit = c.depth_unit
-    prev = None
+    prev: float | None = None
+    place = None
     for k, stop in enumerate(s.stops):
         col = f"{mode}.stops[{k + 1}].depth"
+        if place == "chamber" and stop.place == "water":
+            out.append(_err(t, i, f"{mode}.stops[{k + 1}].place", "a water stop after a "
+                            "chamber stop; list the water stops first, then the chamber stops"))
+        if stop.place != place:
+            prev = None  # surface decompression: the chamber starts deeper than the last
+            place = stop.place  # water stop (recompression); each place deepest first
         if prev is not None and stop.depth >= prev:
             out.append(_err(t, i, col, f"stop at {stop.depth:g} {unit} is not shallower than the "
                             f"stop before ({prev:g} {unit}); list stops deepest first"))

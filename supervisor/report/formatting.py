@@ -126,6 +126,18 @@ def fmt_periods(periods: object) -> str | None:
     return ", ".join(parts) + " min"
 
 
+def stop_periods(stop: Mapping[str, Any]) -> str | None:
+    """A stop's periods in words when it has more than one (air breaks), else ``None``.
+
+    Every stop of the check carries ``periods``; a stop breathed on one gas
+    throughout prints as its gas alone.
+    """
+    periods = stop.get("periods")
+    if isinstance(periods, list) and len(periods) == 1:
+        return None
+    return fmt_periods(periods)
+
+
 def stops_line(stops: object, unit: str) -> str:
     """A schedule in one line: ``"water 50 fsw 3 min air; chamber 40 fsw 30 min oxygen: ..."``.
 
@@ -139,7 +151,7 @@ def stops_line(stops: object, unit: str) -> str:
     parts = []
     for stop in stops:
         s = stop if isinstance(stop, Mapping) else {}
-        periods = fmt_periods(s.get("periods"))
+        periods = stop_periods(s)
         gas = str(s.get("gas") or MISSING)
         what = f"{gas} ({periods})" if periods else gas
         parts.append(f"{s.get('place') or MISSING} {fmt_stop_depth(s.get('depth'))} {unit} "

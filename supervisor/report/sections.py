@@ -33,13 +33,13 @@ from supervisor.report.formatting import (
     effective_verdict,
     flatten,
     fmt_number,
-    fmt_periods,
     fmt_quantity,
     fmt_scalar,
     fmt_stop_depth,
     fmt_stop_minutes,
     humanize_key,
     is_number,
+    stop_periods,
     stops_line,
 )
 from supervisor.report.styles import (
@@ -76,7 +76,7 @@ def stop_gas_cell(stop: Mapping[str, Any]) -> list[Flowable]:
     A stop with ``periods`` never prints as one continuous gas: the periods
     replace the gas name (``"O2 15, air 5, O2 15 min"``).
     """
-    periods = fmt_periods(stop.get("periods"))
+    periods = stop_periods(stop)
     if periods is None:
         return [para(_text(stop.get("gas")), CELL)]
     return [para(periods, CELL), para("(air breaks)" if "air" in periods.lower() else

@@ -41,8 +41,7 @@ def _stops(c: an.Contingency, unit: str) -> str:
         return "not computed"
     if not s.stops:
         return "no stops"
-    return ", ".join(f"{x.depth:g} {unit} {x.minutes} min {x.gas}" +
-                     (" (chamber)" if x.place == "chamber" else "") for x in s.stops)
+    return ", ".join(x.text(unit) for x in s.stops)
 
 
 @FAMILY.rule(

@@ -125,7 +125,7 @@ def test_help_keeps_units_in_brackets(capsys):
 # ---- issue 13: every option given is validated, or refused as not applicable ---------------
 
 SURD_ONLY = ["--surface-interval", "--chamber-depth", "--chamber-compression-rate",
-             "--chamber-air-break"]
+             "--chamber-air-break", "--chamber-second-depth"]
 
 
 @pytest.mark.parametrize("value", ["nan", "-1", "50"])
@@ -144,6 +144,8 @@ def test_surface_decompression_option_without_it_is_refused(capsys, option, valu
     ("--chamber-compression-rate", "nan"), ("--chamber-compression-rate", "-1"),
     ("--chamber-compression-rate", "0.5"), ("--surface-interval", "nan"),
     ("--chamber-depth", "nan"), ("--chamber-air-break", "0/5"),
+    ("--chamber-second-depth", "nan"), ("--chamber-second-depth", "60"),
+    ("--chamber-second-depth", "0"),
 ])
 def test_surface_decompression_options_are_checked(capsys, option, value):
     code, _, err = run([*CONTRACT, "--surface-decompression", "40", option, value], capsys)
@@ -185,3 +187,50 @@ def test_obligation_beyond_the_planner_is_one_line(capsys):
     code, out, err = run(["--depth", "300", "--bottom-time", "600", "--gf", "30/85"], capsys)
     assert code == 2 and out == ""
     assert "beyond the model's range: not computed" in err and err.count("\n") == 1
+
+
+# ---- issue 8: air breaks are visible; the chamber follows the trade's pattern -----------
+
+
+def test_oxygen_stop_prints_its_periods(capsys):
+    args = ["--depth", "130", "--bottom-time", "150", "--deco-gas", "oxygen@30",
+            "--o2-air-break", "30/5"]
+    code, out, err = run(args, capsys)
+    assert code == 0, err
+    line = next(x for x in out.splitlines() if x.strip().startswith("10 fsw"))
+    assert "oxygen" in line and "air 5" in line and "O2 30" in line  # never one oxygen line
+    code, out, err = run([*args, "--json"], capsys)
+    js = json.loads(out)
+    for stop in js["stops"]:  # the contract: every stop has its periods, in order
+        assert [set(p) for p in stop["periods"]] == [{"gas", "minutes"}] * len(stop["periods"])
+        assert sum(p["minutes"] for p in stop["periods"]) == pytest.approx(stop["minutes"])
+    assert any(len(s["periods"]) > 1 for s in js["stops"])
+
+
+@pytest.mark.parametrize(("unit", "depth", "first", "second"), [
+    ("fsw", "130", 50, 40), ("msw", "40", 15, 12)])
+def test_surface_decompression_chamber_pattern(capsys, unit, depth, first, second):
+    code, out, err = run(["--depth", depth, "--unit", unit, "--bottom-time", "90",
+                          "--surface-decompression", "40" if unit == "fsw" else "12", "--json"],
+                         capsys)
+    assert code == 0, err
+    js = json.loads(out)
+    chamber = [s for s in js["stops"] if s["place"] == "chamber"]
+    assert [s["depth"] for s in chamber] == [first, second]
+    assert chamber[0]["periods"] == [{"gas": "oxygen", "minutes": 15}]
+    assert {"gas": "air", "minutes": 5} in chamber[1]["periods"]
+    o2 = sum(p["minutes"] for s in chamber for p in s["periods"] if p["gas"] == "oxygen")
+    assert o2 == 30 * js["chamber_o2_periods"]
+    assert js["surface_decompression"]["chamber_depths"] == [first, second]
+    assert "from memory" in js["surface_decompression"]["pattern"]
+    code, out, err = run(["--depth", depth, "--unit", unit, "--bottom-time", "90",
+                          "--surface-decompression", "40" if unit == "fsw" else "12"], capsys)
+    assert f"chamber oxygen: {js['chamber_o2_periods']:g} period(s) of 30 min" in out
+    assert "O2 15, air 5" in out
+
+
+def test_chamber_depth_shallower_than_the_default_second_keeps_one_depth(capsys):
+    code, out, err = run([*CONTRACT, "--bottom-time", "60", "--surface-decompression", "40",
+                          "--chamber-depth", "30", "--json"], capsys)
+    assert code == 0, err
+    assert {s["depth"] for s in json.loads(out)["stops"] if s["place"] == "chamber"} == {30}

@@ -6,6 +6,8 @@ computed for these checks from the stated conventions and are not published figu
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 
@@ -270,3 +272,126 @@ def test_chamber_compression_rate():
         plan_schedule(ScheduleRequest(**base, surface_decompression=SurfaceDecompression(
             40, 5, 50, compression_rate=0.0)))
     assert exc.value.field == "--chamber-compression-rate"
+
+
+# ------------------------------------------------------------------- air breaks (issue 8)
+
+
+def _o2_dive(bt: float) -> ScheduleRequest:
+    return ScheduleRequest(depth=130, bottom_time_min=bt, deco_gases=(("oxygen", 30),),
+                           o2_air_break=(30, 5), **FSW)
+
+
+def test_oxygen_stops_are_their_periods_and_the_profile_breathes_the_breaks():
+    """A long oxygen stop is its periods (oxygen, air, oxygen), in the JSON and the profile."""
+    r = plan_schedule(_o2_dive(150))
+    long = [s for s in r.stops if s.gas == "oxygen" and s.minutes > 30]
+    assert long, [s.text("fsw") for s in r.stops]
+    for s in r.stops:
+        assert sum(m for _, m in s.breathing) == pytest.approx(s.minutes)
+        js = s.to_dict()
+        assert [(p["gas"], p["minutes"]) for p in js["periods"]] == list(s.breathing)
+    for s in long:
+        gases = [g for g, _ in s.breathing]
+        assert "air" in gases and gases[0] in ("oxygen", "air")  # never one oxygen line
+        assert all(m <= 30 + 1e-9 for g, m in s.breathing if g == "oxygen")
+        assert all(m <= 5 + 1e-9 for g, m in s.breathing if g == "air")
+    # the profile's stop segments are the periods: air segments at the oxygen stop depths
+    air_at_o2 = sum(sg.minutes for sg in r.profile.segments
+                    if sg.label == "stop" and sg.gas.name == "air" and sg.start_depth <= 30)
+    assert air_at_o2 == pytest.approx(sum(m for s in r.stops for g, m in s.breathing
+                                          if g == "air" and s.gas == "oxygen"))
+    assert air_at_o2 >= 5
+
+
+def test_the_profile_gives_back_the_schedule_tensions():
+    """The engine's tissues and the recorded profile breathe the same air breaks."""
+    for req in (_o2_dive(150), ScheduleRequest(
+            depth=130, bottom_time_min=90, **FSW,
+            surface_decompression=SurfaceDecompression(40, 5, 50, second_depth=40))):
+        r = plan_schedule(req)
+        ev = evaluate_profile(r.profile, "zhl16c", 0.3, 0.85, first_stop_depth=r.first_stop_depth)
+        assert ev.final_p_n2 == pytest.approx(r.final_p_n2, rel=1e-9, abs=1e-9)
+        assert ev.surfacing_gf == pytest.approx(r.surfacing_gf, abs=1e-9)
+
+
+def test_air_breaks_lower_the_oxygen_dose():
+    """Oxygen counted on the profile leaves the air breaks out (OTU below continuous oxygen)."""
+    from supervisor.engine import oxygen
+    from supervisor.gas import AIR, OXYGEN
+    from supervisor.profile import Profile
+
+    r = plan_schedule(_o2_dive(150))
+    solid = Profile([replace(sg, gas=OXYGEN) if sg.label == "stop" and sg.start_depth <= 30
+                     and sg.gas == AIR else sg for sg in r.profile.segments], "fsw")
+    assert r.oxygen.otu < oxygen.profile_exposure(solid).otu
+
+
+# ------------------------------------------------------ surface decompression pattern (issue 8)
+
+
+def _surd(bt: float, depth: float = 130, **kw) -> ScheduleRequest:
+    sd = SurfaceDecompression(40, kw.pop("interval", 5), 50, second_depth=kw.pop("second", 40),
+                              **kw)
+    return ScheduleRequest(depth=depth, bottom_time_min=bt, surface_decompression=sd, **FSW)
+
+
+def test_surface_decompression_follows_the_chamber_pattern():
+    """Half a period at 50 fsw, the rest at 40 fsw, 5-min air breaks after full periods."""
+    for bt in (20, 40, 60, 90, 120):
+        r = plan_schedule(_surd(bt))
+        chamber = [s for s in r.stops if s.place == "chamber"]
+        n = int(2 * r.chamber_o2_periods)
+        assert n >= 1
+        assert (chamber[0].depth, chamber[0].minutes, chamber[0].breathing) == \
+            (50, 15, [("oxygen", 15.0)])
+        assert len(chamber) == (1 if n == 1 else 2)
+        if n > 1:
+            later = chamber[1]
+            assert later.depth == 40
+            o2 = sum(m for g, m in later.breathing if g == "oxygen")
+            air = [m for g, m in later.breathing if g == "air"]
+            assert o2 == 15 * (n - 1)
+            assert air == [5.0] * ((n - 1) // 2)  # one break after every full period
+            assert later.minutes == o2 + sum(air)
+        js = r.to_json()
+        assert js["chamber_o2_periods"] == n / 2
+        assert js["surface_decompression"]["chamber_depths"] == [50, 40]
+
+
+def test_surface_decompression_periods_are_the_least_that_clear():
+    """One half-period fewer leaves the model's GF-high ceiling below the surface."""
+    from supervisor.engine import buhlmann as bm
+    from supervisor.engine.evaluate import evaluate_profile as ev_profile
+    from supervisor.periods import chamber_pattern
+    from supervisor.profile import Profile
+
+    r = plan_schedule(_surd(90))
+    n = int(2 * r.chamber_o2_periods)
+    assert n >= 2
+    segs = list(r.profile.segments)
+    chamber_start = next(i for i, sg in enumerate(segs)
+                         if sg.place == "chamber" and sg.label == "stop")
+    for k, clears in ((n, True), (n - 1, False)):
+        prof = Profile(segs[:chamber_start], "fsw")
+        for j, (depth, periods) in enumerate(chamber_pattern(k, 50, 40, 30, 5)):
+            if j:
+                prof.add(depth, 10 / 30, "oxygen", "chamber", "travel")
+            for g, m in periods:
+                prof.add(depth, m, g, "chamber", "stop")
+        ev = ev_profile(prof, "zhl16c", 0.3, 0.85)
+        ceil = bm.ceiling(ev.final_p_n2, ev.final_p_he, bm.load_coefficients("zhl16c"), 0.85)
+        assert bool((ceil <= prof.p_surface_bar + 1e-9).all()) is clears, k
+
+
+def test_longer_dives_need_no_fewer_chamber_periods():
+    periods = [plan_schedule(_surd(bt)).chamber_o2_periods for bt in (30, 60, 90, 120, 150)]
+    assert periods == sorted(periods) and periods[-1] > periods[0]
+
+
+def test_second_chamber_depth_is_validated():
+    with pytest.raises(InputError) as exc:
+        plan_schedule(_surd(60, second=60))
+    assert exc.value.field == "--chamber-second-depth"
+    one = plan_schedule(_surd(90, second=None))  # every period at the first depth
+    assert {s.depth for s in one.stops if s.place == "chamber"} == {50}

@@ -22,8 +22,6 @@ from supervisor.references.build import (
     MSW_SPEC,
     build_document,
     build_tables,
-    chamber_periods,
-    oxygen_minutes,
 )
 from supervisor.resources import tables_dir
 
@@ -54,7 +52,7 @@ def _options(spec, mode):
     if mode == "surd_o2":
         return ["--surface-decompression", f"{spec.surd_leave_water:g}", "--surface-interval",
                 f"{spec.surd_interval:g}", "--chamber-depth", f"{spec.chamber_depth:g}",
-                "--chamber-air-break",
+                "--chamber-second-depth", f"{spec.chamber_second_depth:g}", "--chamber-air-break",
                 f"{spec.chamber_air_break[0]:g}/{spec.chamber_air_break[1]:g}"]
     return []
 
@@ -82,19 +80,20 @@ def test_built_row_equals_schedule_command(built, spec, depth, bt, mode):
         "--last-stop", f"{spec.last_stop:g}", *_options(spec, mode), "--json"])
     assert res.exit_code == 0, res.output
     js = json.loads(res.stdout)
-    assert [(s["depth"], s["minutes"], s["gas"], s["place"]) for s in js["stops"]] == \
+    def listed(s):
+        # the file lists a chamber stop's oxygen minutes; its air breaks are not stop time
+        oxygen = sum(p["minutes"] for p in s["periods"] if p["gas"] == s["gas"])
+        return s["depth"], oxygen if s["place"] == "chamber" else s["minutes"], s["gas"], \
+            s["place"]
+
+    assert [listed(s) for s in js["stops"]] == \
         [(s.depth, s.minutes, s.gas, s.place) for s in sched.stops]
     assert sched.stops  # these rows are decompression dives
     if mode == "surd_o2":
-        # no total_ascent in this mode (see the conventions); the note carries the total
-        assert sched.total_ascent is None
         assert f"{js['total_ascent_min']:g} min from leaving the bottom" in row.note
-        chamber = sum(s["minutes"] for s in js["stops"] if s["place"] == "chamber")
-        assert sched.chamber_o2_periods == chamber_periods(
-            oxygen_minutes(chamber, spec.chamber_air_break), spec.chamber_air_break[0])
+        assert sched.chamber_o2_periods == js["chamber_o2_periods"]
         assert {s.place for s in sched.stops} == {"water", "chamber"}
-    else:
-        assert sched.total_ascent == pytest.approx(js["total_ascent_min"], abs=0.006)
+    assert sched.total_ascent == pytest.approx(js["total_ascent_min"], abs=0.006)
 
 
 def test_build_is_one_batch_per_pass_and_mode(monkeypatch):
@@ -112,15 +111,6 @@ def test_build_is_one_batch_per_pass_and_mode(monkeypatch):
     assert calls[0] == 4 and len(calls) == 4 and calls[1] >= len(rows) > 10
     assert calls[2] == len(rows)
     assert calls[3] == sum(r["depth"] >= spec.chamber_depth for r in rows) < len(rows)
-
-
-def test_oxygen_minutes_and_chamber_periods():
-    # 30 min oxygen / 5 min air, breaks counted in the stop minutes, cycle run on
-    assert oxygen_minutes(12, (30, 5)) == 12
-    assert oxygen_minutes(33, (30, 5)) == 30  # left within the first break
-    assert oxygen_minutes(82, (30, 5)) == 72  # two full cycles and 12 min
-    assert [chamber_periods(m, 30) for m in (0, 1, 15, 15.5, 30, 31, 72)] == \
-        [0, 0.5, 0.5, 1.0, 1.0, 1.5, 2.5]
 
 
 def test_build_layout_and_labels(built):
@@ -156,9 +146,18 @@ def test_build_layout_and_labels(built):
             chamber = [s for s in r.surd_o2.stops if s.place == "chamber"]
             assert r.surd_o2.stops == water + chamber
             assert all(s.depth >= spec.surd_leave_water and s.gas == "air" for s in water)
-            assert all(s.depth <= spec.chamber_depth and s.gas == "oxygen" and
-                       s.depth % spec.stop_step == 0 for s in chamber)
-            assert r.surd_o2.total_ascent is None and r.surd_o2.chamber_o2_periods is not None
+            if not r.surd_o2.stops:
+                continue
+            # the trade's pattern: half a period at the first chamber depth, the rest at the
+            # second, whole or half 30-min periods of oxygen (air breaks not stop time)
+            periods = r.surd_o2.chamber_o2_periods
+            assert periods is not None and periods >= 0.5 and (2 * periods).is_integer()
+            want = [(spec.chamber_depth, 15.0)]
+            if periods > 0.5:
+                want.append((spec.chamber_second_depth, 30 * periods - 15))
+            assert [(s.depth, s.minutes) for s in chamber] == want
+            assert all(s.gas == "oxygen" for s in chamber)
+            assert (r.surd_o2.total_ascent is None) == (not water)
         first = [next(r for r in t.rows if r.depth == d) for d in spec.depths]
         # each depth opens with its no-stop limit: no stops in any mode
         assert all(not s.stops for r in first for s in r.schedules().values())
@@ -199,3 +198,34 @@ def test_build_document_has_no_date_or_version():
     text = json.dumps(doc)
     assert __version__ not in text
     assert tomllib.loads(build_mod.dumps_table(doc)) == doc
+
+
+def test_a_longer_or_deeper_row_never_lists_less_surface_decompression():
+    """Where the model gives a longer or deeper dive less in this mode (its gradient-factor
+    line moves with the first stop), the row is raised to its neighbour's, stop by stop,
+    and says so; every other row is the engine's (this project's model, no outside table)."""
+    spec = replace(FSW_SPEC, depths=(85.0, 90.0, 95.0))
+    doc = build_document(spec)
+    t = load_table_doc(doc, spec)
+    raised = [r for r in t.rows if "surface decompression raised" in r.note]
+    assert raised  # 90 fsw / 50 min and 95 fsw / 45 min on this grid
+    for r in raised:
+        eng = plan_schedule(build_mod._request(spec, r.depth, r.bottom_time, "surd_o2"))
+        water = {s.depth: s.minutes for s in eng.stops if s.place == "water"}
+        listed = {s.depth: s.minutes for s in r.surd_o2.stops if s.place == "water"}
+        assert all(listed.get(d, 0) >= m for d, m in water.items())
+        assert r.surd_o2.chamber_o2_periods >= eng.chamber_o2_periods
+    for depth in spec.depths:
+        rows = [r for r in t.rows if r.depth == depth and r.surd_o2 is not None]
+        times = [r.surd_o2.stop_minutes for r in rows]
+        assert times == sorted(times)
+
+
+def load_table_doc(doc, spec):
+    from pathlib import Path
+
+    from supervisor.references.loader import inspect_document
+
+    table, issues = inspect_document(doc, Path(f"{spec.name}.toml"), strict=True)
+    assert table is not None, issues
+    return table

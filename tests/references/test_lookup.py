@@ -149,7 +149,36 @@ def test_computed_tables_give_every_mode(name):
     assert all(s.gas == "oxygen" for s in surd.schedule.stops if s.place == "chamber")
     assert surd.schedule.chamber_o2_periods >= 0.5
     assert surd.to_dict()["chamber_o2_periods"] == surd.schedule.chamber_o2_periods
-    assert surd.to_dict()["total_ascent_min"] is None  # the row note carries the total
+    # the trade's chamber pattern: the first half-period at the first chamber depth
+    chamber = [s for s in surd.schedule.stops if s.place == "chamber"]
+    assert (chamber[0].depth, chamber[0].minutes) == ((50, 15) if unit == "fsw" else (15, 15))
+    assert surd.to_dict()["total_ascent_min"] == surd.schedule.total_ascent is not None
+    # every stop of the look-up carries its breathing periods
+    for s in surd.to_dict()["stops"]:
+        assert sum(p["minutes"] for p in s["periods"] if p["gas"] == s["gas"]) == s["minutes"]
+
+
+def test_lookup_stops_show_their_air_breaks(deco):
+    """Table stops whose minutes leave the air breaks out get them back as periods."""
+    from supervisor.references.lookup import schedule_periods
+    from supervisor.references.schema import Schedule, Stop
+
+    class Conv:  # a table's conventions: 30 min oxygen, 5 min air, breaks not stop time
+        o2_period_min, air_break_min, air_breaks_in_stop_time = 30.0, 5.0, False
+        chamber_o2_period_min, chamber_air_break_min = 30.0, 5.0
+
+    sched = Schedule(stops=[Stop(depth=30, minutes=20, gas="oxygen"),
+                            Stop(depth=20, minutes=35, gas="oxygen"),
+                            Stop(depth=50, minutes=15, gas="oxygen", place="chamber"),
+                            Stop(depth=40, minutes=45, gas="oxygen", place="chamber")])
+    assert schedule_periods(Conv, sched) == (
+        (("oxygen", 20.0),),
+        (("oxygen", 10.0), ("air", 5.0), ("oxygen", 25.0)),  # a break after 30 min of oxygen
+        (("oxygen", 15.0),),
+        (("oxygen", 15.0), ("air", 5.0), ("oxygen", 30.0)),
+    )
+    Conv.air_breaks_in_stop_time = True  # breaks inside the stop minutes: the cycle runs on
+    assert schedule_periods(Conv, sched)[1] == (("oxygen", 10.0), ("air", 5.0), ("oxygen", 20.0))
 
 
 def test_computed_table_has_no_surface_decompression_shallower_than_the_chamber():

@@ -122,3 +122,15 @@ def test_stops_line() -> None:
                                           "oxygen (O2 30, air 5 min)")
     assert f.stops_line([], "msw") == "no decompression stops"
     assert f.stops_line(None, "msw") == f.NOT_COMPUTED
+
+
+def test_a_stop_on_one_gas_prints_its_gas_and_a_stop_with_breaks_its_periods() -> None:
+    """Every stop of the check carries periods; only a stop of several shows them."""
+    one = {"depth": 50, "minutes": 15, "gas": "oxygen", "place": "chamber",
+           "periods": [{"gas": "oxygen", "minutes": 15}]}
+    assert f.stop_periods(one) is None
+    assert f.stops_line([one], "fsw") == "chamber 50 fsw 15 min oxygen"
+    two = {**one, "minutes": 35, "periods": [{"gas": "oxygen", "minutes": 15},
+                                             {"gas": "air", "minutes": 5},
+                                             {"gas": "oxygen", "minutes": 15}]}
+    assert f.stop_periods(two) == "O2 15, air 5, O2 15 min"
