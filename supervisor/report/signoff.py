@@ -21,6 +21,7 @@ from typing import Any
 
 from reportlab.platypus import CondPageBreak, Flowable, Spacer, Table
 
+from supervisor import constants as C
 from supervisor.report.blocks import (
     SignerNote,
     m,
@@ -206,6 +207,50 @@ def cited_for(citations: Sequence[object], jurisdiction: object) -> str:
     return "; ".join(own + [f"cross-reference: {c}" for c in cits if c not in own])
 
 
+def _deep_or_decompression(dive: Mapping[str, Any], unit: str) -> bool:
+    """Deeper than 100 fsw, decompression planned, or stops in the model's or table's schedule."""
+    depth = dive.get("max_depth")
+    fsw = (float(depth) if unit == "fsw" else float(depth) * C.BAR_PER_MSW / C.BAR_PER_FSW) \
+        if is_number(depth) else None
+    if fsw is None or fsw > 100 + 1e-9:
+        return True
+    if dive.get("decompression") not in ("none", None) or dive.get("proposed_stops"):
+        return True
+    for key in ("model_schedule", "reference_schedule"):
+        sec = m(dive.get(key))
+        if sec.get("stops") or sec.get("outside_table") or (key == "model_schedule"
+                                                             and sec.get("error")):
+            return True
+    return False
+
+
+def _condition(name: str, dive: Mapping[str, Any], unit: str) -> bool:
+    """Whether ``dive`` may meet the named condition (unknown counts as met)."""
+    if name == "deep-or-decompression":
+        return _deep_or_decompression(dive, unit)
+    if name == "mixed-gas":
+        return str(dive.get("mode")) not in ("scuba", "surface-supplied-air")
+    if name == "chamber-required":
+        need = m(dive.get("gas_supply")).get("chamber_required")
+        return need is not False
+    return True  # "heavy-gear" and anything the check does not state
+
+
+def required(item: Mapping[str, Any], record: Mapping[str, Any], dives: Sequence[str]) -> bool:
+    """Whether an item with ``required_if`` conditions applies to any of ``dives``.
+
+    An item without conditions is always required; so is one whose conditions cannot
+    be judged (a dive missing from the record, a depth that is not a number).
+    """
+    conds = [str(c) for c in item.get("required_if") or []]
+    if not conds:
+        return True
+    unit = str(record.get("unit"))
+    by_id = {str(m(d).get("id")): m(d) for d in record.get("dives") or []}
+    chosen = [by_id.get(i) for i in dives] or [None]
+    return any(d is None or any(_condition(c, d, unit) for c in conds) for d in chosen)
+
+
 def _item_cells(item: Mapping[str, Any], record: Mapping[str, Any]) -> list[object]:
     body = [para(text(item.get("text")), ITEM)]
     if item.get("applies_when"):
@@ -237,7 +282,8 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
             title = f"Pre-dive checklist: mode not recognised ({given}), every item shown"
         out.append(para(title, H2))
         intro = ("Dives: " + ", ".join(dives) + ". ") if dives else ""
-        home = _HOME_CFR.get(str(m(record.get("job")).get("jurisdiction")))
+        where_ = m(record.get("job")).get("jurisdiction")
+        home = _HOME_CFR.get(str(where_))
         rule_set = (f" This job is under {home}: its paragraphs come first; a paragraph of the "
                     "other rule set is marked as a cross-reference." if home else "")
         out.append(rich([(intro, True), (text(section.get("note")) + rule_set, False),
@@ -248,9 +294,14 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
         widths = [0.045 * w, 0.045 * w, 0.66 * w, 0.25 * w]
         out.append(grid([[para("done", CELL_BOLD), para("n/a", CELL_BOLD), para("Item", CELL_BOLD),
                           para("Citation (source status)", CELL_BOLD)]], widths, repeat=False))
+        skipped: list[Mapping[str, Any]] = []
         for name, items in _item_groups(group.get("items") or []):
+            kept = [i for i in items if required(i, record, dives)]
+            skipped += [i for i in items if i not in kept]
+            if not kept:
+                continue
             rows: list[list[object]] = [[para(name, CELL_BOLD), "", "", ""]]
-            for item in items:
+            for item in kept:
                 rows.append([TickBox(), TickBox(), *_item_cells(item, record)])
             # one table per group: its heading repeats if the group runs onto a new page,
             # and a group never starts in the last few lines of a page
@@ -258,6 +309,17 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
             out.append(grid(rows, widths, extra=[("SPAN", (0, 0), (-1, 0)),
                                                  ("BACKGROUND", (0, 0), (-1, 0), PANEL_FILL),
                                                  ("ALIGN", (0, 1), (1, -1), "CENTER")]))
+        if skipped:
+            out.append(Spacer(1, 3))
+            out.append(rich([("Not required for these dives", True),
+                             (" (by the check: within 100 fsw, no decompression, no mixed gas, "
+                              "no chamber required); confirm on site: ", False)]
+                            + [(f"{text(i.get('text')).split(':')[0].split(';')[0].rstrip('.')}"
+                                f" ({cited_for(i.get('citations') or [], where_)}; applies "
+                                f"when {text(i.get('applies_when'))}){'; ' if n else '.'}",
+                                False)
+                               for n, i in reversed(list(enumerate(reversed(skipped))))],
+                            SMALL))
     return out
 
 

@@ -42,6 +42,11 @@ _MODE_ALIASES = {
 }
 
 
+#: Conditions an item's ``required_if`` may name (judged in supervisor.report.signoff).
+REQUIRED_IF: tuple[str, ...] = ("deep-or-decompression", "mixed-gas", "heavy-gear",
+                                "chamber-required")
+
+
 class TemplateError(SupervisorError, ValueError):
     """A bundled template that is missing or malformed."""
 
@@ -59,6 +64,7 @@ class ChecklistItem:
     applies_when: str | None = None
     status_note: str | None = None
     stated_by: tuple[str, ...] = ()
+    required_if: tuple[str, ...] = ()
 
     def to_json(self) -> dict[str, object]:
         """Return the item as a JSON-ready dict."""
@@ -71,6 +77,7 @@ class ChecklistItem:
             "status_note": self.status_note,
             "applies_when": self.applies_when,
             "stated_by": list(self.stated_by),
+            "required_if": list(self.required_if),
         }
 
 
@@ -186,6 +193,10 @@ def load_checklist(base: Path | None = None) -> Checklist:
                 isinstance(p, str) and p.strip() for p in stated_by):
             raise TemplateError(f"{where} ({item_id}): 'stated_by' must list plan paths such as "
                                 "'site.resuscitator'")
+        required_if = entry.get("required_if", [])
+        if not isinstance(required_if, list) or not set(required_if) <= set(REQUIRED_IF):
+            raise TemplateError(f"{where} ({item_id}): 'required_if' must list conditions of "
+                                f"{REQUIRED_IF}")
         items.append(
             ChecklistItem(
                 id=item_id,
@@ -197,6 +208,7 @@ def load_checklist(base: Path | None = None) -> Checklist:
                 applies_when=_text(entry, "applies_when", where, required=False),
                 status_note=_text(entry, "status_note", where, required=False),
                 stated_by=tuple(stated_by),
+                required_if=tuple(required_if),
             )
         )
     return Checklist(

@@ -134,3 +134,25 @@ def test_signature_section_states_the_signer(check_result: dict[str, Any]) -> No
 def test_item_citations_follow_the_jurisdiction(jurisdiction: str, shown: str) -> None:
     """A USCG job cites 46 CFR 197 first; the other rule set is labelled a cross-reference."""
     assert signoff.cited_for(["29 CFR 1910.420(a)", "46 CFR 197.420"], jurisdiction) == shown
+
+
+def test_items_the_check_shows_not_required_are_listed_in_one_line() -> None:
+    """Issue 8 §3 (signal, not noise): a chamber item on a job of shallow no-stop dives is not a
+    tick box; it is named once under "Not required for these dives", with its citation."""
+    from supervisor.report.signoff import required
+
+    item = {"required_if": ["deep-or-decompression", "mixed-gas"]}
+    shallow = {"id": "D1", "max_depth": 12, "decompression": "none", "mode":
+               "surface-supplied-air", "proposed_stops": [],
+               "model_schedule": {"stops": [], "error": None}}
+    rec = {"unit": "msw", "dives": [shallow]}
+    assert not required(item, rec, ["D1"])
+    deep = dict(shallow, max_depth=31)  # 31 msw = 101.7 fsw (1 msw = 0.1 bar, 1 fsw = 1.01325/33)
+    assert required(item, {"unit": "msw", "dives": [deep]}, ["D1"])
+    assert required(item, {"unit": "msw", "dives": [dict(shallow, decompression="in-water")]},
+                    ["D1"])
+    assert required(item, {"unit": "msw", "dives": [dict(
+        shallow, model_schedule={"stops": [{"depth": 3}]})]}, ["D1"])
+    assert required(item, rec, ["D9"])  # a dive the record lacks: cannot judge, keep it
+    assert required({"required_if": ["heavy-gear"]}, rec, ["D1"])  # not stated: keep it
+    assert required({}, rec, ["D1"])
