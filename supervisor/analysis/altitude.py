@@ -272,9 +272,19 @@ class AltitudeWait:
 
     @property
     def basis_text(self) -> str:
-        """The minimum with what it applies to and its source, e.g. "18 h after ..."."""
-        tail = "contractor policy" if self.from_policy else "common guidance, from memory"
+        """The minimum with what it applies to and its source, e.g. "18 h after ... (common
+        guidance)"; the status is ``source_status``."""
+        tail = "contractor policy" if self.from_policy else "common guidance"
         return f"{self.hours:g} h {self.guidance.text} ({tail})"
+
+    @property
+    def basis_said(self) -> str:
+        """:attr:`basis_text` with its status in words, for a message."""
+        if self.from_policy:
+            return self.basis_text
+        status = "from memory" if self.guidance.source_status == "FROM MEMORY" else \
+            self.guidance.source_status
+        return self.basis_text[:-1] + f", {status})"
 
     def to_json(self, model_basis: str) -> dict[str, Any]:
         """The diver's entry in the check's ``altitude`` list (keys of both contracts)."""
