@@ -733,6 +733,10 @@ class Dive(_Section):
     stage: bool = Field(False, description="In-water stage provided")
     standby_hose: bool = Field(False, description="Extra hose for the standby diver")
     direct_ascent_possible: bool = Field(True, description="The diver can ascend directly")
+    no_space_for_reserve: bool = Field(
+        False, description="Physical space does not permit a diver-carried reserve (the "
+        "exception of 29 CFR 1910.425(c)(6) and 1910.426(c)(9))"
+    )
     start: DateTime | None = Field(
         None, description="Planned time of leaving the surface, an ISO date-time such as "
         "2026-05-14T08:30 (the site's local time, or with a UTC offset); times the wait "

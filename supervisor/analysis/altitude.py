@@ -49,7 +49,7 @@ from typing import Any
 
 from supervisor.analysis.assumptions import CABIN_ALTITUDE_M, COMPUTE_ERRORS
 from supervisor.analysis.figures import time_to_altitude
-from supervisor.analysis.results import DiveAnalysis, PlanAnalysis, _err
+from supervisor.analysis.results import DiveAnalysis, DiverDay, PlanAnalysis, _err
 from supervisor.plan import Plan
 from supervisor.units import altitude_pressure
 
@@ -272,9 +272,19 @@ class AltitudeWait:
 
     @property
     def basis_text(self) -> str:
-        """The minimum with what it applies to and its source, e.g. "18 h after ..."."""
-        tail = "contractor policy" if self.from_policy else "common guidance, from memory"
+        """The minimum with what it applies to and its source, e.g. "18 h after ... (common
+        guidance)"; the status is ``source_status``."""
+        tail = "contractor policy" if self.from_policy else "common guidance"
         return f"{self.hours:g} h {self.guidance.text} ({tail})"
+
+    @property
+    def basis_said(self) -> str:
+        """:attr:`basis_text` with its status in words, for a message."""
+        if self.from_policy:
+            return self.basis_text
+        status = "from memory" if self.guidance.source_status == "FROM MEMORY" else \
+            self.guidance.source_status
+        return self.basis_text[:-1] + f", {status})"
 
     def to_json(self, model_basis: str) -> dict[str, Any]:
         """The diver's entry in the check's ``altitude`` list (keys of both contracts)."""
@@ -395,6 +405,15 @@ def _model_min(plan: Plan, last: DiveAnalysis, altitude_m: float) -> tuple[float
     return t, None
 
 
+def _cabin_min(day: DiverDay) -> tuple[float | None, str | None]:
+    """The analysis's own time to an 8,000 ft cabin [min] (inf: beyond its search)."""
+    t = day.time_to_altitude_min[CABIN_ALTITUDE_M]
+    if t is not None:
+        return t, None
+    why = day.errors.get("altitude")
+    return (None, why) if why else (math.inf, None)
+
+
 def _travel(plan: Plan, w: AltitudeWait, last: DiveAnalysis, i: int) -> Travel:
     t = plan.altitude_travel[i]
     alt_m = plan.altitude_to_m(t.altitude)
@@ -473,7 +492,8 @@ def altitude_waits(plan: Plan, pa: PlanAnalysis,
         last = dives[-1]
         w = AltitudeWait(name, last.id, basis, guide, policy_h, hours)
         w.notes, w.reviews = notes, reviews
-        model, w.model_error = _model_min(plan, last, CABIN_ALTITUDE_M)
+        model, w.model_error = _cabin_min(day) if CABIN_ALTITUDE_M in day.time_to_altitude_min \
+            else _model_min(plan, last, CABIN_ALTITUDE_M)
         if model is not None and math.isinf(model):
             reviews.append("the model's time to an 8,000 ft cabin is longer than its 72 h search: "
                          "take the wait from the contractor's manual and a diving medical "

@@ -218,7 +218,7 @@ def flying(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 def _wait_text(ctx: CheckContext, w: alt.AltitudeWait) -> str:
     parts = [f"{w.diver}: at least {alt.hours_minutes(w.hours * 60)} on the surface after "
              f"{w.after_dive} before any ascent to altitude (a flight, or a drive higher than the "
-             f"site): {w.basis_text}"]
+             f"site): {w.basis_said}"]
     if w.model_cabin_min is not None:
         parts.append(f"the model gives longer to an 8,000 ft cabin: "
                      f"{alt.hours_minutes(w.model_cabin_min)} (GF high {ctx.policy.gf_high:g} %)")
@@ -262,7 +262,7 @@ def _travel_finding(r: Rule, w: alt.AltitudeWait, t: alt.Travel,
     if t.ok is False:
         return r.breach(
             f"{where}: {t.reason} (earliest departure {alt.clock(t.earliest)}; "  # type: ignore[arg-type]
-            f"{w.basis_text}); a departure before the minimum is refused: the minimum guards "
+            f"{w.basis_said}); a departure before the minimum is refused: the minimum guards "
             "against immediate harm",
             measured=on_surface, kind="policy",
             **{**kw, "citation": f"{w.source}; a default guarding against immediate harm"},
@@ -271,7 +271,7 @@ def _travel_finding(r: Rule, w: alt.AltitudeWait, t: alt.Travel,
         if t.earliest is None:
             return r.review(f"needs review: {where}: {t.reason}; at least "
                             f"{alt.hours_minutes(w.hours * 60)} after surfacing from "
-                            f"{w.after_dive} ({w.basis_text})", measured=NOT_STATED, **kw)
+                            f"{w.after_dive} ({w.basis_said})", measured=NOT_STATED, **kw)
         model = (f"{alt.hours_minutes(t.model_wait_min)}, earliest "
                  f"{alt.clock(t.model_earliest)}" if t.model_wait_min is not None  # type: ignore[arg-type]
                  else "longer than its 72 h search")

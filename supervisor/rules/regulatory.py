@@ -58,6 +58,12 @@ LOCATION_RESERVE = "a dive-location reserve (gas_supply.secondary)"
 READY = "a chamber ready at the site"
 SUPERVISOR = "a team member with the supervisor role"
 ENTRY_DIVER = "a diver at the entry point (dive.entry_diver)"
+#: The exception "where physical space does not permit" a diver-carried reserve
+#: (29 CFR 1910.425(c)(6), 1910.426(c)(9)), stated by the plan.
+NO_SPACE_OK = ("no diver-carried reserve: the plan states physical space does not permit one "
+               "(dives[].no_space_for_reserve), the regulation's exception")
+NO_SPACE_HINT = (" (where physical space does not permit one, the regulation excepts it: state "
+                 "dives[].no_space_for_reserve)")
 
 
 def chamber_state(ctx: CheckContext) -> str:
@@ -459,15 +465,18 @@ def osha_ssa_stage(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     jurisdictions=OSHA,
 )
 def osha_ssa_no_direct_ascent(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """A diver-carried reserve where the layout prevents direct ascent, except heavy gear."""
+    """A diver-carried reserve where the layout prevents direct ascent, except with heavy gear
+    or where physical space does not permit one."""
     for d in ctx.dives(SS_AIR):
         if d.direct_ascent_possible:
             continue
         if d.heavy_gear or ctx.has_bailout(d):
             yield r.ok("no direct ascent: reserve listed or heavy gear worn", dive=d.id)
+        elif d.no_space_for_reserve:
+            yield r.ok(NO_SPACE_OK, dive=d.id)
         else:
             yield r.breach(
-                "no direct ascent and no diver-carried reserve listed",
+                f"no direct ascent and no diver-carried reserve listed{NO_SPACE_HINT}",
                 dive=d.id,
                 measured=NONE,
                 limit=RESERVE,
@@ -604,7 +613,8 @@ def osha_mixed_stage(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     jurisdictions=OSHA,
 )
 def osha_mixed_diver_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Diver-carried reserve deeper than 100 fsw, outside NDL or without direct ascent."""
+    """Diver-carried reserve deeper than 100 fsw, outside NDL or without direct ascent, except
+    with heavy gear or where physical space does not permit one ((c)(9))."""
     for d in ctx.dives(*MIXED):
         st = mixed_status(d, "VERIFIED")
         if not (_deep_or_deco(ctx, d) or not d.direct_ascent_possible):
@@ -613,9 +623,11 @@ def osha_mixed_diver_reserve(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.ok("heavy gear: diver-carried reserve not required", dive=d.id, status=st)
         elif ctx.has_bailout(d):
             yield r.ok("diver-carried reserve listed", dive=d.id, status=st)
+        elif d.no_space_for_reserve:
+            yield r.ok(NO_SPACE_OK, dive=d.id, status=st)
         else:
             yield r.breach(
-                f"no diver-carried reserve listed for {d.diver}",
+                f"no diver-carried reserve listed for {d.diver}{NO_SPACE_HINT}",
                 dive=d.id,
                 status=st,
                 measured=NONE,

@@ -167,14 +167,18 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             bad.append(
                 r.breach("neither a stage nor a bell", dive=d.id, measured=NONE, limit=STAGE)
             )
-        if d.in_water_stop_min > 120 and d.bell == "none":
+        exception = _bell_exception(d, confined)
+        if d.in_water_stop_min > 120 and d.bell == "none" and not exception:
             bad.append(
                 r.breach(
-                    f"{d.in_water_stop_min:g} min in-water decompression and no bell",
+                    f"{d.in_water_stop_min:g} min in-water decompression and no bell (the "
+                    "exceptions, a heavyweight outfit or a physically confining space, do not "
+                    "apply)",
                     dive=d.id,
                     measured=d.in_water_stop_min,
                     limit=120.0,
                     unit="min",
+                    citation="46 CFR 197.432(e)(4)",
                 )
             )
         if not (d.tender and d.tender != d.diver):
@@ -197,8 +201,13 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                     dive=d.id,
                     measured=NONE,
                     limit=RESERVE,
+                    citation="46 CFR 197.432(e)(7)",
                 )
             )
+        if d.in_water_stop_min > 120 and d.bell == "none" and exception:
+            yield r.ok(f"{d.in_water_stop_min:g} min in-water decompression without a bell: "
+                       f"allowed with {exception}", dive=d.id, measured=d.in_water_stop_min,
+                       limit=120.0, unit="min", citation="46 CFR 197.432(e)(4)")
         yield from bad or [
             r.ok(
                 "secondary supply, chamber, stage or bell, tender, standby and "
@@ -206,6 +215,13 @@ def uscg_ss_air(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 dive=d.id,
             )
         ]
+
+
+def _bell_exception(d: Dive, confined: bool) -> str:
+    """The exception to the bell rules of 46 CFR 197.432(e)(4) and 197.434(c) that applies."""
+    if d.heavy_gear:
+        return "a heavyweight outfit"
+    return "a physically confining space" if confined else ""
 
 
 @FAMILY.rule(
@@ -239,15 +255,17 @@ def uscg_ss_entry(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 
 @FAMILY.rule(
     "uscg-434",
-    title="Mixed gas: chamber or closed bell, stage, bells by depth, standby, two supplies",
+    title="Mixed gas: chamber or closed bell, stage, bells by depth, tender, standby, two supplies",
     citation="46 CFR 197.434",
     source_status="VERIFIED",
     jurisdictions=USCG,
 )
 def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     """Chamber or closed bell ready; stage unless a bell; bell > 220 fsw or > 120 min in-water
-    decompression; closed bell > 300 fsw; standby; primary and secondary gas."""
+    decompression unless heavyweight or confining space (c); closed bell > 300 fsw unless
+    confining space (d); a separate tender per diver (e); standby; primary and secondary gas."""
     ch, gs = ctx.plan.chamber, ctx.plan.gas_supply
+    confined = ctx.plan.site.confined_space
     for d in ctx.dives(*MIXED):
         st = mixed_status(d, "VERIFIED")
         fsw = ctx.fsw(d.max_depth)
@@ -272,26 +290,50 @@ def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                     limit=STAGE,
                 )
             )
-        if (fsw > 220 or d.in_water_stop_min > 120) and d.bell == "none":
+        exception = _bell_exception(d, confined)
+        needs_bell = fsw > 220 or d.in_water_stop_min > 120
+        if needs_bell and d.bell == "none" and not exception:
             bad.append(
                 r.breach(
-                    "deeper than 220 fsw or over 120 min in-water decompression without a bell",
+                    "deeper than 220 fsw or over 120 min in-water decompression without a bell "
+                    "(the exceptions, a heavyweight outfit or a physically confining space, do "
+                    "not apply)",
                     dive=d.id,
                     measured=d.max_depth,
                     limit=ctx.limit(220),
                     unit=ctx.unit,
                     status=st,
+                    citation="46 CFR 197.434(c)",
                 )
             )
-        if fsw > 300 and d.bell != "closed":
+        elif needs_bell and d.bell == "none":
+            yield r.ok(f"no bell: allowed with {exception}", dive=d.id, status=st,
+                       citation="46 CFR 197.434(c)")
+        if fsw > 300 and d.bell != "closed" and not confined:
             bad.append(
                 r.breach(
-                    "deeper than 300 fsw without a closed bell",
+                    "deeper than 300 fsw without a closed bell (the exception, a physically "
+                    "confining space, does not apply)",
                     dive=d.id,
                     measured=d.max_depth,
                     limit=ctx.limit(300),
                     unit=ctx.unit,
                     status=st,
+                    citation="46 CFR 197.434(d)",
+                )
+            )
+        elif fsw > 300 and d.bell != "closed":
+            yield r.ok("no closed bell deeper than 300 fsw: allowed in a physically confining "
+                       "space", dive=d.id, status=st, citation="46 CFR 197.434(d)")
+        if not (d.tender and d.tender != d.diver):
+            bad.append(
+                r.breach(
+                    "no separate tender named for this diver",
+                    dive=d.id,
+                    status=st,
+                    measured=d.tender or NONE,
+                    limit=TENDER,
+                    citation="46 CFR 197.434(e)",
                 )
             )
         if ctx.standby_for(d) is None:
@@ -331,7 +373,8 @@ def uscg_mixed(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     jurisdictions=USCG,
 )
 def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """More than the primary supply and a diver-carried reserve; standby hose with heavy gear."""
+    """More than the primary supply and a diver-carried reserve (the standby diver's hose with
+    a heavyweight outfit applies at any depth: ``uscg-346c``)."""
     gs = ctx.plan.gas_supply
     for d in ctx.dives(*SURFACE_SUPPLIED):
         if not (ctx.fsw(d.max_depth) > 130 or ctx.outside_ndl(d) or d.mode in MIXED):
@@ -346,13 +389,23 @@ def uscg_supply(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             yield r.ok("secondary supply on site", dive=d.id)
         yield r.need(ctx.has_bailout(d), f"a diver-carried reserve for {d.diver}", dive=d.id)
+
+
+@FAMILY.rule(
+    "uscg-346c",
+    title="Surface-supplied heavyweight outfit: an extra hose for the standby diver, any depth",
+    citation="46 CFR 197.346(c)",
+    source_status="VERIFIED",
+    jurisdictions=USCG,
+)
+def uscg_heavy_hose(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """Every surface-supplied operation with a heavyweight outfit has an extra breathing-gas
+    hose, with the tools to attach it, available to the standby diver, at any depth."""
+    for d in ctx.dives(*SURFACE_SUPPLIED):
         if d.heavy_gear:
-            yield r.need(
-                d.standby_hose,
-                "a spare hose for the standby diver (heavy gear)",
-                dive=d.id,
-                status="FROM MEMORY",
-            )
+            yield r.need(d.standby_hose, "an extra breathing-gas hose, with the tools to attach "
+                         "it, for the standby diver (heavyweight outfit, any depth; "
+                         "dives[].standby_hose)", dive=d.id)
 
 
 def _uscg_chamber_needed(ctx: CheckContext, d: Dive) -> bool:

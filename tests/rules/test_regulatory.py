@@ -888,3 +888,26 @@ def test_osha_425_c2_confined_air_dive_needs_an_entry_diver(base, run):
     assert (f.severity, f.citation, f.source_status) == ("warn", "29 CFR 1910.425(c)(2)",
                                                          "FROM MEMORY")
     assert run(base(), FAMILY, "osha-425-c2") == []  # not a confined space: nothing to say
+
+
+def test_osha_426_c9_no_space_for_a_reserve(base, run):
+    """29 CFR 1910.426(c)(9) (full text, VERIFIED): the diver-carried reserve is not required
+    where physical space does not permit one."""
+    d = _heliox(base)
+    d["gas_supply"]["bailout"] = []
+    f = _one_bad(run(d, FAMILY, "osha-426-c8"))
+    assert f.severity == "fail" and "no_space_for_reserve" in f.message
+    d["dives"][0]["no_space_for_reserve"] = True
+    got = run(d, FAMILY, "osha-426-c8")
+    _all_pass(got)
+    assert "physical space does not permit" in got[0].message
+
+
+def test_osha_425_c6_no_space_for_a_reserve(base, run):
+    """29 CFR 1910.425(c)(6) (directive text, VERIFIED): no direct ascent needs a reserve,
+    except with heavy gear or where space does not permit."""
+    d = _c.dive(base(), direct_ascent_possible=False)
+    d["gas_supply"]["bailout"] = []
+    assert _one_bad(run(d, FAMILY, "osha-425-c6")).severity == "fail"
+    d["dives"][0]["no_space_for_reserve"] = True
+    _all_pass(run(d, FAMILY, "osha-425-c6"))

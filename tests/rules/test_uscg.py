@@ -218,6 +218,10 @@ CASES: dict[str, Case] = {
         failing=lambda _: _set(_u(), "site", confined_space=True),
         measured="none", limit="a diver at the entry point (dive.entry_diver)",
         citation="46 CFR 197.432(d)"),
+    "uscg-346c": Case(
+        passing=lambda _: _u(heavy_gear=True, standby_hose=True),
+        failing=lambda _: _u(heavy_gear=True, standby_hose=False),
+        measured="no", limit="yes", citation="46 CFR 197.346(c)"),
     "uscg-434": Case(
         passing=lambda _: _hx(), failing=lambda _: _no_secondary(_hx()),
         measured="none", limit="a dive-location reserve (gas_supply.secondary)",
@@ -277,3 +281,62 @@ def test_uscg_432_d_confined_space_entry_diver(uscg, run):
     assert (f.severity, f.measured) == ("fail", "none")
     d["dives"][0]["entry_diver"] = "Stan Standby"
     _all_pass(run(d, FAMILY, "uscg-432-d"))
+
+
+_LONG = dict(max_depth=140, bottom_time_min=20, stage=True, decompression="in-water",
+             stops=[{"depth": 20, "minutes": 60}, {"depth": 10, "minutes": 70}])
+
+
+def _bell_findings(findings):
+    return [f for f in findings if "bell" in f.message and "stage" not in f.message]
+
+
+@pytest.mark.parametrize(("kw", "site", "words"), [
+    ({"heavy_gear": True}, {}, "a heavyweight outfit"),
+    ({}, {"confined_space": True}, "a physically confining space"),
+])
+def test_uscg_432_e4_bell_exceptions(uscg, run, kw, site, words):
+    """46 CFR 197.432(e)(4): over 120 min in-water decompression needs a bell, except with a
+    heavyweight outfit or in a physically confining space (regulation text, VERIFIED)."""
+    d = uscg(**_LONG, **kw)
+    d["site"].update(site)
+    [f] = _bell_findings(run(d, FAMILY, "uscg-432"))
+    assert (f.severity, f.citation) == ("pass", "46 CFR 197.432(e)(4)") and words in f.message
+    [f] = _bell_findings(run(uscg(**_LONG), FAMILY, "uscg-432"))
+    assert (f.severity, f.citation, f.measured, f.limit) == ("fail", "46 CFR 197.432(e)(4)",
+                                                             130.0, 120.0)
+
+
+def test_uscg_434_c_d_bell_exceptions(uscg, run):
+    """46 CFR 197.434(c): bell deeper than 220 fsw, except heavyweight or confining space;
+    (d): closed bell deeper than 300 fsw, except a confining space."""
+    heavy = uscg(mode="surface-supplied-heliox", gas="16/84", max_depth=250, bottom_time_min=10,
+                 stage=True, heavy_gear=True)
+    got = run(heavy, FAMILY, "uscg-434")
+    assert not _bad(got)
+    assert any(f.citation == "46 CFR 197.434(c)" and f.severity == "pass" for f in got)
+    deep = uscg(mode="surface-supplied-heliox", gas="10/90", max_depth=310, bottom_time_min=10,
+                stage=True, bell="open")
+    [f] = _bad(run(deep, FAMILY, "uscg-434"))
+    assert (f.citation, f.severity) == ("46 CFR 197.434(d)", "fail")
+    deep["site"]["confined_space"] = True
+    got = run(deep, FAMILY, "uscg-434")
+    assert not _bad(got) and any(f.citation == "46 CFR 197.434(d)" for f in got)
+
+
+def test_uscg_434_e_separate_tender(uscg, run):
+    """46 CFR 197.434(e): a separate tender for each mixed-gas diver."""
+    d = uscg(mode="surface-supplied-heliox", gas="16/84", max_depth=150, bottom_time_min=20,
+             stage=True, tender=None)
+    [f] = _bad(run(d, FAMILY, "uscg-434"))
+    assert (f.citation, f.severity, f.measured) == ("46 CFR 197.434(e)", "fail", "none")
+
+
+def test_uscg_346_c_standby_hose_at_any_depth(uscg, run):
+    """46 CFR 197.346(c): every surface-supplied heavyweight operation has an extra hose for the
+    standby diver, at any depth (regulation text, VERIFIED); a 30 fsw dive was not checked."""
+    [f] = _bad(run(uscg(max_depth=30, heavy_gear=True), FAMILY, "uscg-346c"))
+    assert (f.severity, f.citation, f.source_status) == ("fail", "46 CFR 197.346(c)", "VERIFIED")
+    assert run(uscg(max_depth=30), FAMILY, "uscg-346c") == []  # no heavyweight outfit
+    got = run(uscg(max_depth=140, bottom_time_min=20, heavy_gear=True), FAMILY, "uscg-346e")
+    assert not any("hose" in f.message for f in got)  # one finding for one fact
