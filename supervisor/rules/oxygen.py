@@ -25,6 +25,7 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterator
 from typing import Any
 
@@ -38,6 +39,8 @@ FAMILY = Family("oxygen", "Oxygen exposure")
 NOAA_CNS = "NOAA Diving Manual, CNS oxygen exposure limits (normal exposures)"
 REPEX = "Hamilton, Kenyon & Peterson, REPEX, NOAA OUR Technical Report 88-1B (1988)"
 CNS_LIMIT_PERCENT = 100.0
+#: Short form of the chamber procedure's limit for a finding's limit column.
+CHAMBER_PERIODS = f"{an.O2_AIR_BREAK[0]:g} min O2 / {an.O2_AIR_BREAK[1]:g} min air"
 NOT_COMPUTED = "not computed"
 
 _PHASES: dict[str, tuple[str, str]] = {
@@ -106,29 +109,51 @@ for _phase, (_field, _what) in _PHASES.items():
 
 @FAMILY.rule(
     "oxygen-po2-range",
-    title="PO2 within the range of the CNS table",
+    title="In-water PO2 within the range of the CNS table",
     citation=NOAA_CNS,
     kind="reference",
     source_status="FROM MEMORY",
 )
 def po2_range(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """A PO2 above the CNS table's highest row makes the CNS figure a lower bound: review."""
+    """An in-water PO2 above the CNS table's top row (+ 0.01 atm): counted at the top row's
+    rate, the CNS figure a lower bound; fails on a verified table, else warns for review.
+    Chamber oxygen gets a note naming the rule that counts it (the chamber periods)."""
     pa = an.for_context(ctx)
     for d in ctx.dives():
         e = pa.dives[d.id].exposure
         if e is None:
             continue
-        kw = dict(measured=round(e.max_po2_atm, 3), limit=e.range_top_atm, unit="atm", dive=d.id,
-                  status=e.cns_limits.source_status)
+        info = e.cns_limits
+        kw = dict(measured=round(e.water_max_po2_atm, 3), limit=e.range_top_atm, unit="atm",
+                  dive=d.id, status=info.source_status)
         if e.out_of_range:
-            yield r.review(
-                f"needs review: PO2 reaches {e.max_po2_atm:.2f} atm, above the CNS table's "
-                f"highest row ({e.range_top_atm:g} atm) for {e.minutes_above_range:.1f} min; "
-                f"the CNS figure of {e.cns_percent:.0f} % is a lower bound",
-                **kw,
-            )
+            text = (f"in-water PO2 reaches {e.water_max_po2_atm:.2f} atm, above the CNS "
+                    f"table's highest row ({e.range_top_atm:g} atm, tolerance "
+                    f"{e.po2_tolerance_atm:g} atm) for {e.minutes_above_range:.1f} min; "
+                    f"counted at the {e.range_top_atm:g} atm rate, the CNS figure is at "
+                    f"least {_floor1(e.cns_percent)} % (a lower bound)")
+            if info.usable_without_review:
+                yield r.breach(text, **kw)
+            else:
+                yield r.review(f"needs review: {text} ({info.name}: {info.source_status}, "
+                               "unverified rows)", **kw)
         else:
-            yield r.ok(f"PO2 at most {e.max_po2_atm:.2f} atm, inside the CNS table", **kw)
+            yield r.ok(f"in-water PO2 at most {e.water_max_po2_atm:.2f} atm, inside the CNS "
+                       f"table (tolerance {e.po2_tolerance_atm:g} atm)", **kw)
+        c = an.chamber_oxygen_json(e)
+        if c is not None:  # chamber oxygen: say which rule counts it instead
+            yield r.note(
+                f"chamber oxygen {c['minutes']:g} min ({c['periods']:g} period(s)), "
+                f"{c['otu']:g} OTU, PO2 up to {c['max_po2_atm']:.2f} atm: not on the "
+                f"in-water CNS table and given no CNS percentage; counted by "
+                f"{c['counted_by']}: {c['limit']}",
+                measured=c["minutes"], limit=CHAMBER_PERIODS, unit="min", dive=d.id,
+            )
+
+
+def _floor1(x: float) -> str:
+    """A lower bound printed rounded down to 0.1 (never rounded up past the figure)."""
+    return f"{math.floor(x * 10 + 1e-9) / 10:g}"
 
 
 @FAMILY.rule(
@@ -147,10 +172,12 @@ def cns_dive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review("needs review: the CNS exposure could not be computed", dive=d.id,
                            measured=NOT_COMPUTED, limit=CNS_LIMIT_PERCENT, unit="%")
             continue
-        bound = " (lower bound)" if e.out_of_range else ""
+        figure = (f"at least {_floor1(e.cns_percent)} % (a lower bound: PO2 above the "
+                  "table in the water)" if e.out_of_range else f"{e.cns_percent:.0f} %")
+        where = " (in the water; chamber oxygen counted apart)" if e.has_chamber else ""
         yield _limit_finding(
             r, e.cns_limits, e.cns_percent > CNS_LIMIT_PERCENT + 1e-9,
-            f"CNS exposure {e.cns_percent:.0f} %{bound} of the single-exposure limits",
+            f"in-water CNS exposure {figure} of the single-exposure limits{where}",
             measured=round(e.cns_percent, 1), limit=CNS_LIMIT_PERCENT, unit="%", dive=d.id,
         )
 

@@ -153,11 +153,16 @@ def test_otu_treatment_table_5_oxygen_periods():
     )
     e = ox.profile_exposure(prof)
     assert e.otu == pytest.approx(332.0, abs=0.5)
-    assert e.out_of_range
+    # chamber oxygen: no in-water CNS percentage, kept apart with its minutes and OTU
+    assert not e.out_of_range and e.cns_percent == 0.0
+    assert e.chamber_otu == e.otu and e.chamber_oxygen_minutes == 120.0
     assert e.max_po2_atm == pytest.approx(fsw_to_atm(60), rel=1e-12)
-    # minutes above 1.6 atm: 40 + 30 + 20 + 30 * (1.909 - 1.6) / (1.909 - 1.0) (arithmetic)
-    above_last = 30.0 * (fsw_to_atm(30) - 1.6) / (fsw_to_atm(30) - 1.0)
-    assert e.minutes_above_range == pytest.approx(90.0 + above_last, rel=1e-9)
+    assert e.chamber_max_po2_atm == e.max_po2_atm
+    # minutes above 1.6 + 0.01 atm: 40 + 30 + 20 + 30 * (1.909 - 1.61) / (1.909 - 1.0)
+    # (arithmetic)
+    top = 1.6 + ox.PO2_TOLERANCE_ATM
+    above_last = 30.0 * (fsw_to_atm(30) - top) / (fsw_to_atm(30) - 1.0)
+    assert e.chamber_minutes_above_table == pytest.approx(90.0 + above_last, rel=1e-9)
 
 
 @pytest.mark.parametrize(
@@ -249,29 +254,31 @@ def test_cns_below_lowest_row_charged_at_first_row():
 
 
 def test_cns_ramp_across_rows_analytic():
-    """0.4 -> 0.8 atm in 40 min: 10 min in each band above 0.5 atm, charged at the NOAA
-    limits 720, 570, 450 min (arithmetic on the NOAA rows)."""
+    """0.4 -> 0.8 atm in 40 min (0.01 atm/min): 11 min in (0.5, 0.61], 10 in (0.61, 0.71]
+    and 9 in (0.71, 0.8], charged at the NOAA limits 720, 570, 450 min (arithmetic on
+    the NOAA rows, each row's band reaching 0.01 atm above it); 9 min below 0.59 atm."""
     e = ox.segment_exposure(40.0, 0.4 * ATM, 0.8 * ATM)
-    expected = 100.0 * (10.0 / 720 + 10.0 / 570 + 10.0 / 450)
+    expected = 100.0 * (11.0 / 720 + 10.0 / 570 + 9.0 / 450)
     assert e.cns_percent == pytest.approx(expected, rel=1e-9)
-    assert e.minutes_below_table == pytest.approx(10.0, rel=1e-9)
+    assert e.minutes_below_table == pytest.approx(9.0, rel=1e-9)
 
 
 @pytest.mark.parametrize(
     ("p1", "p2", "minutes"),
-    [(1.0, 1.6, 17.0), (1.55, 0.62, 9.0), (0.3, 1.25, 30.0), (1.12, 1.18, 5.0)],
+    [(1.0, 1.6, 17.0), (1.55, 0.62, 9.0), (0.3, 1.25, 30.0), (1.12, 1.18, 5.0),
+     (1.2, 2.0, 12.0)],
 )
 def test_cns_linear_integral_vs_scipy_quad(p1, p2, minutes):
     """Exact CNS integral over the step curve of the NOAA rows equals scipy quad with the
     row crossings as break points (general-purpose library)."""
-    rows = np.array([r[0] for r in NOAA_ROWS])
+    rows = np.array([r[0] for r in NOAA_ROWS]) + ox.PO2_TOLERANCE_ATM  # row + tolerance
     lim = np.array([r[1] for r in NOAA_ROWS], dtype=float)
 
     def rate(t: float) -> float:
         p = p1 + (p2 - p1) * t / minutes
         if p <= 0.5:
             return 0.0
-        return 100.0 / lim[np.searchsorted(rows, p, side="left")]
+        return 100.0 / lim[min(int(np.searchsorted(rows, p, side="left")), lim.size - 1)]
 
     pts = crossing_times(p1, p2, minutes, [0.5, *rows])
     expected, _ = integrate.quad(rate, 0.0, minutes, points=pts, epsabs=1e-12, epsrel=1e-12,
@@ -283,33 +290,41 @@ def test_cns_linear_integral_vs_scipy_quad(p1, p2, minutes):
 # ------------------------------------------------------------------ above the table
 
 
-def test_above_range_is_flagged_not_extrapolated():
-    """Chamber O2 at 2.8 atm (U.S. Navy treatment tables breathe O2 at 60 fsw, 2.82 ata):
-    above the NOAA table's 1.6 atm, so no CNS limit is invented."""
+def test_above_table_in_water_counts_at_top_row_rate():
+    """In the water above 1.6 atm (+ 0.01) the NOAA table gives no limit: the minutes are
+    charged at the 1.6 atm row's limits (45 min single, 150 min 24 h: NOAA rows above)
+    and the figure is marked a lower bound; CNS never counts zero."""
     e = ox.segment_exposure(30.0, 2.8 * ATM)
-    assert e.out_of_range
+    assert e.out_of_range and e.cns_is_lower_bound
     assert e.minutes_above_range == 30.0
     assert e.max_po2_atm == pytest.approx(2.8, rel=1e-12)
-    assert e.cns_percent == 0.0  # lower bound: nothing in range
+    assert e.cns_percent == pytest.approx(30.0 / 45.0 * 100.0, rel=1e-12)
+    assert e.cns_24h_percent == pytest.approx(30.0 / 150.0 * 100.0, rel=1e-12)
     assert e.cns_status == "lower bound"
     assert e.needs_review
     assert any("lower bound" in r for r in e.review_reasons)
-    # the same CNS figure at 1.7 and 2.8 atm: no extrapolation of the limit curve
+    assert "30.0 min in the water above 1.6 atm" in e.cns_note
+    # the same CNS figure at 1.7 and 2.8 atm: the top row's rate, no extrapolation
     assert ox.segment_exposure(30.0, 1.7 * ATM).cns_percent == e.cns_percent
     # the pulmonary dose is still computed
     assert e.otu == pytest.approx(30.0 * ox.otu_rate(2.8), rel=1e-12)
     d = e.to_dict()
-    assert d["cns_percent_is_lower_bound"] is True
+    assert d["cns_percent_is_lower_bound"] is True and d["cns_is_lower_bound"] is True
     assert d["out_of_range"] is True
+    assert d["minutes_above_table"] == 30.0 and d["po2_tolerance_atm"] == 0.01
+    assert d["chamber_oxygen"] is None
 
 
-def test_ramp_through_top_charges_only_the_in_range_part():
-    """1.0 -> 2.2 atm in 20 min: the first 10 min (to 1.6 atm) are charged, the last 10
-    are counted above range (arithmetic on the linear ramp)."""
+def test_ramp_through_top_charges_the_part_above_at_the_top_rate():
+    """1.0 -> 2.2 atm in 20 min (0.06 atm/min): 10.17 min up to 1.61 atm are charged by
+    the table, the last 9.83 min at the 1.6 atm row's 45 min (arithmetic on the ramp and
+    the NOAA rows)."""
     e = ox.segment_exposure(20.0, 1.0 * ATM, 2.2 * ATM)
-    inside = ox.segment_exposure(10.0, 1.0 * ATM, 1.6 * ATM)
-    assert e.cns_percent == pytest.approx(inside.cns_percent, rel=1e-9)
-    assert e.minutes_above_range == pytest.approx(10.0, rel=1e-9)
+    t_in = 20.0 * 0.61 / 1.2
+    inside = ox.segment_exposure(t_in, 1.0 * ATM, 1.61 * ATM)
+    assert e.minutes_above_range == pytest.approx(20.0 - t_in, rel=1e-9)
+    assert e.cns_percent == pytest.approx(
+        inside.cns_percent + (20.0 - t_in) / 45.0 * 100.0, rel=1e-9)
     assert e.out_of_range and not inside.out_of_range
 
 
@@ -321,11 +336,97 @@ def test_zero_length_segment_above_range_is_flagged():
     assert e.minutes_above_range == 0.0
 
 
-@pytest.mark.parametrize(("po2_bar", "flagged"), [(1.62, False), (1.63, True)])
+@pytest.mark.parametrize(("po2_bar", "flagged"), [(1.62, False), (1.63, False), (1.64, True)])
 def test_bar_is_converted_to_atm(po2_bar, flagged):
-    """1 atm = 1.01325 bar: 1.62 bar = 1.599 atm is inside the table, 1.63 bar = 1.609 atm
-    is above it."""
+    """1 atm = 1.01325 bar: 1.62 bar = 1.599 atm and 1.63 bar = 1.609 atm count at the
+    1.6 atm row (within 0.01 atm), 1.64 bar = 1.619 atm is above the table."""
     assert ox.segment_exposure(10.0, po2_bar).out_of_range is flagged
+
+
+@pytest.mark.parametrize(
+    ("po2_atm", "minutes", "expected"),
+    [
+        # oxygen at 20 fsw: 1 + 20/33 = 1.606 atm (Navy 33 fsw/atm): the 1.6 atm row, 45 min
+        (1.0 + 20.0 / 33.0, 45.0, 100.0),
+        (1.609, 45.0, 100.0),  # within 0.01 atm of the 1.6 atm row
+        (1.105, 240.0, 100.0),  # within 0.01 atm of the 1.1 atm row (240 min), not 1.2
+        (1.111, 210.0, 100.0),  # beyond the tolerance: the next-higher 1.2 atm row (210 min)
+        (0.595, 720.0, 100.0),  # within 0.01 atm below the 0.6 atm row (720 min)
+    ],
+)
+def test_po2_within_tolerance_counts_at_the_row(po2_atm, minutes, expected):
+    """NOAA normal-exposure rows (values beside NOAA_ROWS): a PO2 within 0.01 atm of a row
+    counts at that row (the tolerance is the project's own choice, stated in the table's
+    conventions); 1.606 atm for 45 min is exactly the 1.6 atm single-exposure limit."""
+    e = ox.segment_exposure(minutes, po2_atm * ATM)
+    assert e.cns_percent == pytest.approx(expected, rel=1e-12)
+    assert not e.out_of_range
+    assert ox.PO2_TOLERANCE_ATM == 0.01
+
+
+def test_oxygen_at_20_fsw_from_a_profile_counts_at_the_top_row():
+    """A 20 fsw in-water oxygen stop, the trade's standard depth: 45 min give 100 % of the
+    NOAA 1.6 atm single-exposure limit (45 min), never 0 % and not above the table."""
+    prof = Profile([Segment(20, 20, 45.0, OXYGEN, "water")], unit="fsw")
+    e = ox.profile_exposure(prof)
+    assert e.water_max_po2_atm == pytest.approx(1.605, abs=0.002)
+    assert e.cns_percent == pytest.approx(100.0, rel=1e-12)
+    assert not e.out_of_range and e.cns_note == ""
+
+
+# ------------------------------------------------------------------ chamber oxygen
+
+
+def _surd_profile() -> Profile:
+    """In-water air to a 40 fsw stop, then oxygen at 50 fsw in the chamber (2.5 atm)."""
+    return Profile(
+        [
+            Segment(0, 100, 2.0, AIR, "water"),
+            Segment(100, 100, 28.0, AIR, "water"),
+            Segment(100, 40, 2.0, AIR, "water"),
+            Segment(40, 40, 2.0, AIR, "water"),
+            Segment(40, 0, 1.33, AIR, "water"),
+            Segment(0, 50, 0.5, AIR, "chamber"),
+            Segment(50, 50, 30.0, OXYGEN, "chamber"),
+            Segment(50, 50, 5.0, AIR, "chamber"),
+            Segment(50, 40, 1.0, OXYGEN, "chamber"),
+            Segment(40, 40, 20.0, OXYGEN, "chamber"),
+            Segment(40, 0, 1.33, OXYGEN, "chamber"),
+        ],
+        unit="fsw",
+    )
+
+
+def test_chamber_oxygen_gives_no_in_water_cns_and_is_kept_apart():
+    """Chamber oxygen at 2.5 atm is not on the NOAA in-water table: the CNS figure counts
+    the water segments only (identical to the in-water part alone), the chamber's minutes,
+    OTU and highest PO2 are reported apart (arithmetic on the same engine)."""
+    prof = _surd_profile()
+    e = ox.profile_exposure(prof)
+    water = ox.profile_exposure(Profile(prof.segments[:5], unit="fsw"))
+    assert e.cns_percent == pytest.approx(water.cns_percent, rel=1e-12)
+    assert e.cns_24h_percent == pytest.approx(water.cns_24h_percent, rel=1e-12)
+    assert not e.out_of_range and e.minutes_above_range == 0.0
+    assert e.chamber_oxygen_minutes == pytest.approx(30.0 + 1.0 + 20.0 + 1.33)
+    assert e.chamber_minutes == pytest.approx(0.5 + 30 + 5 + 1 + 20 + 1.33)
+    assert e.otu == pytest.approx(water.otu + e.chamber_otu, rel=1e-12)
+    assert e.chamber_max_po2_atm == pytest.approx(fsw_to_atm(50), abs=0.01)
+    assert e.water_max_po2_atm < 1.0
+    assert "not on the NOAA in-water CNS table" in e.cns_note
+    d = json.loads(json.dumps(e.to_dict()))
+    assert d["chamber_oxygen"]["otu"] == pytest.approx(e.chamber_otu)
+    assert d["chamber_oxygen"]["minutes"] == pytest.approx(e.chamber_oxygen_minutes)
+    assert d["cns_is_lower_bound"] is False
+
+
+def test_daily_exposure_counts_chamber_otu_but_no_chamber_cns():
+    """Rolling 24 h: the chamber oxygen adds its OTU (REPEX counts every dose) and no
+    in-water CNS percentage."""
+    e = ox.profile_exposure(_surd_profile())
+    d = ox.daily_exposure([(0.0, e)])
+    assert d.max_otu_24h == pytest.approx(e.otu, rel=1e-9)
+    assert d.max_cns_24h_percent == pytest.approx(e.cns_24h_percent, rel=1e-9, abs=1e-12)
+    assert not d.out_of_range
 
 
 # ------------------------------------------------------------------ vector and profile
@@ -524,6 +625,8 @@ def test_daily_out_of_range_propagates():
     d = ox.daily_exposure([(0.0, _const(30.0, 2.8)), (300.0, _const(30.0, 1.2))])
     assert d.out_of_range and d.needs_review
     assert d.minutes_above_range == 30.0
+    # 30 min above the table at the 1.6 atm 24-hour rate (150 min) + 30 of 240 at 1.2 atm
+    assert d.max_cns_24h_percent == pytest.approx(100 * (30 / 150 + 30 / 240), rel=1e-9)
     blob = json.loads(json.dumps(d.to_dict()))
     assert blob["cns_status"] == "lower bound"
 

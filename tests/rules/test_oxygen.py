@@ -76,11 +76,32 @@ def test_po2_range_pass():
     no_bad(run(data(), FAMILY, "oxygen-po2-range"))
 
 
-def test_po2_range_above_table_needs_review():
-    f = only(run(_surd(), FAMILY, "oxygen-po2-range"), "warn")
+def test_po2_range_above_table_in_water_needs_review():
+    """Oxygen at 30 fsw in the water: 1 + 30/33 = 1.91 atm (Dalton, Navy 33 fsw/atm), above
+    the NOAA table's 1.6 atm row (+ 0.01): counted at the top row's rate, a lower bound,
+    and a warning for review because the table is unverified (FROM MEMORY)."""
+    f = only(run(data(**_O2_30), FAMILY, "oxygen-po2-range"), "warn")
     assert f.rule == "oxygen-po2-range"
-    assert f.measured == pytest.approx(1 + 50 / 33, abs=1e-3)  # atm, oxygen at 50 fsw
-    assert f.limit == 1.6 and f.citation == NOAA_CNS and "lower bound" in f.message
+    assert f.measured == pytest.approx(1 + 30 / 33, abs=2e-3)  # atm, oxygen at 30 fsw
+    assert f.limit == 1.6 and f.citation == NOAA_CNS
+    assert "lower bound" in f.message and "at least" in f.message
+    # 10 min at the stop and the ascent from 30 fsw above 1.61 atm (arithmetic)
+    assert "for 10.3 min" in f.message
+
+
+def test_po2_range_chamber_oxygen_is_not_on_the_table():
+    """Chamber oxygen at 50 fsw (2.5 atm) is not counted on the in-water table: the rule
+    passes the in-water part and notes which rule counts the chamber periods."""
+    got = run(_surd(), FAMILY, "oxygen-po2-range")
+    no_bad(got)
+    note = only(got, "info")
+    assert "proc-o2-chamber-periods" in note.message and "no CNS percentage" in note.message
+    assert note.measured == 30.0  # the 30-min chamber stop on oxygen (the plan)
+
+
+def test_cns_lower_bound_marked_in_message():
+    f = only(run(data(**_O2_30), FAMILY, "oxygen-cns-dive"), "pass")
+    assert "at least" in f.message and "lower bound" in f.message
 
 
 def test_cns_dive_pass_needs_review():
@@ -178,8 +199,9 @@ CASES: dict[str, Case] = {
         measured=round(ATM * (1 + 50 / 33), 3), limit=2.4,
         citation="contractor policy (policy.po2_chamber_max)"),
     "oxygen-po2-range": Case(
-        passing=lambda _: data(), failing=lambda _: _surd(),
-        measured=round(1 + 50 / 33, 3), limit=1.6, severity="warn", citation=NOAA_CNS),
+        passing=lambda _: _surd(), failing=lambda _: data(**_O2_30),
+        measured=lambda ctx: round(_exp(ctx).water_max_po2_atm, 3), limit=1.6,
+        severity="warn", citation=NOAA_CNS),
     "oxygen-cns-dive": Case(
         passing=lambda _: data(), failing=lambda _: _nitrox(),
         measured=lambda ctx: round(_exp(ctx).cns_percent, 1), limit=100.0, severity="warn",
