@@ -6,7 +6,8 @@
   warns).
 * Maximum operating depth: the bottom gas at the policy's bottom PO2 limit against
   the maximum depth, each water-stop gas at the decompression limit and each
-  chamber gas at the chamber limit against its stop depth (policy: fails).
+  chamber gas at the chamber limit against its stop depth, with the limits, their
+  severity and the 0.01 atm tolerance of :mod:`supervisor.rules.po2_limits`.
 * Equivalent narcotic depth, with oxygen counted narcotic (the NOAA convention),
   against ``policy.end_max``.  The limit fails when the contractor sets it; the
   default 100 fsw / 30 msw is a common planning ceiling known from secondary
@@ -41,9 +42,16 @@ from collections.abc import Iterator
 
 from supervisor import analysis as an
 from supervisor import constants as C
+from supervisor.engine.oxygen import PO2_TOLERANCE_ATM
 from supervisor.findings import Finding
-from supervisor.gas import density_at_depth, equivalent_narcotic_depth, maximum_operating_depth
+from supervisor.gas import (
+    density_at_depth,
+    equivalent_narcotic_depth,
+    inspired_po2,
+    maximum_operating_depth,
+)
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.po2_limits import po2_limit
 
 FAMILY = Family("gas", "Breathing gas")
 
@@ -101,37 +109,51 @@ def hypoxic(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
 @FAMILY.rule(
     "gas-mod",
     title="Every gas within its maximum operating depth",
-    citation="contractor policy (policy.po2_bottom_max, po2_decompression_max, po2_chamber_max)",
+    citation="contractor policy (policy.po2_bottom_max_ata, po2_decompression_max_ata, "
+    "po2_chamber_max_ata)",
     kind="policy",
 )
 def mod(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Each gas's maximum operating depth at the policy PO2 limit against where it is breathed."""
-    pol, plan = ctx.policy, ctx.plan
+    """Each gas's PO2 where it is breathed against the phase's PO2 limit (as a depth, MOD).
+
+    The limits and their severity are those of :mod:`supervisor.rules.po2_limits` (the
+    contractor's own fail, the bottom default warns), with the same 0.01 atm tolerance.
+    """
+    plan = ctx.plan
+    table = an.for_context(ctx).table
+    limits = {ph: po2_limit(plan.policy, ph, table) for ph in ("bottom", "decompression",
+                                                               "chamber")}
+    rank = {"pass": 0, "warn": 1, "fail": 2}
     for d in ctx.dives():
-        uses = [(d.gas_mix, d.max_depth, float(pol.po2_bottom_max), "bottom")]
+        uses = [(d.gas_mix, d.max_depth, "bottom", "bottom")]
         for s in d.stops:
-            limit = pol.po2_chamber_max if s.place == "chamber" else pol.po2_decompression_max
-            uses.append((d.stop_gas(s), s.depth, float(limit), f"{s.place} stop {s.depth:g}"))
+            phase = "chamber" if s.place == "chamber" else "decompression"
+            uses.append((d.stop_gas(s), s.depth, phase, f"{s.place} stop {s.depth:g}"))
         worst = None
-        for gas, depth, po2, where in uses:
-            m = float(maximum_operating_depth(gas, po2, plan.unit, plan.p_surface_bar))
-            excess = depth - m
-            if worst is None or excess > worst[0]:
-                worst = (excess, gas, depth, po2, where, m)
-        excess, gas, depth, po2, where, m = worst  # type: ignore[misc]
-        kw = dict(measured=depth, limit=round(m, 1), unit=ctx.unit, dive=d.id)
-        if excess > 1e-6:
-            yield r.breach(
-                f"{gas.name} at the {where} ({ctx.show(depth)}) is deeper than its maximum "
-                f"operating depth {m:.1f} {ctx.unit} at PO2 {po2:g} bar",
-                **kw,
-            )
+        for gas, depth, phase, where in uses:
+            po2 = float(inspired_po2(depth, gas, plan.unit, plan.p_surface_bar)) / C.P_ATM_BAR
+            lim = limits[phase]
+            sev = lim.judge(po2)
+            limit = lim.limit_for(sev)
+            m = float(maximum_operating_depth(gas, limit * C.P_ATM_BAR, plan.unit,
+                                              plan.p_surface_bar))
+            key = (rank[sev], depth - m)
+            if worst is None or key > worst[0]:
+                worst = (key, sev, gas, depth, limit, where, m, lim)
+        _, sev, gas, depth, limit, where, m, lim = worst  # type: ignore[misc]
+        kw = dict(measured=depth, limit=round(m, 1), unit=ctx.unit, dive=d.id,
+                  citation=lim.citation)
+        text = (f"{gas.name} at the {where} ({ctx.show(depth)}); maximum operating depth "
+                f"{m:.1f} {ctx.unit} at PO2 {limit:g} ata ({lim.basis}; tolerance "
+                f"{PO2_TOLERANCE_ATM:g} atm)")
+        if sev == "fail":
+            yield r.breach(f"{text}: deeper than its maximum operating depth", **kw)
+        elif sev == "warn":
+            yield r.finding("warn", f"{text}: deeper than its maximum operating depth at the "
+                            f"default; set policy.{lim.key} to the contractor's own limit",
+                            status=None, verified=False, **kw)
         else:
-            yield r.ok(
-                f"every gas within its maximum operating depth (closest: {gas.name} at the "
-                f"{where}, MOD {m:.1f} {ctx.unit})",
-                **kw,
-            )
+            yield r.ok(f"every gas within its maximum operating depth (closest: {text})", **kw)
 
 
 @FAMILY.rule(

@@ -3,8 +3,10 @@
 PO2 is the inspired oxygen partial pressure of the dry gas at the diver's depth
 (Dalton's law) in each phase of the planned profile: ``bottom`` (descent and
 bottom), ``decompression`` (in the water after leaving the bottom) and
-``chamber``.  The policy's PO2 limits are the contractor's own: a dive above one
-fails.
+``chamber``, in ata.  The limits are the policy's (:mod:`supervisor.rules.po2_limits`):
+the contractor's own fail; of the defaults nobody chose, the bottom 1.4 ata warns and
+the in-water and chamber ceilings, which guard against oxygen convulsion, fail.  Every
+comparison tolerates 0.01 atm.
 
 The CNS percentage is charged against the NOAA normal-exposure limits and the
 pulmonary dose (OTU) against the REPEX allowances, both through
@@ -30,9 +32,12 @@ from collections.abc import Iterator
 from typing import Any
 
 from supervisor import analysis as an
+from supervisor import constants as C
 from supervisor.engine import oxygen as ox
+from supervisor.engine.oxygen import PO2_TOLERANCE_ATM
 from supervisor.findings import Finding
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.po2_limits import PHASE_KEYS, po2_limit
 
 FAMILY = Family("oxygen", "Oxygen exposure")
 
@@ -43,10 +48,10 @@ CNS_LIMIT_PERCENT = 100.0
 CHAMBER_PERIODS = f"{an.O2_AIR_BREAK[0]:g} min O2 / {an.O2_AIR_BREAK[1]:g} min air"
 NOT_COMPUTED = "not computed"
 
-_PHASES: dict[str, tuple[str, str]] = {
-    "bottom": ("po2_bottom_max", "bottom"),
-    "decompression": ("po2_decompression_max", "in-water decompression"),
-    "chamber": ("po2_chamber_max", "chamber"),
+_PHASES: dict[str, str] = {
+    "bottom": "bottom",
+    "decompression": "in-water decompression",
+    "chamber": "chamber",
 }
 
 
@@ -71,38 +76,49 @@ def _limit_finding(
 
 
 def _po2_rule(phase: str) -> Any:
-    field, what = _PHASES[phase]
+    what = _PHASES[phase]
 
     def rule(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         pa = an.for_context(ctx)
-        limit = float(getattr(ctx.policy, field))
+        lim = po2_limit(ctx.plan.policy, phase, pa.table)
         for d in ctx.dives():
             a = pa.dives[d.id]
             if "oxygen" in a.errors:
                 yield r.review(
                     f"needs review: {what} PO2 could not be computed ({a.errors['oxygen']})",
-                    dive=d.id, measured=NOT_COMPUTED, limit=limit,
-                    unit="bar",
+                    dive=d.id, measured=NOT_COMPUTED, limit=lim.fail_ata, unit="ata",
                 )
                 continue
-            po2 = a.po2_max.get(phase)
-            if po2 is None:
+            po2_bar = a.po2_max.get(phase)
+            if po2_bar is None:
                 continue  # the dive has no such phase
-            kw = dict(measured=round(po2, 3), limit=limit, unit="bar", dive=d.id)
-            if po2 > limit + 1e-6:
-                yield r.breach(f"{what} PO2 reaches {po2:.2f} bar, above the policy limit", **kw)
+            po2 = po2_bar / C.P_ATM_BAR
+            sev = lim.judge(po2)
+            limit = lim.limit_for(sev)
+            kw = dict(measured=round(po2, 3), limit=round(limit, 3), unit="ata", dive=d.id,
+                      citation=lim.citation)
+            tol = f"tolerance {PO2_TOLERANCE_ATM:g} atm"
+            if sev == "fail":
+                yield r.breach(f"{what} PO2 reaches {po2:.2f} ata, above the limit {limit:g} "
+                               f"ata ({lim.basis}; {tol})", **kw)
+            elif sev == "warn":
+                yield r.finding(
+                    "warn", f"{what} PO2 reaches {po2:.2f} ata, above {limit:g} ata "
+                    f"({lim.basis}; {tol}); set policy.{lim.key} to the contractor's own "
+                    "limit", status=None, verified=False, **kw)
             else:
-                yield r.ok(f"{what} PO2 at most {po2:.2f} bar", **kw)
+                yield r.ok(f"{what} PO2 at most {po2:.2f} ata, within {limit:g} ata "
+                           f"({lim.basis}; {tol})", **kw)
 
-    rule.__doc__ = f"Highest {what} PO2 against policy.{field}."
+    rule.__doc__ = f"Highest {what} PO2 against the policy's limit (rules.po2_limits)."
     return rule
 
 
-for _phase, (_field, _what) in _PHASES.items():
+for _phase, _what in _PHASES.items():
     FAMILY.rule(
         f"oxygen-po2-{_phase}",
         title=f"{_what.capitalize()} PO2 within policy",
-        citation=f"contractor policy (policy.{_field})",
+        citation=f"contractor policy (policy.{PHASE_KEYS[_phase]})",
         kind="policy",
     )(_po2_rule(_phase))
 

@@ -49,20 +49,41 @@ def test_mod_pass():
 
 
 def test_mod_fail():
-    d = data(mode="surface-supplied-nitrox", gas="40/0", max_depth=100, bottom_time_min=20)
+    """Nitrox 40 at 100 fsw: 0.40 x 133/33 = 1.61 ata, beyond the 1.6 ata in-water limit
+    that the bottom default fails at: MOD 33 (1.6 / 0.40 - 1) = 99 fsw (MOD formula)."""
+    d = data(mode="surface-supplied-nitrox", gas="40/0", max_depth=102, bottom_time_min=20)
     f = only(run(d, FAMILY, "gas-mod"), "fail")
-    assert f.rule == "gas-mod" and f.measured == 100
-    # 1.4 bar = 1.3817 atm; 33 (1.3817 / 0.40 - 1) = 81.0 fsw
-    assert f.limit == pytest.approx(33 * (1.4 / C.P_ATM_BAR / 0.40 - 1), abs=0.1)
-    assert "policy.po2_bottom_max" in f.citation
+    assert f.rule == "gas-mod" and f.measured == 102
+    assert f.limit == pytest.approx(33 * (1.6 / 0.40 - 1), abs=0.3)
+    assert "policy.po2_bottom_max_ata" in f.citation
+
+
+def test_mod_beyond_the_bottom_default_warns():
+    """Nitrox 36 at 100 fsw: beyond its MOD at the 1.4 ata default, 33 (1.4 / 0.36 - 1) =
+    95.3 fsw (MOD formula; the encyclopedia example 36 % at 1.4 -> 95.3 fsw): a default
+    nobody chose warns; the contractor's own 1.4 ata fails."""
+    d = data(mode="surface-supplied-nitrox", gas="36/0", max_depth=100, bottom_time_min=20)
+    f = only(run(d, FAMILY, "gas-mod"), "warn")
+    assert f.limit == pytest.approx(95.3, abs=0.3) and not f.verified
+    d["policy"]["po2_bottom_max_ata"] = 1.4
+    f = only(run(d, FAMILY, "gas-mod"), "fail")
+    assert f.limit == pytest.approx(95.3, abs=0.3)
 
 
 def test_mod_of_a_stop_gas_fails():
+    """Oxygen at 30 fsw in the water: beyond its MOD at 1.6 ata, 33 (1.6 - 1) = 19.8 fsw."""
     d = data(bottom_time_min=50, decompression="in-water-oxygen",
              stops=[{"depth": 30, "minutes": 10, "gas": "oxygen"}])
     f = only(run(d, FAMILY, "gas-mod"), "fail")
     assert f.measured == 30
-    assert f.limit == pytest.approx(33 * (1.6 / C.P_ATM_BAR - 1), abs=0.1)  # oxygen at 1.6 bar
+    assert f.limit == pytest.approx(33 * (1.6 - 1), abs=0.2)
+
+
+def test_mod_of_oxygen_at_20_fsw_passes():
+    """Oxygen at 20 fsw (1.606 ata) is within the 1.6 ata limit plus 0.01 atm tolerance."""
+    d = data(bottom_time_min=50, decompression="in-water-oxygen",
+             stops=[{"depth": 20, "minutes": 10, "gas": "oxygen"}])
+    no_bad(run(d, FAMILY, "gas-mod"))
 
 
 def test_end_pass_default_needs_review():
