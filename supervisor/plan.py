@@ -29,6 +29,9 @@ ata                                        against oxygen convulsion in the wate
                                            itself prescribes oxygen deeper (rules.oxygen)
 po2_chamber_max_ata     2.8 ata            Navy treatment practice 2.8 ata (U.S. Navy
                                            Diving Manual Rev 4 Change A; OLDER-EDITION)
+po2_min_ata             0.16 ata           hypoxia below 0.16 ata (U.S. Navy Diving
+                                           Manual Rev 4 Change A ch. 15; OLDER-EDITION);
+                                           physics that kills: fails by default
 density_warn/fail       5.2 / 6.2 g/L      Anthony & Mitchell (2016) recommendation,
                                            FROM MEMORY; CO2 retention rising steeply
                                            above about 6 g/L (DAN Alert Diver,
@@ -74,7 +77,7 @@ from pydantic import (
 
 from supervisor import constants as C
 from supervisor.errors import InputError, PlanError
-from supervisor.gas import Gas, parse_gas
+from supervisor.gas import HYPOXIC_PO2_MIN_ATA, Gas, parse_gas
 from supervisor.plan_errors import Problems, problems_from, show
 from supervisor.plan_fields import (  # noqa: F401  (re-exported: the plan module's API)
     MAX_DIVES,
@@ -533,6 +536,11 @@ class Policy(_Section):
     po2_chamber_max_ata: float = Field(
         PO2_DEFAULTS_ATA["chamber"], gt=0, le=3.5,
         description="Chamber PO2 limit [ata, atm absolute]",
+    )
+    po2_min_ata: float = Field(
+        HYPOXIC_PO2_MIN_ATA, ge=0.1, le=0.5,
+        description="Lowest inspired PO2 of any breathing gas, at the surface, on descent "
+        "and at every stop [ata, atm absolute]; below it fails (hypoxia)",
     )
     po2_bottom_max: float = Field(
         PO2_DEFAULTS_ATA["bottom"] * C.P_ATM_BAR, gt=0, le=3 * C.P_ATM_BAR,

@@ -1,9 +1,10 @@
 """Breathing gas: hypoxia, maximum operating depth, narcotic depth and gas density.
 
 * Hypoxia: the lowest inspired PO2 of every phase (the bottom gas is breathed from
-  the surface on descent, at the site's surface pressure) against 0.16 ata, below
-  which the U.S. Navy manual says hypoxia results (Rev 4 Change A, OLDER-EDITION:
-  warns).
+  the surface on descent, at the site's surface pressure) against the policy's
+  minimum ``po2_min_ata``, by default 0.16 ata, below which the U.S. Navy manual
+  says hypoxia results (Rev 4 Change A, OLDER-EDITION).  Physics that kills fails,
+  whatever the status of the source of the default.
 * Maximum operating depth: the bottom gas at the policy's bottom PO2 limit against
   the maximum depth, each water-stop gas at the decompression limit and each
   chamber gas at the chamber limit against its stop depth, with the limits, their
@@ -45,6 +46,7 @@ from supervisor import constants as C
 from supervisor.engine.oxygen import PO2_TOLERANCE_ATM
 from supervisor.findings import Finding
 from supervisor.gas import (
+    HYPOXIC_PO2_MIN_ATA,
     density_at_depth,
     equivalent_narcotic_depth,
     inspired_po2,
@@ -55,9 +57,12 @@ from supervisor.rules.po2_limits import po2_limit
 
 FAMILY = Family("gas", "Breathing gas")
 
-HYPOXIA_ATA = 0.16
+HYPOXIA_ATA = HYPOXIC_PO2_MIN_ATA
 HYPOXIA_BAR = HYPOXIA_ATA * C.P_ATM_BAR
 NAVY_HYPOXIA = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 15 (hypoxia below 0.16 ata)"
+HYPOXIA_POLICY = (f"contractor policy (policy.po2_min_ata); default {HYPOXIC_PO2_MIN_ATA:g} "
+                  f"ata: {NAVY_HYPOXIA}, OLDER-EDITION")
+NOT_COMPUTED = "not computed"
 ANTHONY_MITCHELL = (
     "Anthony & Mitchell (2016), Respiratory physiology of rebreather diving, "
     "in Rebreathers and Scientific Diving"
@@ -77,33 +82,48 @@ DENSITY_DEFAULT_SOURCE = (
 @FAMILY.rule(
     "gas-hypoxic",
     title="No hypoxic gas at the surface, on descent or at a stop",
-    citation=NAVY_HYPOXIA,
-    kind="reference",
-    source_status="OLDER-EDITION",
+    citation=HYPOXIA_POLICY,
+    kind="policy",
 )
 def hypoxic(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Lowest PO2 in each phase against 0.16 ata."""
+    """Lowest inspired PO2 of each phase against ``policy.po2_min_ata`` (default 0.16 ata).
+
+    The bottom gas is breathed from the surface on descent (at the site's surface
+    pressure), each stop gas from where it is taken to where it is left.  Below the
+    minimum fails, whoever chose it: hypoxia is physics that kills.  The minimum is
+    not relaxed by the 0.01 atm rounding tolerance.  A gas at least as rich as the
+    site's own air is never called hypoxic (at altitude the air itself falls below
+    0.16 ata, and the diver breathes it on deck).
+    """
     pa = an.for_context(ctx)
+    plan = ctx.plan
+    floor = float(plan.policy.po2_min_ata)
+    own = "po2_min_ata" in plan.policy.model_fields_set
+    basis = ("policy.po2_min_ata, the contractor's own" if own else
+             f"default {HYPOXIC_PO2_MIN_ATA:g} ata: {NAVY_HYPOXIA}, OLDER-EDITION")
+    site_air = C.FO2_AIR * plan.p_surface_bar / C.P_ATM_BAR
+    limit = min(floor, site_air)
     for d in ctx.dives():
         a = pa.dives[d.id]
-        lows = {k: v for k, v in a.po2_min.items() if v is not None}
+        lows = {k: v / C.P_ATM_BAR for k, v in a.po2_min.items() if v is not None}
         if not lows:
-            yield r.review("needs review: the phase PO2 could not be computed", dive=d.id)
+            yield r.review("needs review: the phase PO2 could not be computed", dive=d.id,
+                           measured=NOT_COMPUTED, limit=floor, unit="ata")
             continue
         phase, low = min(lows.items(), key=lambda kv: kv[1])
-        kw = dict(measured=round(low, 3), limit=round(HYPOXIA_BAR, 3), unit="bar", dive=d.id)
-        if low + 1e-9 < HYPOXIA_BAR:
-            where = "at the surface and on descent" if phase == "bottom" else f"in the {phase}"
+        kw = dict(measured=round(low, 3), limit=round(floor, 3), unit="ata", dive=d.id)
+        where = "at the surface and on descent" if phase == "bottom" else f"in the {phase}"
+        if low + 1e-9 < limit:
             yield r.breach(
-                f"hypoxic gas {where}: PO2 {low:.3f} bar, below 0.16 ata ({HYPOXIA_BAR:.3f} bar)",
-                **kw,
-            )
-        else:
+                f"hypoxic gas {where}: inspired PO2 {low:.3f} ata, below {floor:g} ata "
+                f"({basis})", **kw)
+        elif low + 1e-9 < floor:
             yield r.ok(
-                f"lowest PO2 {low:.3f} bar ({phase} phase); the 0.16 ata threshold is from an "
-                "older edition",
-                verified=False, **kw,
-            )
+                f"lowest inspired PO2 {low:.3f} ata ({phase} phase) is below {floor:g} ata but "
+                f"no lower than the site's own air ({site_air:.3f} ata at altitude)", **kw)
+        else:
+            yield r.ok(f"lowest inspired PO2 {low:.3f} ata ({phase} phase), at least "
+                       f"{floor:g} ata ({basis})", **kw)
 
 
 @FAMILY.rule(

@@ -25,23 +25,57 @@ from supervisor.rules.gas import (
     DENSITY_POLICY,
     END_DEFAULT,
     FAMILY,
+    HYPOXIA_POLICY,
     NAVY_HYPOXIA,
 )
 
 
-def test_hypoxic_pass_needs_review():
+def test_hypoxic_pass():
+    """Air at the sea-level surface: 0.21 ata (Dalton), above the 0.16 ata minimum."""
     f = only(run(data(), FAMILY, "gas-hypoxic"), "pass")
-    assert f.measured == pytest.approx(0.21 * C.P_ATM_BAR, abs=1e-3) and not f.verified
+    assert f.measured == pytest.approx(0.21, abs=1e-3) and f.unit == "ata"
+    assert f.limit == 0.16 and f.citation == HYPOXIA_POLICY
 
 
-def test_hypoxic_gas_at_the_surface_warns():
-    d = data(mode="surface-supplied-heliox", gas="10/90", max_depth=200, bottom_time_min=20,
+@pytest.mark.parametrize("gas", ["10/90", "2/98"])
+def test_hypoxic_gas_at_the_surface_fails(gas):
+    """Heliox 10/90 or 2/98 breathed from the surface: 0.10 / 0.02 ata (Dalton's law at
+    1 atm), below the 0.16 ata under which hypoxia results (U.S. Navy Diving Manual Rev 4
+    Change A ch. 15, OLDER-EDITION): physics that kills fails on the default."""
+    d = data(mode="surface-supplied-heliox", gas=gas, max_depth=200, bottom_time_min=20,
              decompression="in-water", stops=[{"depth": 50, "minutes": 5, "gas": "air"}])
-    f = only(run(d, FAMILY, "gas-hypoxic"), "warn")
-    assert f.rule == "gas-hypoxic"
-    assert f.measured == pytest.approx(0.10 * C.P_ATM_BAR, abs=1e-3)
-    assert f.limit == pytest.approx(0.16 * C.P_ATM_BAR, abs=1e-3)  # 0.16 ata
-    assert f.citation == NAVY_HYPOXIA and f.source_status == "OLDER-EDITION"
+    f = only(run(d, FAMILY, "gas-hypoxic"), "fail")
+    assert f.rule == "gas-hypoxic" and f.verified
+    assert f.measured == pytest.approx(int(gas.split("/")[0]) / 100, abs=1e-3)
+    assert f.limit == pytest.approx(0.16, abs=1e-9)  # 0.16 ata
+    assert f.citation == HYPOXIA_POLICY and NAVY_HYPOXIA in f.message
+
+
+def test_hypoxic_policy_minimum_is_the_contractors():
+    """A contractor minimum of 0.18 ata fails 16/84 at the surface (0.16 ata, Dalton)."""
+    d = data(mode="surface-supplied-heliox", gas="16/84", max_depth=150, bottom_time_min=15,
+             decompression="in-water", stops=[{"depth": 20, "minutes": 10}])
+    only(run(d, FAMILY, "gas-hypoxic"), "pass")
+    d["policy"]["po2_min_ata"] = 0.18
+    f = only(run(d, FAMILY, "gas-hypoxic"), "fail")
+    assert f.limit == 0.18 and "the contractor's own" in f.message
+
+
+def test_air_at_altitude_is_not_called_hypoxic():
+    """At 3000 m (ICAO standard atmosphere, 0.701 bar) air gives 0.145 ata: the site's own
+    air, which the diver breathes on deck, is not a hypoxic breathing gas."""
+    d = data()
+    d["site"]["altitude_m"] = 3000
+    f = only(run(d, FAMILY, "gas-hypoxic"), "pass")
+    assert f.measured == pytest.approx(0.21 * 0.7012 / 1.01325, abs=2e-3)
+    assert "site's own air" in f.message
+
+
+def test_hypoxia_constant_has_its_unit_and_source():
+    from supervisor.gas import HYPOXIC_PO2_MIN_ATA
+    from supervisor.plan import Policy
+
+    assert HYPOXIC_PO2_MIN_ATA == 0.16 == Policy().po2_min_ata
 
 
 def test_mod_pass():
