@@ -17,7 +17,6 @@ from __future__ import annotations
 import pytest
 from _engine_plans import data, msw, no_bad, only, run
 
-from supervisor import constants as C
 from supervisor.rules.gas import (
     ANTHONY_MITCHELL,
     DAN_DENSITY,
