@@ -35,8 +35,11 @@ po2_min_ata             0.16 ata           hypoxia below 0.16 ata (U.S. Navy Div
 density_warn/fail       5.2 / 6.2 g/L      Anthony & Mitchell (2016) recommendation,
                                            FROM MEMORY; CO2 retention rising steeply
                                            above about 6 g/L (DAN Alert Diver,
-                                           "Performance Under Pressure"; SECONDARY)
-end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY)
+                                           "Performance Under Pressure"; SECONDARY);
+                                           the default fail limit only warns: it fails
+                                           when the contractor states it
+end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY); the
+                                           default only warns, a stated end_max fails
 descent_rate_max        75 fsw/min         U.S. Navy Diving Manual ch. 9, from memory
 ascent_rate             30 fsw/min         U.S. Navy Diving Manual Rev 4 Change A ch. 9
                                            (OLDER-EDITION)
@@ -558,8 +561,14 @@ class Policy(_Section):
         "instead",
     )
     density_warn_g_per_l: float = Field(5.2, gt=0, le=30, description="Gas density warning [g/L]")
-    density_fail_g_per_l: float = Field(6.2, gt=0, le=30, description="Gas density limit [g/L]")
-    end_max: Depth | None = _depth_field("Equivalent narcotic depth limit", None)
+    density_fail_g_per_l: float = Field(
+        6.2, gt=0, le=30,
+        description="Gas density limit [g/L]: fails when the contractor states it; the "
+        "6.2 g/L default (rebreather literature) only warns",
+    )
+    end_max: Depth | None = _depth_field(
+        "Equivalent narcotic depth limit, the contractor's fail limit (plan unit); when "
+        "absent the 100 fsw / 30 msw default only warns", None)
     reference_table: Annotated[str | None, AfterValidator(_check_reference_table)] = Field(
         None,
         max_length=text_cap("path"),

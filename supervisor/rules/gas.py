@@ -10,13 +10,16 @@
   chamber gas at the chamber limit against its stop depth, with the limits, their
   severity and the 0.01 atm tolerance of :mod:`supervisor.rules.po2_limits`.
 * Equivalent narcotic depth, with oxygen counted narcotic (the NOAA convention),
-  against ``policy.end_max``.  The limit fails when the contractor sets it; the
-  default 100 fsw / 30 msw is a common planning ceiling known from secondary
-  sources only, so breaking the default warns.
+  against ``policy.end_max`` (in the plan's unit): the contractor's fail limit.
+  It fails only when the contractor sets it; the default 100 fsw / 30 msw is a
+  common planning ceiling known from secondary sources only, so breaking the
+  default warns (a surface-supplied air dive the regulation allows, e.g. 220 fsw
+  for 30 min, is not failed on a default).
 * Gas density at the maximum depth (Peng-Robinson, at the stated water
   temperature, else 15 degC) against the policy's ``density_warn_g_per_l`` (warn)
-  and ``density_fail_g_per_l`` (fail).  Both are company policy limits: breaking
-  the limit fails whatever the status of the source its default came from.  The
+  and ``density_fail_g_per_l`` (fail).  The fail limit fails only when the
+  contractor states it in the policy: the default maximum comes from rebreather
+  literature, so a dive above it on the default warns.  The
   defaults, 5.2 g/L preferred and 6.2 g/L maximum, follow the recommendation of
   Anthony and Mitchell (2016) [3], held FROM MEMORY; the underlying finding that
   CO2 retention rises steeply above about 6 g/L (UK defence-research test data on
@@ -241,6 +244,10 @@ def density(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             own, limit = own_fail, hi
             msg = text + " is above the " + _threshold(own, "density_fail_g_per_l", hi, "limit")
             sev, verified = "fail", True
+            if not own:  # a default nobody chose warns; only the contractor's own fails
+                sev, verified = "warn", False
+                msg += ("; a default, not the contractor's limit: set "
+                        "policy.density_fail_g_per_l for a limit that fails")
         elif rho > lo + 1e-9:
             own, limit = own_warn, lo
             msg = text + " is above the " + _threshold(own, "density_warn_g_per_l", lo,

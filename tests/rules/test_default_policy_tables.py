@@ -32,7 +32,7 @@ from supervisor.rules.base import CheckContext
 LIMIT_RULES = frozenset({
     "oxygen-po2-bottom", "oxygen-po2-decompression", "oxygen-po2-chamber",
     "oxygen-po2-range", "oxygen-cns-dive", "oxygen-cns-day",
-    "gas-mod", "gas-hypoxic",
+    "gas-mod", "gas-hypoxic", "gas-density", "gas-end",
 })
 _MODE_DECO = {"air": "in-water", "air_o2": "in-water-oxygen", "surd_o2": "surface-oxygen"}
 _BATCH = MAX_TEAM - 5  # divers per plan, the base plan's other members kept

@@ -174,15 +174,17 @@ def test_density_above_preferred_warns_vs_coolprop():
     assert "policy.density_warn_g_per_l" in f.message
 
 
-def test_density_above_maximum_fails_on_default_thresholds():
-    f = only(run(_dense(50), FAMILY, "gas-density"), "fail")
+def test_density_above_the_default_maximum_only_warns():
+    """Air at 50 m: 7.29 g/L (CoolProp), above the 6.2 g/L default maximum (Anthony &
+    Mitchell 2016, FROM MEMORY; the inflection near 6 g/L from UK test data reported by
+    DAN Alert Diver, SECONDARY): a default nobody chose warns, it does not fail."""
+    f = only(run(_dense(50), FAMILY, "gas-density"), "warn")
     assert f.measured == pytest.approx(7.29, rel=0.01)  # CoolProp, air 50 m 15 degC
-    # 6.2 g/L maximum: Anthony & Mitchell (2016), FROM MEMORY; the inflection near 6 g/L
-    # (UK test data) reported by DAN Alert Diver, SECONDARY
-    assert f.limit == 6.2 and f.verified
+    assert f.limit == 6.2 and not f.verified
     assert f.source_status == "FROM MEMORY"
     assert "policy.density_fail_g_per_l: default after Anthony & Mitchell 2016, FROM MEMORY" \
         in f.message
+    assert "set policy.density_fail_g_per_l" in f.message
     assert "6 g/L is SECONDARY" in f.message
     assert DAN_DENSITY in f.citation and "SECONDARY" in f.citation
 
@@ -228,3 +230,39 @@ def test_density_fails_in_the_nonconforming_example():
     ctx = CheckContext(load_plan(root / "examples" / "nonconforming-job.toml"))
     f = only(FAMILY.get("gas-density").run(ctx), "fail")
     assert f.measured == pytest.approx(6.53, abs=0.01) and f.limit == 6.2
+
+
+def test_a_legal_uscg_air_dive_fails_no_gas_or_oxygen_default():
+    """Surface-supplied air to 220 fsw for 30 min, which 46 CFR 197.432 allows (air to
+    220 fsw with a bottom time of 30 min or less; regulation text, VERIFIED), does not
+    fail on a default: PO2 1.61 ata (within 1.6 + 0.01),
+    density about 10 g/L, END 220 fsw only warn.  Stops from the project's model (its
+    own schedule, not an outside value)."""
+    from supervisor.rules import oxygen
+
+    stops = [{"depth": dd, "minutes": mm} for dd, mm in
+             ((120, 1), (100, 1), (90, 3), (80, 2), (70, 4), (60, 6), (50, 8), (40, 13),
+              (30, 20))]
+    stops += [{"depth": 20, "minutes": 13, "gas": "oxygen"},
+              {"depth": 10, "minutes": 25, "gas": "oxygen"}]
+    d = data(max_depth=220, bottom_time_min=30, decompression="in-water-oxygen", stops=stops)
+    d["job"]["jurisdiction"] = "uscg-46-197-b"
+    got = []
+    for fam in (FAMILY, oxygen.FAMILY):
+        for rule in fam.rules:
+            got += run(d, fam, rule.name)
+    assert not [(f.rule, f.message) for f in got if f.severity == "fail"]
+    warned = {f.rule for f in got if f.severity == "warn"}
+    assert {"gas-density", "gas-end", "oxygen-po2-bottom"} <= warned
+
+
+def test_end_is_the_contractors_fail_limit_in_the_plan_unit():
+    """policy.end_max in msw fails when stated (30 msw of air = 30 msw END, oxygen narcotic);
+    absent, the 30 msw default warns."""
+    d = msw(max_depth=33, bottom_time_min=15, decompression="in-water",
+            stops=[{"depth": 3, "minutes": 10}])
+    f = only(run(d, FAMILY, "gas-end"), "warn")
+    assert f.limit == 30 and f.unit == "msw"
+    d["policy"]["end_max"] = 30
+    f = only(run(d, FAMILY, "gas-end"), "fail")
+    assert f.limit == 30 and f.unit == "msw"
