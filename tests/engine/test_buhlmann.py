@@ -5,8 +5,8 @@ a = 2 t^(-1/3) and b = 1.005 - t^(-1/2), with his printed b4 = 0.7825 (Bühlmann
 Nussberger, Tauchmedizin, 4th ed. 1995; seen in a secondary source only; another
 secondary table prints 0.7725, the formula value, so b4 is unresolved).  The printed
 b5 = 0.8126 is no exception: the formula gives 0.81255, half a unit of the fourth
-decimal away, within the rounding of a four-decimal table.  Values marked "regression" were computed for these checks
-from the stated formulas and are not published figures.
+decimal away, within the rounding of a four-decimal table.  Values marked "regression"
+were computed for these checks from the stated formulas and are not published figures.
 """
 
 from __future__ import annotations
