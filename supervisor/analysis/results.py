@@ -53,22 +53,27 @@ CHAMBER_OXYGEN_LIMIT = (
 )
 
 
-def chamber_oxygen_json(e: ox.OxygenExposure | None) -> dict[str, Any] | None:
+def chamber_oxygen_json(
+    e: ox.OxygenExposure | None, dive: Dive | None = None
+) -> dict[str, Any] | None:
     """The ``chamber_oxygen`` object of a dive's oxygen section; None without a chamber.
 
-    ``minutes`` are the minutes on an oxygen-enriched gas in the chamber, ``periods``
-    those minutes in 30-min periods rounded up to half periods, ``rule`` the rule that
+    ``minutes`` are the minutes on an oxygen-enriched gas in the chamber (travel
+    included), ``periods`` the planned chamber oxygen stop minutes (of ``dive``; else
+    ``minutes``) in 30-min periods rounded up to half periods, ``rule`` the rule that
     counts them (never an in-water CNS percentage).
     """
     if e is None or not e.has_chamber:
         return None
     period = O2_AIR_BREAK[0]
     minutes = e.chamber_oxygen_minutes
+    planned = minutes if dive is None else sum(
+        s.minutes for s in dive.chamber_stops if dive.stop_gas(s).fo2 > C.FO2_AIR + 1e-9)
     return {
         "minutes": _r(minutes, 2),
         "otu": _r(e.chamber_otu, 1),
         "max_po2_atm": _r(e.chamber_max_po2_atm),
-        "periods": math.ceil(minutes / (period / 2) - 1e-9) / 2,
+        "periods": math.ceil(planned / (period / 2) - 1e-9) / 2,
         "rule": CHAMBER_OXYGEN_RULE,
         "counted_by": CHAMBER_OXYGEN_COUNTED_BY,
         "limit": CHAMBER_OXYGEN_LIMIT,
@@ -460,7 +465,7 @@ class DiveAnalysis:
             "cns_note": e.cns_note if e else "",
             "minutes_above_table": _r(e.minutes_above_range, 2) if e else None,
             "po2_tolerance_atm": ox.PO2_TOLERANCE_ATM,
-            "chamber_oxygen": chamber_oxygen_json(e),
+            "chamber_oxygen": chamber_oxygen_json(e, self.dive),
             "needs_review": e.needs_review if e else True,
             "error": self.errors.get("oxygen"),
         }

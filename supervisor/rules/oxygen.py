@@ -156,10 +156,10 @@ def po2_range(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             yield r.ok(f"in-water PO2 at most {e.water_max_po2_atm:.2f} atm, inside the CNS "
                        f"table (tolerance {e.po2_tolerance_atm:g} atm)", **kw)
-        c = an.chamber_oxygen_json(e)
+        c = an.chamber_oxygen_json(e, d)
         if c is not None:  # chamber oxygen: say which rule counts it instead
             yield r.note(
-                f"chamber oxygen {c['minutes']:g} min ({c['periods']:g} period(s)), "
+                f"chamber oxygen {c['minutes']:.1f} min ({c['periods']:g} period(s)), "
                 f"{c['otu']:g} OTU, PO2 up to {c['max_po2_atm']:.2f} atm: not on the "
                 f"in-water CNS table and given no CNS percentage; counted by "
                 f"{c['counted_by']}: {c['limit']}",
@@ -223,8 +223,11 @@ def cns_day(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         yield _limit_finding(
             r, dd.cns_limits, dd.cns_24h_exceeded,
-            f"{day.diver}: highest CNS exposure in any 24 hours {dd.max_cns_24h_percent:.0f} % "
-            f"of the 24-hour limits over {len(day.dive_ids)} dive(s)",
+            f"{day.diver}: highest in-water CNS exposure in any 24 hours "
+            + (f"at least {_floor1(dd.max_cns_24h_percent)} % (a lower bound: PO2 above the "
+               "table in the water)" if dd.out_of_range else
+               f"{dd.max_cns_24h_percent:.0f} %")
+            + f" of the 24-hour limits over {len(day.dive_ids)} dive(s)",
             measured=round(dd.max_cns_24h_percent, 1), limit=CNS_LIMIT_PERCENT, unit="%",
             dive=_day_dive(day),
         )
