@@ -24,6 +24,7 @@ from supervisor.check import run_check  # noqa: E402
 from supervisor.report.document import build_record, document_sha256, record_bytes  # noqa: E402
 from supervisor.report.pdf import render_pdf  # noqa: E402
 
+
 def _pdf_text(d: dict, tmp: Path) -> tuple[dict, str]:
     path = tmp / "plan.toml"
     path.write_bytes(tomli_w.dumps(d).encode("utf-8"))
