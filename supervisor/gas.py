@@ -53,6 +53,12 @@ EquationOfState = Literal["ideal", "peng-robinson"]
 
 _TOL = 1e-9
 
+#: Lowest inspired oxygen partial pressure that is not hypoxic [ata]: "inspired ppO2
+#: below 0.16 ata produces hypoxia", U.S. Navy Diving Manual, Revision 4 Change A
+#: (2001), ch. 15, DDC and PTC atmosphere control (OLDER-EDITION) [5].  The default of
+#: the policy's minimum (``policy.po2_min_ata``).
+HYPOXIC_PO2_MIN_ATA: float = 0.16
+
 
 @dataclass(frozen=True)
 class Gas:

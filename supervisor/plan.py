@@ -19,16 +19,27 @@ field                   default            source of the default
 ======================  =================  =============================================
 model                   zhl16c             common practice, no source
 gf_low, gf_high         30 %, 85 %         common practice, no source
-po2_bottom_max          1.4 bar            NOAA working maximum 1.4 ATA (NOAA Diving
-                                           Manual; VERIFIED)
-po2_decompression_max   1.6 bar            commercial practice, from memory
-po2_chamber_max         2.8 bar            Navy treatment practice 2.8 ata (U.S. Navy
+po2_bottom_max_ata      1.4 ata            NOAA working maximum 1.4 ATA (NOAA Diving
+                                           Manual; VERIFIED); a default the contractor
+                                           did not choose: above it warns, above the
+                                           in-water limit fails
+po2_decompression_max_  1.6 ata            commercial practice, from memory; guards
+ata                                        against oxygen convulsion in the water, so it
+                                           fails unless the policy's reference table
+                                           itself prescribes oxygen deeper (rules.oxygen)
+po2_chamber_max_ata     2.8 ata            Navy treatment practice 2.8 ata (U.S. Navy
                                            Diving Manual Rev 4 Change A; OLDER-EDITION)
+po2_min_ata             0.16 ata           hypoxia below 0.16 ata (U.S. Navy Diving
+                                           Manual Rev 4 Change A ch. 15; OLDER-EDITION);
+                                           physics that kills: fails by default
 density_warn/fail       5.2 / 6.2 g/L      Anthony & Mitchell (2016) recommendation,
                                            FROM MEMORY; CO2 retention rising steeply
                                            above about 6 g/L (DAN Alert Diver,
-                                           "Performance Under Pressure"; SECONDARY)
-end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY)
+                                           "Performance Under Pressure"; SECONDARY);
+                                           the default fail limit only warns: it fails
+                                           when the contractor states it
+end_max                 100 fsw / 30 msw   common planning ceiling (SECONDARY); the
+                                           default only warns, a stated end_max fails
 descent_rate_max        75 fsw/min         U.S. Navy Diving Manual ch. 9, from memory
 ascent_rate             30 fsw/min         U.S. Navy Diving Manual Rev 4 Change A ch. 9
                                            (OLDER-EDITION)
@@ -50,6 +61,10 @@ max                     needs review       published limit (rules.procedure)
 ======================  =================  =============================================
 
 msw defaults are the fsw values converted and rounded to a practical figure.
+PO2 limits are in ata (atm absolute), the trade's unit; the older keys
+``po2_bottom_max``, ``po2_decompression_max`` and ``po2_chamber_max`` are the same
+limits in bar (1 atm = 1.01325 bar) and keep working.  Every PO2 comparison
+tolerates 0.01 atm (:data:`supervisor.engine.oxygen.PO2_TOLERANCE_ATM`).
 """
 
 from __future__ import annotations
@@ -77,7 +92,7 @@ from pydantic import (
 
 from supervisor import constants as C
 from supervisor.errors import InputError, PlanError
-from supervisor.gas import Gas, parse_gas
+from supervisor.gas import HYPOXIC_PO2_MIN_ATA, Gas, parse_gas
 from supervisor.plan_errors import Problems, problems_from, show
 from supervisor.plan_fields import (  # noqa: F401  (re-exported: the plan module's API)
     MAX_ALTITUDE_WAIT_H,
@@ -138,6 +153,15 @@ CHAMBER_COMPRESSION_FSW_PER_MIN = 100.0
 #: (SECONDARY).  A plan that states no ``surface_transfer_min`` is drawn with the rest of
 #: this interval on deck.
 SURD_INTERVAL_MIN = 5.0
+
+#: Default PO2 limits of the policy [ata] (module docstring: their sources).
+PO2_DEFAULTS_ATA: dict[str, float] = {"bottom": 1.4, "decompression": 1.6, "chamber": 2.8}
+# Policy key of each phase's PO2 limit (bar; the ata key adds "_ata").
+_PO2_KEYS: dict[str, str] = {
+    "bottom": "po2_bottom_max",
+    "decompression": "po2_decompression_max",
+    "chamber": "po2_chamber_max",
+}
 
 # Policy defaults per unit: (fsw value, msw value).
 _UNIT_DEFAULTS: dict[str, tuple[float, float]] = {
@@ -547,14 +571,48 @@ class Policy(_Section):
     model: ModelName = Field("zhl16c", description="Decompression model")
     gf_low: float = Field(30.0, gt=0, le=100, description="Gradient factor low [%]")
     gf_high: float = Field(85.0, gt=0, le=100, description="Gradient factor high [%]")
-    po2_bottom_max: float = Field(1.4, gt=0, le=3, description="Bottom PO2 limit [bar]")
-    po2_decompression_max: float = Field(
-        1.6, gt=0, le=3, description="In-water decompression PO2 limit [bar]"
+    po2_bottom_max_ata: float = Field(
+        PO2_DEFAULTS_ATA["bottom"], gt=0, le=3,
+        description="Bottom PO2 limit [ata, atm absolute]: the contractor's own fails; the "
+        "1.4 ata default warns, and fails above the in-water limit",
     )
-    po2_chamber_max: float = Field(2.8, gt=0, le=3.5, description="Chamber PO2 limit [bar]")
+    po2_decompression_max_ata: float = Field(
+        PO2_DEFAULTS_ATA["decompression"], gt=0, le=3,
+        description="In-water decompression PO2 limit [ata, atm absolute]",
+    )
+    po2_chamber_max_ata: float = Field(
+        PO2_DEFAULTS_ATA["chamber"], gt=0, le=3.5,
+        description="Chamber PO2 limit [ata, atm absolute]",
+    )
+    po2_min_ata: float = Field(
+        HYPOXIC_PO2_MIN_ATA, ge=0.1, le=0.5,
+        description="Lowest inspired PO2 of any breathing gas, at the surface, on descent "
+        "and at every stop [ata, atm absolute]; below it fails (hypoxia)",
+    )
+    po2_bottom_max: float = Field(
+        PO2_DEFAULTS_ATA["bottom"] * C.P_ATM_BAR, gt=0, le=3 * C.P_ATM_BAR,
+        description="Bottom PO2 limit in bar, kept for older plans (1 atm = 1.01325 bar); "
+        "give po2_bottom_max_ata instead",
+    )
+    po2_decompression_max: float = Field(
+        PO2_DEFAULTS_ATA["decompression"] * C.P_ATM_BAR, gt=0, le=3 * C.P_ATM_BAR,
+        description="In-water decompression PO2 limit in bar, kept for older plans; give "
+        "po2_decompression_max_ata instead",
+    )
+    po2_chamber_max: float = Field(
+        PO2_DEFAULTS_ATA["chamber"] * C.P_ATM_BAR, gt=0, le=3.5 * C.P_ATM_BAR,
+        description="Chamber PO2 limit in bar, kept for older plans; give po2_chamber_max_ata "
+        "instead",
+    )
     density_warn_g_per_l: float = Field(5.2, gt=0, le=30, description="Gas density warning [g/L]")
-    density_fail_g_per_l: float = Field(6.2, gt=0, le=30, description="Gas density limit [g/L]")
-    end_max: Depth | None = _depth_field("Equivalent narcotic depth limit", None)
+    density_fail_g_per_l: float = Field(
+        6.2, gt=0, le=30,
+        description="Gas density limit [g/L]: fails when the contractor states it; the "
+        "6.2 g/L default (rebreather literature) only warns",
+    )
+    end_max: Depth | None = _depth_field(
+        "Equivalent narcotic depth limit, the contractor's fail limit (plan unit); when "
+        "absent the 100 fsw / 30 msw default only warns", None)
     reference_table: Annotated[str | None, AfterValidator(_check_reference_table)] = Field(
         None,
         max_length=text_cap("path"),
@@ -600,9 +658,33 @@ class Policy(_Section):
         "the surface interval, as a percentage of the M-value gradient [%]; not stated: a "
         "default of this project with no source, beyond which the plan needs review")
 
+    def po2_stated(self, phase: str) -> bool:
+        """Whether the plan states the ``phase`` PO2 limit (in ata or in the older bar key)."""
+        key = _PO2_KEYS[phase]
+        return bool({key, key + "_ata"} & self.model_fields_set)
+
+    def po2_limit_ata(self, phase: str) -> float:
+        """The ``phase`` PO2 limit [ata]: ``bottom``, ``decompression`` or ``chamber``."""
+        return float(getattr(self, _PO2_KEYS[phase] + "_ata"))
+
+    def _sync_po2(self, problems: list[tuple[str, str]]) -> None:
+        """Keep each ata limit and its older bar key the same limit (the stated one wins)."""
+        stated = self.model_fields_set
+        for key in _PO2_KEYS.values():
+            ata, bar = float(getattr(self, key + "_ata")), float(getattr(self, key))
+            if key in stated and key + "_ata" in stated:
+                if abs(ata * C.P_ATM_BAR - bar) > 5e-4:
+                    problems.append((key, f"got {bar:g} bar and {key}_ata {ata:g} ata "
+                                     f"({ata * C.P_ATM_BAR:.3f} bar); give one of the two"))
+            elif key in stated:
+                self.__dict__[key + "_ata"] = bar / C.P_ATM_BAR
+            else:  # the ata value (stated or default) sets the bar key; not marked stated
+                self.__dict__[key] = ata * C.P_ATM_BAR
+
     @model_validator(mode="after")
     def _ordered(self) -> Policy:
         problems: list[tuple[str, str]] = []
+        self._sync_po2(problems)
         if self.gf_low > self.gf_high:
             problems.append(
                 ("gf_low", f"got {self.gf_low:g} %; expected <= gf_high ({self.gf_high:g} %)")

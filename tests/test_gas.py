@@ -100,12 +100,21 @@ def test_partial_pressure_is_dalton():
 
 
 def test_inspired_po2_vs_navy_depth_limits():
-    """Air at 190 fsw gives 0.21 x 223 / 33 = 1.42 ata (DERIVED from the Navy 190 fsw limit,
-    U.S. Navy Diving Manual Rev 4 ChA §6 air limits, OLDER-EDITION); 0.01 ata as printed."""
+    """Dalton's law with 33 fsw = 1 atm at depths the Navy uses.
+
+    Outside value: oxygen at 60 fsw is 2.82 ata, the figure the Navy treatment tables
+    print (U.S. Navy Diving Manual Rev 4 Change A ch. 21, OLDER-EDITION); two decimals,
+    so atol 0.005.  The other expectations are the same formula worked by hand at the
+    Navy's depth limits (DERIVED: the project's own formula, not a printed Navy PO2):
+    air at 190 fsw 0.21 x 223/33 = 1.42 ata; heliox 50/50 at 90 fsw 1.86 ata; oxygen at
+    30 fsw 1.91 ata."""
+    assert convert_pressure(inspired_po2(60.0, OXYGEN, "fsw"), "bar", "atm") == pytest.approx(
+        2.82, abs=0.005
+    )
+    # DERIVED (the project's formula by hand): 0.21 x (190 + 33) / 33
     po2 = inspired_po2(190.0, AIR, "fsw")
     assert convert_pressure(po2, "bar", "atm") == pytest.approx(1.42, abs=0.005)
-    # Heliox decompression gases (Navy ch. 14, DERIVED): 50/50 at 90 fsw 1.86 ata,
-    # oxygen at 30 fsw 1.91 ata.
+    # DERIVED: 0.5 x (90 + 33) / 33 and 1.0 x (30 + 33) / 33
     assert convert_pressure(inspired_po2(90.0, "50/50", "fsw"), "bar", "atm") == pytest.approx(
         1.86, abs=0.005
     )

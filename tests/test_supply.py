@@ -189,19 +189,25 @@ def test_egs_with_a_first_stop_needs_less_ascent_but_a_higher_floor():
 
 
 def test_flask_bank_vs_navy_sample_problem():
-    """4 flasks x 8 ft^3 at 3000 psig, 3 divers at 130 fsw, 1.4 acfm each (problem statement:
-    Navy Rev 4 ChA p. 8-4, OLDER-EDITION).  The manual's solution page was not available;
-    the expected values are DERIVED with Pm = MMP (192.9 psig): 6110.8 scf, 20.75 scfm,
-    about 294 min (the manual's answer, from memory)."""
+    """4 flasks x 8 ft^3 at 3000 psig, 3 divers at 130 fsw, 1.4 acfm each.
+
+    Outside: only the problem statement and the formulas (MMP = 0.445 D + over-bottom
+    pressure; Va = (Pc - Pm)/14.7 x FV x N; Navy Rev 4 ChA pp. 8-3/8-4, OLDER-EDITION).
+    The manual's solution page was not available: every expected number below is this
+    project's own recomputation with those formulas and Pm taken = MMP (DERIVED, the same
+    arithmetic as the code, so not an outside check of it), and the duration of about
+    294 min is the manual's answer as recalled (from memory)."""
     ex = NAVY["flasks"]
     mmp = minimum_manifold_pressure(ex["depth_fsw"], ex["over_bottom_psig"], round_bottom_up=False)
-    assert mmp == pytest.approx(ex["mmp_psig"], abs=0.051)  # 192.85, printed to 0.1
+    # DERIVED: 130 x 0.445 + 135 = 192.85 psig (the Navy's formula, the project's arithmetic)
+    assert mmp == pytest.approx(ex["mmp_psig"], abs=0.051)
     va = free_gas_volume(
         ex["flask_psig"], ex["floodable_volume_ft3"], mmp, ex["flasks"], "psi", NAVY_PSI_PER_ATM
     )
-    assert va == pytest.approx(ex["available_scf"], abs=0.05)
+    assert va == pytest.approx(ex["available_scf"], abs=0.05)  # DERIVED: 6110.8 scf
     demand = consumption_at_depth(ex["acfm_per_diver"] * ex["divers"], ex["depth_fsw"], "fsw")
-    assert demand == pytest.approx(ex["demand_scfm"], abs=0.005)
+    assert demand == pytest.approx(ex["demand_scfm"], abs=0.005)  # DERIVED: 20.75 scfm
+    # from memory: the manual's answer recalled as about 294 min
     assert duration_min(va, demand) == pytest.approx(ex["duration_min"], abs=1.0)
 
 
@@ -211,7 +217,8 @@ def test_flask_bank_vs_navy_sample_problem():
 def test_noaa_metric_sac_example():
     """100 bar in 20 min at 10 m -> 5 bar/min -> 2.5 bar/min at the surface -> 8.5 bar/min at
     24 m (3.4 ata) -> about 19 min from 200 bar keeping 35 bar (NOAA Diving Manual air-
-    consumption examples, VERIFIED, attribution inferred).  The example takes 10 m per bar
+    consumption examples as printed on an unofficial flipbook page: SECONDARY; the
+    attribution to NOAA is inferred, FROM MEMORY).  The example takes 10 m per bar
     and the surface at 1 bar, pinned here with msw and p_surface_bar = p_ref_bar = 1."""
     ex = NOAA["metric"]
     kw = dict(unit="msw", p_surface_bar=1.0, p_ref_bar=1.0)
@@ -228,7 +235,7 @@ def test_noaa_metric_sac_example():
 
 def test_noaa_imperial_sac_example():
     """1500 psi in 20 min at 33 ft -> 75 -> 37.5 psi/min at the surface -> 140 psi/min at 90 ft
-    (3.73 ata) -> about 18 min from 3000 psi keeping 500 (NOAA examples, VERIFIED, attribution
+    (3.73 ata) -> about 18 min from 3000 psi keeping 500 (NOAA examples, SECONDARY, attribution
     inferred).  33 ft = 1 atm here, as in the package fsw.  140 is printed rounded (139.8):
     atol 0.5; the duration is printed as "about 18" (17.9): atol 0.5."""
     ex = NOAA["imperial"]

@@ -100,6 +100,7 @@ from supervisor.analysis.figures import (
     to_table_depth,
 )
 from supervisor.analysis.results import (
+    CHAMBER_OXYGEN_RULE,
     Contingency,
     DiveAnalysis,
     DiverDay,
@@ -108,6 +109,7 @@ from supervisor.analysis.results import (
     Supply,
     _err,
     bar_per_unit,
+    chamber_oxygen_json,
 )
 from supervisor.engine import buhlmann as bm
 from supervisor.engine import oxygen as ox
@@ -119,6 +121,7 @@ from supervisor.units import altitude_pressure
 __all__ = [
     "ALTITUDE_SEARCH_MAX_MIN",
     "CABIN_ALTITUDE_M",
+    "CHAMBER_OXYGEN_RULE",
     "CHAMBER_SOURCES",
     "COMPUTE_ERRORS",
     "ChamberGas",
@@ -145,6 +148,7 @@ __all__ = [
     "analyse_plan",
     "bar_per_unit",
     "chamber_gas",
+    "chamber_oxygen_json",
     "for_context",
     "from_table_depth",
     "finish_dives",

@@ -11,6 +11,7 @@ from numpy.typing import NDArray
 
 from supervisor import constants as C
 from supervisor.analysis.assumptions import (
+    O2_AIR_BREAK,
     REPETITIVE_WINDOW_MIN,
     RMV_SOURCE,
 )
@@ -38,6 +39,46 @@ def _r(x: float | None, nd: int = 3) -> float | None:
 def bar_per_unit(unit: str) -> float:
     """Bar per plan depth unit (fsw or msw, both pressure units) [bar/unit]."""
     return C.BAR_PER_FSW if unit == "fsw" else C.BAR_PER_MSW
+
+
+#: The rule that counts chamber oxygen in a check instead of an in-water CNS percentage.
+CHAMBER_OXYGEN_RULE = "proc-o2-chamber-periods"
+CHAMBER_OXYGEN_COUNTED_BY = (
+    "chamber oxygen periods against the surface-decompression procedure's limits "
+    f"(rule {CHAMBER_OXYGEN_RULE}); the NOAA in-water CNS table does not apply"
+)
+CHAMBER_OXYGEN_LIMIT = (
+    f"oxygen periods of at most {O2_AIR_BREAK[0]:g} min separated by {O2_AIR_BREAK[1]:g}-min "
+    "air breaks (U.S. Navy Diving Manual Rev 7 ch. 9, surface decompression on oxygen; "
+    "SECONDARY)"
+)
+
+
+def chamber_oxygen_json(
+    e: ox.OxygenExposure | None, dive: Dive | None = None
+) -> dict[str, Any] | None:
+    """The ``chamber_oxygen`` object of a dive's oxygen section; None without a chamber.
+
+    ``minutes`` are the minutes on an oxygen-enriched gas in the chamber (travel
+    included), ``periods`` the planned chamber oxygen stop minutes (of ``dive``; else
+    ``minutes``) in 30-min periods rounded up to half periods, ``rule`` the rule that
+    counts them (never an in-water CNS percentage).
+    """
+    if e is None or not e.has_chamber:
+        return None
+    period = O2_AIR_BREAK[0]
+    minutes = e.chamber_oxygen_minutes
+    planned = minutes if dive is None else sum(
+        s.minutes for s in dive.chamber_stops if dive.stop_gas(s).fo2 > C.FO2_AIR + 1e-9)
+    return {
+        "minutes": _r(minutes, 2),
+        "otu": _r(e.chamber_otu, 1),
+        "max_po2_atm": _r(e.chamber_max_po2_atm),
+        "periods": math.ceil(planned / (period / 2) - 1e-9) / 2,
+        "rule": CHAMBER_OXYGEN_RULE,
+        "counted_by": CHAMBER_OXYGEN_COUNTED_BY,
+        "limit": CHAMBER_OXYGEN_LIMIT,
+    }
 
 
 def _reference_json(look: Any) -> dict[str, Any] | None:
@@ -417,10 +458,15 @@ class DiveAnalysis:
             "po2_by_phase": {k: _r(v) for k, v in self.po2_max.items()},
             "min_po2_by_phase": {k: _r(v) for k, v in self.po2_min.items()},
             "max_po2": _r(e.max_po2_bar) if e else None,
+            "max_po2_atm": _r(e.max_po2_atm) if e else None,
             "cns_percent": _r(e.cns_percent, 1) if e else None,
             "cns_24h_percent": _r(e.cns_24h_percent, 1) if e else None,
             "otu": _r(e.otu, 1) if e else None,
             "cns_is_lower_bound": e.out_of_range if e else None,
+            "cns_note": e.cns_note if e else "",
+            "minutes_above_table": _r(e.minutes_above_range, 2) if e else None,
+            "po2_tolerance_atm": ox.PO2_TOLERANCE_ATM,
+            "chamber_oxygen": chamber_oxygen_json(e, self.dive),
             "needs_review": e.needs_review if e else True,
             "error": self.errors.get("oxygen"),
         }

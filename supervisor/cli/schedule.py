@@ -105,13 +105,24 @@ def _table(js: dict) -> str:
         f"surfacing GF {gf_percent_text(js['surfacing_gf_percent'])} (compartment "
         f"{js['controlling_compartment']})"
     )
+    low = ox.get("cns_is_lower_bound") or ox.get("out_of_range")
+    cns_text = ("n/a" if cns is None else
+                f"at least {math.floor(cns * 10 + 1e-9) / 10:.1f} % (lower bound)" if low else
+                f"{cns:.1f} %")
+    chamber = ox.get("chamber_oxygen")
     lines.append(
-        "oxygen: CNS "
-        + ("n/a" if cns is None else f"{cns:.1f} %")
+        ("oxygen: in-water CNS " if chamber else "oxygen: CNS ")
+        + cns_text
         + ", OTU "
         + ("n/a" if otu is None else f"{otu:.0f}")
-        + (" (PO2 above the CNS table: needs review)" if ox.get("out_of_range") else "")
+        + (" (PO2 above the CNS table in the water: needs review)" if low else "")
     )
+    if chamber:
+        lines.append(
+            f"chamber oxygen: {chamber['minutes']:.0f} min, {chamber['otu']:.0f} OTU, PO2 up to "
+            f"{chamber['max_po2_atm']:.2f} atm; no in-water CNS percentage (counted as chamber "
+            "oxygen periods against the procedure's limits)"
+        )
     if js.get("surface_interval_max_gf_percent") is not None:
         lines.append(
             f"surface interval: peak supersaturation {js['surface_interval_max_gf_percent']:.0f} % "

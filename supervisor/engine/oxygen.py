@@ -7,9 +7,17 @@ linearly with time.  For every segment the module computes
   along the linear PO2 change [2];
 * the CNS percentage, time / limit x 100, against the single-exposure and the 24-hour
   columns of the NOAA normal-exposure table [1], integrated exactly over the table's
-  step curve (a PO2 between two rows takes the next-higher row, the shorter limit);
-* the minutes spent above the table's highest row (1.6 atm): they are flagged, never
-  extrapolated, so the CNS percentage of such a dive is a lower bound that needs review.
+  step curve (a PO2 between two rows takes the next-higher row, the shorter limit; a
+  PO2 within :data:`PO2_TOLERANCE_ATM` of a row counts at that row, so the standard
+  20 fsw oxygen stop at 1.606 atm counts at the 1.6 atm row);
+* the minutes spent in the water above the table's highest row (1.6 atm) plus the
+  tolerance: they are charged at the top row's rate (never zero) and flagged, since
+  the table gives no limit there; the CNS percentage is then a lower bound;
+* chamber oxygen (segments whose ``place`` is ``chamber``: surface decompression in
+  the chamber, treatment, at 2.0-2.8 ata) is not on the NOAA in-water table at all.
+  It adds no in-water CNS percentage; its minutes, OTU and highest PO2 are kept
+  apart (:attr:`OxygenExposure.chamber_minutes` ...) for the rule that counts chamber
+  oxygen, the chamber oxygen periods against the procedure's limits.
 
 :func:`daily_exposure` combines several exposures on one time line: the highest OTU and
 24-hour CNS percentage over any 24 hours, and the REPEX series check over any k
@@ -39,7 +47,7 @@ References
 from __future__ import annotations
 
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
@@ -53,10 +61,12 @@ from supervisor.profile import Profile
 from supervisor.resources import tables_dir
 
 __all__ = [
+    "CHAMBER_NOTE",
     "CNS_TABLE",
     "DAY_MIN",
     "OTU_EXPONENT",
     "OTU_THRESHOLD_ATM",
+    "PO2_TOLERANCE_ATM",
     "PULMONARY_TABLE",
     "CnsLimits",
     "DailyExposure",
@@ -81,8 +91,14 @@ DAY_MIN: float = 24.0 * 60.0
 CNS_TABLE: str = "noaa-cns-limits"
 PULMONARY_TABLE: str = "pulmonary-daily-limits"
 
-# A PO2 within this distance of a table row counts as that row: bar -> atm conversion
-# rounding must not push 1.6 atm (1.6212 bar) to just above the table.
+#: A PO2 within this distance of a CNS-table row counts at that row, and a policy PO2
+#: limit is broken only when exceeded by more than it [atm].  The project's own choice
+#: (no source): the table's rows are printed to 0.1 atm, and the PO2 of a standard
+#: stop depends on the depth convention by about 0.01 atm (oxygen at 20 fsw: 1.606 atm
+#: with 33 fsw per atm, 1.605 atm with 0.030643 bar per fsw), which must not move the
+#: stop off the 1.6 atm row.
+PO2_TOLERANCE_ATM: float = 0.01
+# Floating-point slack of a band edge [atm] (a constant PO2 exactly on an edge).
 _P_TOL_ATM = 1e-12
 # Exceeding a limit means exceeding it by more than summation rounding.
 _LIMIT_TOL = 1e-9
@@ -188,8 +204,13 @@ class CnsLimits:
 
     @property
     def band_edges_atm(self) -> NDArray[np.float64]:
-        """Upper-closed band edges [atm]: band j is (edge[j], edge[j+1]] with row j's limits."""
-        return np.concatenate(([self.no_accrual_atm], self.po2_atm)) + _P_TOL_ATM
+        """Upper-closed band edges [atm]: band j is (edge[j], edge[j+1]] with row j's limits.
+
+        Each row's edge lies :data:`PO2_TOLERANCE_ATM` above the row (a PO2 within the
+        tolerance of a row counts at that row); the no-accrual edge has none.
+        """
+        rows = self.po2_atm + PO2_TOLERANCE_ATM
+        return np.concatenate(([self.no_accrual_atm + _P_TOL_ATM], rows))
 
 
 @dataclass(frozen=True, eq=False)
@@ -477,10 +498,11 @@ def _bands(
 ) -> tuple[NDArray, NDArray, NDArray]:
     """Minutes of each segment in each CNS band, above the table, and below its first row.
 
-    Returns (n, m) minutes per band, (n,) minutes above the highest row and (n,) minutes
-    between the no-accrual PO2 and the first row.  A linear PO2 spends in a band the
-    fraction of the segment's time that the band's overlap is of its PO2 span, so the
-    CNS integral over the table's step curve is exact.
+    Returns (n, m) minutes per band, (n,) minutes above the highest row plus the
+    tolerance and (n,) minutes between the no-accrual PO2 and the first row less the
+    tolerance.  A linear PO2 spends in a band the fraction of the segment's time that
+    the band's overlap is of its PO2 span, so the CNS integral over the table's step
+    curve is exact.
     """
     edges = limits.band_edges_atm
     lo = np.minimum(p1, p2)
@@ -499,20 +521,37 @@ def _bands(
     above_ramp = np.clip(hi - np.maximum(lo, top), 0.0, None) / safe
     above = minutes * np.where(ramp, above_ramp, mid > top)
 
-    below_const = (mid > edges[0]) & (mid < edges[1] - 2.0 * _P_TOL_ATM)
-    below = np.where(ramp, in_band[:, 0], minutes * below_const)
+    first = float(limits.po2_atm[0]) - PO2_TOLERANCE_ATM
+    below_ramp = np.clip(np.minimum(hi, first) - np.maximum(lo, edges[0]), 0.0, None) / safe
+    below_const = (mid > edges[0]) & (mid < first)
+    below = minutes * np.where(ramp, below_ramp, below_const)
     return in_band, above, below
 
 
 def _cns(minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits):
-    """Single-exposure and 24-hour CNS percentages, minutes above and below the table."""
+    """Single-exposure and 24-hour CNS percentages, minutes above and below the table.
+
+    Minutes above the table's top row are charged at the top row's limits (a lower
+    bound: the table gives no limit there, and the true rate can only be higher).
+    """
     in_band, above, below = _bands(minutes, p1, p2, limits)
-    single = 100.0 * np.sum(in_band / limits.single_exposure_min[None, :], axis=1)
-    daily = 100.0 * np.sum(in_band / limits.daily_limit_min[None, :], axis=1)
+    charged = in_band.copy()
+    charged[:, -1] += above
+    single = 100.0 * np.sum(charged / limits.single_exposure_min[None, :], axis=1)
+    daily = 100.0 * np.sum(charged / limits.daily_limit_min[None, :], axis=1)
     return single, daily, above, below
 
 
 # --------------------------------------------------------------------------- results
+
+
+#: How chamber oxygen (surface decompression in the chamber, treatment: 2.0-2.8 ata)
+#: is counted instead of an in-water CNS percentage.
+CHAMBER_NOTE = (
+    "chamber oxygen is not on the NOAA in-water CNS table (it stops at 1.6 atm): no "
+    "in-water CNS percentage is given for it; it is counted as chamber oxygen periods "
+    "against the procedure's limits"
+)
 
 
 @dataclass(frozen=True, eq=False)
@@ -528,24 +567,41 @@ class OxygenExposure:
     segment_otu : ndarray
         Pulmonary dose [OTU].
     segment_cns_percent : ndarray
-        CNS percentage against the single-exposure limits [%], in-range part only.
+        In-water CNS percentage against the single-exposure limits [%]; minutes above
+        the table charged at the top row's rate; 0 for chamber segments.
     segment_cns_24h_percent : ndarray
-        CNS percentage against the 24-hour limits [%], in-range part only.
+        The same against the 24-hour limits [%].
     segment_minutes_above_range : ndarray
-        Minutes above the table's highest PO2 [min]; not charged to the CNS figures.
+        In-water minutes above the table's highest PO2 plus the tolerance [min].
     segment_minutes_below_table : ndarray
         Minutes between the no-accrual PO2 and the first row, charged at the first row [min].
+    segment_in_chamber : ndarray of bool
+        The segment is breathed in a chamber (no in-water CNS percentage).
+    segment_chamber_oxygen : ndarray of bool
+        A chamber segment on an oxygen-enriched gas (more oxygen than air).
     otu, cns_percent, cns_24h_percent : float
-        Totals of the dive [OTU, %, %].
+        Totals: OTU of water and chamber; in-water CNS percentages [OTU, %, %].
     max_po2_atm : float
-        Highest PO2 reached, zero-length segments included [atm].
+        Highest PO2 reached anywhere, zero-length segments included [atm].
+    water_max_po2_atm : float
+        Highest PO2 reached in the water [atm].
     out_of_range : bool
-        True when a PO2 above the table's highest row is reached: the CNS totals are then
-        lower bounds that need review.
+        True when an in-water PO2 above the table's highest row plus the tolerance is
+        reached: the CNS totals are then lower bounds.
     minutes_above_range, minutes_below_table : float
-        Totals [min].
+        In-water totals [min].
     range_top_atm : float
         Highest PO2 of the CNS table [atm].
+    po2_tolerance_atm : float
+        :data:`PO2_TOLERANCE_ATM` [atm].
+    chamber_minutes, chamber_oxygen_minutes : float
+        Minutes in the chamber, and of them on an oxygen-enriched gas [min].
+    chamber_otu : float
+        Pulmonary dose of the chamber segments [OTU] (included in ``otu``).
+    chamber_max_po2_atm : float or None
+        Highest chamber PO2 [atm]; None without chamber segments.
+    chamber_minutes_above_table : float
+        Chamber minutes above the in-water table's top row plus the tolerance [min].
     cns_limits : TableInfo
         Provenance of the CNS limits.
     """
@@ -567,6 +623,17 @@ class OxygenExposure:
     minutes_below_table: float
     range_top_atm: float
     cns_limits: TableInfo
+    segment_in_chamber: NDArray[np.bool_] = field(
+        default_factory=lambda: np.zeros(0, dtype=bool))
+    segment_chamber_oxygen: NDArray[np.bool_] = field(
+        default_factory=lambda: np.zeros(0, dtype=bool))
+    water_max_po2_atm: float = 0.0
+    po2_tolerance_atm: float = PO2_TOLERANCE_ATM
+    chamber_minutes: float = 0.0
+    chamber_oxygen_minutes: float = 0.0
+    chamber_otu: float = 0.0
+    chamber_max_po2_atm: float | None = None
+    chamber_minutes_above_table: float = 0.0
 
     @property
     def duration_min(self) -> float:
@@ -579,9 +646,34 @@ class OxygenExposure:
         return self.max_po2_atm * C.P_ATM_BAR
 
     @property
+    def cns_is_lower_bound(self) -> bool:
+        """The in-water CNS figures are lower bounds (PO2 above the table in the water)."""
+        return self.out_of_range
+
+    @property
     def cns_status(self) -> str:
         """``"computed"``, or ``"lower bound"`` when PO2 went above the table."""
         return "lower bound" if self.out_of_range else "computed"
+
+    @property
+    def has_chamber(self) -> bool:
+        """Some segment is breathed in a chamber."""
+        return bool(np.any(self.segment_in_chamber))
+
+    @property
+    def cns_note(self) -> str:
+        """How the in-water CNS figure was counted where it is not plain (empty if plain)."""
+        parts = []
+        if self.out_of_range:
+            parts.append(
+                f"{self.minutes_above_range:.1f} min in the water above "
+                f"{self.range_top_atm:g} atm (PO2 up to {self.water_max_po2_atm:.2f} atm) "
+                f"counted at the {self.range_top_atm:g} atm rate: the CNS figure is a lower "
+                "bound"
+            )
+        if self.has_chamber:
+            parts.append(CHAMBER_NOTE)
+        return "; ".join(parts)
 
     @property
     def review_reasons(self) -> tuple[str, ...]:
@@ -589,9 +681,10 @@ class OxygenExposure:
         out = []
         if self.out_of_range:
             out.append(
-                f"PO2 reached {self.max_po2_atm:.3g} atm, above the CNS table's highest row "
-                f"({self.range_top_atm:g} atm) for {self.minutes_above_range:.4g} min: "
-                "CNS percentage not computable, the figure shown is a lower bound"
+                f"PO2 reached {self.water_max_po2_atm:.3g} atm in the water, above the CNS "
+                f"table's highest row ({self.range_top_atm:g} atm) for "
+                f"{self.minutes_above_range:.4g} min: counted at the top row's rate, the "
+                "CNS figure shown is a lower bound"
             )
         if not self.cns_limits.usable_without_review:
             out.append(
@@ -605,6 +698,18 @@ class OxygenExposure:
         """True when the CNS figures are a lower bound or rest on unchecked limits."""
         return bool(self.review_reasons)
 
+    def chamber_dict(self) -> dict[str, Any] | None:
+        """Chamber oxygen as kept apart from the in-water CNS figure; None without chamber."""
+        if not self.has_chamber:
+            return None
+        return {
+            "minutes": self.chamber_oxygen_minutes,
+            "chamber_minutes": self.chamber_minutes,
+            "otu": self.chamber_otu,
+            "max_po2_atm": self.chamber_max_po2_atm,
+            "minutes_above_in_water_table": self.chamber_minutes_above_table,
+        }
+
     def to_dict(self) -> dict[str, Any]:
         """Return a JSON-ready dictionary (schema ``supervisor-oxygen/1``)."""
         segments = [
@@ -616,8 +721,9 @@ class OxygenExposure:
                 "cns_percent": float(c),
                 "cns_24h_percent": float(c24),
                 "minutes_above_range": float(up),
+                "in_chamber": bool(ch),
             }
-            for m, a, b, o, c, c24, up in zip(
+            for m, a, b, o, c, c24, up, ch in zip(
                 self.segment_minutes,
                 self.segment_po2_start_atm,
                 self.segment_po2_end_atm,
@@ -625,6 +731,7 @@ class OxygenExposure:
                 self.segment_cns_percent,
                 self.segment_cns_24h_percent,
                 self.segment_minutes_above_range,
+                self.segment_in_chamber,
                 strict=True,
             )
         ]
@@ -636,12 +743,18 @@ class OxygenExposure:
             "cns_24h_percent": self.cns_24h_percent,
             "cns_status": self.cns_status,
             "cns_percent_is_lower_bound": self.out_of_range,
+            "cns_is_lower_bound": self.out_of_range,
+            "cns_note": self.cns_note,
             "max_po2_atm": self.max_po2_atm,
             "max_po2_bar": self.max_po2_bar,
+            "water_max_po2_atm": self.water_max_po2_atm,
             "out_of_range": self.out_of_range,
             "minutes_above_range": self.minutes_above_range,
+            "minutes_above_table": self.minutes_above_range,
             "minutes_below_table": self.minutes_below_table,
             "range_top_atm": self.range_top_atm,
+            "po2_tolerance_atm": self.po2_tolerance_atm,
+            "chamber_oxygen": self.chamber_dict(),
             "needs_review": self.needs_review,
             "review_reasons": list(self.review_reasons),
             "cns_limits": self.cns_limits.to_dict(),
@@ -660,12 +773,25 @@ def _checked(value: ArrayLike, field: str, unit: str) -> NDArray[np.float64]:
     return arr
 
 
-def _exposure(minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits) -> OxygenExposure:
+def _exposure(
+    minutes: NDArray,
+    p1: NDArray,
+    p2: NDArray,
+    limits: CnsLimits,
+    chamber: NDArray,
+    chamber_o2: NDArray,
+) -> OxygenExposure:
     otu = _otu(minutes, p1, p2)
     single, daily, above, below = _cns(minutes, p1, p2, limits)
+    water = ~chamber
+    chamber_above = np.where(chamber, above, 0.0)
+    single, daily, above, below = (np.where(water, a, 0.0) for a in (single, daily, above, below))
     top = limits.range_top_atm
-    max_po2 = float(np.max(np.maximum(p1, p2))) if p1.size else 0.0
-    for arr in (minutes, p1, p2, otu, single, daily, above, below):
+    peak = np.maximum(p1, p2)
+    max_po2 = float(np.max(peak)) if p1.size else 0.0
+    water_max = float(np.max(peak[water])) if np.any(water) else 0.0
+    chamber_max = float(np.max(peak[chamber])) if np.any(chamber) else None
+    for arr in (minutes, p1, p2, otu, single, daily, above, below, chamber, chamber_o2):
         arr.setflags(write=False)
     return OxygenExposure(
         segment_minutes=minutes,
@@ -680,12 +806,31 @@ def _exposure(minutes: NDArray, p1: NDArray, p2: NDArray, limits: CnsLimits) -> 
         cns_percent=float(np.sum(single)),
         cns_24h_percent=float(np.sum(daily)),
         max_po2_atm=max_po2,
-        out_of_range=bool(max_po2 > top + _P_TOL_ATM or np.any(above > 0)),
+        out_of_range=bool(water_max > top + PO2_TOLERANCE_ATM or np.any(above > 0)),
         minutes_above_range=float(np.sum(above)),
         minutes_below_table=float(np.sum(below)),
         range_top_atm=top,
         cns_limits=limits.info,
+        segment_in_chamber=chamber,
+        segment_chamber_oxygen=chamber_o2,
+        water_max_po2_atm=water_max,
+        chamber_minutes=float(np.sum(minutes[chamber])),
+        chamber_oxygen_minutes=float(np.sum(minutes[chamber_o2])),
+        chamber_otu=float(np.sum(otu[chamber])),
+        chamber_max_po2_atm=chamber_max,
+        chamber_minutes_above_table=float(np.sum(chamber_above)),
     )
+
+
+def _mask(value: ArrayLike | None, n: int, field: str) -> NDArray[np.bool_]:
+    if value is None:
+        return np.zeros(n, dtype=bool)
+    arr = np.asarray(value, dtype=bool)
+    if arr.ndim == 0:
+        return np.full(n, bool(arr))
+    if arr.shape != (n,):
+        raise InputError(field, f"got shape {arr.shape}; expected one flag per segment ({n})")
+    return arr.copy()
 
 
 def segment_exposure(
@@ -693,6 +838,8 @@ def segment_exposure(
     po2_start_bar: ArrayLike,
     po2_end_bar: ArrayLike | None = None,
     limits: CnsLimits | None = None,
+    in_chamber: ArrayLike | None = None,
+    chamber_oxygen: ArrayLike | None = None,
 ) -> OxygenExposure:
     """Oxygen exposure of segments with a linear change of PO2, vectorised.
 
@@ -706,6 +853,12 @@ def segment_exposure(
         PO2 at segment end [bar]; by default equal to ``po2_start_bar`` (constant PO2).
     limits : CnsLimits, optional
         CNS limits; by default the bundled NOAA table.
+    in_chamber : array_like of bool, optional
+        Segments breathed in a chamber: no in-water CNS percentage, kept apart (by
+        default none).
+    chamber_oxygen : array_like of bool, optional
+        Chamber segments on an oxygen-enriched gas, whose minutes are the chamber
+        oxygen minutes (by default none; :func:`profile_exposure` sets it from the gas).
 
     Returns
     -------
@@ -725,7 +878,8 @@ def segment_exposure(
     ((PO2 - 0.5)/0.5)^0.833 over the linear change [2]; it is zero where PO2 <= 0.5 atm.
     The CNS percentage is 100 * sum over the table bands of (minutes in band / limit),
     exact for the step curve of the table [1] (a constant PO2 gives exactly t/limit*100);
-    minutes above 1.6 atm are counted and flagged, never charged by extrapolation.  The
+    a PO2 within 0.01 atm of a row counts at that row; in-water minutes above 1.6 atm
+    (+ 0.01) are charged at the 1.6 atm limits and flagged (a lower bound).  The
     pulmonary formula is applied at any PO2, as in chamber treatment practice, although
     its fit is known to be poor between 1.5 and 2.5 atm.
 
@@ -748,7 +902,10 @@ def segment_exposure(
     if t.ndim > 1:
         raise InputError("minutes", f"got shape {t.shape}; expected one value per segment (1-D)")
     t, p1, p2 = (np.atleast_1d(a).astype(float) for a in (t, p1, p2))
-    return _exposure(t, p1 / C.P_ATM_BAR, p2 / C.P_ATM_BAR, limits or load_cns_limits())
+    chamber = _mask(in_chamber, t.size, "in_chamber")
+    chamber_o2 = _mask(chamber_oxygen, t.size, "chamber_oxygen") & chamber
+    return _exposure(t, p1 / C.P_ATM_BAR, p2 / C.P_ATM_BAR, limits or load_cns_limits(),
+                     chamber, chamber_o2)
 
 
 def profile_exposure(profile: Profile, limits: CnsLimits | None = None) -> OxygenExposure:
@@ -758,7 +915,8 @@ def profile_exposure(profile: Profile, limits: CnsLimits | None = None) -> Oxyge
     ----------
     profile : Profile
         The dive or chamber run; PO2 = ambient pressure [bar] x oxygen fraction [-],
-        linear within each segment because depth is.
+        linear within each segment because depth is.  Segments whose ``place`` is
+        ``"chamber"`` are chamber oxygen: no in-water CNS percentage (module docstring).
     limits : CnsLimits, optional
         CNS limits; by default the bundled NOAA table.
 
@@ -775,8 +933,10 @@ def profile_exposure(profile: Profile, limits: CnsLimits | None = None) -> Oxyge
     if not isinstance(profile, Profile):
         raise InputError("profile", f"got {type(profile).__name__}; expected a Profile")
     arr = profile.arrays()
+    chamber = np.array([s.place == "chamber" for s in profile.segments], dtype=bool)
     return segment_exposure(
-        arr.minutes, arr.p_start * arr.fo2, arr.p_end * arr.fo2, limits=limits
+        arr.minutes, arr.p_start * arr.fo2, arr.p_end * arr.fo2, limits=limits,
+        in_chamber=chamber, chamber_oxygen=chamber & (np.asarray(arr.fo2) > C.FO2_AIR + 1e-9),
     )
 
 

@@ -69,7 +69,8 @@ class DailyExposure:
     cns_24h_window_start_min : float
         Start of that window [min].
     out_of_range : bool
-        Some exposure went above the CNS table.
+        Some exposure went above the CNS table in the water (charged at the top row's
+        rate: the CNS figures are lower bounds).
     max_po2_atm, minutes_above_range : float
         Over all exposures [atm, min].
     cns_half_time_min : float or None
@@ -135,8 +136,8 @@ class DailyExposure:
         out = []
         if self.out_of_range:
             out.append(
-                f"PO2 reached {self.max_po2_atm:.3g} atm, above the CNS table, for "
-                f"{self.minutes_above_range:.4g} min: CNS figures are lower bounds"
+                f"PO2 above the CNS table in the water for {self.minutes_above_range:.4g} "
+                "min, counted at the top row's rate: CNS figures are lower bounds"
             )
         for info in (self.cns_limits, self.pulmonary_limits):
             if not info.usable_without_review:
@@ -225,12 +226,16 @@ class _Timeline:
         p2: NDArray,
         limits: CnsLimits,
         grid_min: float,
+        water: NDArray | None = None,
     ) -> None:
         keep = minutes > 0
         self.t0, self.m, self.p1, self.p2 = t0[keep], minutes[keep], p1[keep], p2[keep]
+        # chamber segments add no in-water CNS percentage (the OTU counts everything)
+        wet = np.ones(minutes.shape, dtype=bool) if water is None else water
+        self.water = wet[keep].astype(float)
         self.limits = limits
         otu = _otu(self.m, self.p1, self.p2)
-        cns = _cns(self.m, self.p1, self.p2, limits)[1]
+        cns = _cns(self.m, self.p1, self.p2, limits)[1] * self.water
         self.otu0 = np.concatenate(([0.0], np.cumsum(otu)))
         self.cns0 = np.concatenate(([0.0], np.cumsum(cns)))
         # Window-edge positions: every segment boundary, plus a fine grid inside segments
@@ -257,7 +262,7 @@ class _Timeline:
         tau = np.clip(t - self.t0[j], 0.0, self.m[j])
         p_tau = self.p1[j] + (self.p2[j] - self.p1[j]) * tau / self.m[j]
         otu = self.otu0[j] + _otu(tau, self.p1[j], p_tau)
-        cns = self.cns0[j] + _cns(tau, self.p1[j], p_tau, self.limits)[1]
+        cns = self.cns0[j] + _cns(tau, self.p1[j], p_tau, self.limits)[1] * self.water[j]
         return np.where(before, 0.0, otu), np.where(before, 0.0, cns)
 
     def window_max(self, length_min: float, want_cns: bool = True):
@@ -283,6 +288,12 @@ class _Timeline:
         """Move a window start through a gap to the next segment (the dose is unchanged)."""
         i = int(np.searchsorted(self.t0 + self.m, s, side="right"))
         return float(max(s, self.t0[i])) if i < self.t0.size else float(s)
+
+
+def _water(e: OxygenExposure) -> NDArray[np.bool_]:
+    """In-water flags of an exposure's segments (all in the water when none is given)."""
+    n = e.segment_minutes.size
+    return ~e.segment_in_chamber if e.segment_in_chamber.size == n else np.ones(n, dtype=bool)
 
 
 def daily_exposure(
@@ -384,7 +395,8 @@ def daily_exposure(
     seg_m = np.concatenate([e.segment_minutes for _, e in items])
     seg_p1 = np.concatenate([e.segment_po2_start_atm for _, e in items])
     seg_p2 = np.concatenate([e.segment_po2_end_atm for _, e in items])
-    line = _Timeline(seg_t0, seg_m, seg_p1, seg_p2, cns_lim, grid_min)
+    seg_water = np.concatenate([_water(e) for _, e in items])
+    line = _Timeline(seg_t0, seg_m, seg_p1, seg_p2, cns_lim, grid_min, seg_water)
 
     otu24, s_otu, cns24, s_cns = line.window_max(DAY_MIN)
     span = float(end[-1] - start[0])

@@ -1,20 +1,25 @@
 """Breathing gas: hypoxia, maximum operating depth, narcotic depth and gas density.
 
 * Hypoxia: the lowest inspired PO2 of every phase (the bottom gas is breathed from
-  the surface on descent, at the site's surface pressure) against 0.16 ata, below
-  which the U.S. Navy manual says hypoxia results (Rev 4 Change A, OLDER-EDITION:
-  warns).
+  the surface on descent, at the site's surface pressure) against the policy's
+  minimum ``po2_min_ata``, by default 0.16 ata, below which the U.S. Navy manual
+  says hypoxia results (Rev 4 Change A, OLDER-EDITION).  Physics that kills fails,
+  whatever the status of the source of the default.
 * Maximum operating depth: the bottom gas at the policy's bottom PO2 limit against
   the maximum depth, each water-stop gas at the decompression limit and each
-  chamber gas at the chamber limit against its stop depth (policy: fails).
+  chamber gas at the chamber limit against its stop depth, with the limits, their
+  severity and the 0.01 atm tolerance of :mod:`supervisor.rules.po2_limits`.
 * Equivalent narcotic depth, with oxygen counted narcotic (the NOAA convention),
-  against ``policy.end_max``.  The limit fails when the contractor sets it; the
-  default 100 fsw / 30 msw is a common planning ceiling known from secondary
-  sources only, so breaking the default warns.
+  against ``policy.end_max`` (in the plan's unit): the contractor's fail limit.
+  It fails only when the contractor sets it; the default 100 fsw / 30 msw is a
+  common planning ceiling known from secondary sources only, so breaking the
+  default warns (a surface-supplied air dive the regulation allows, e.g. 220 fsw
+  for 30 min, is not failed on a default).
 * Gas density at the maximum depth (Peng-Robinson, at the stated water
   temperature, else 15 degC) against the policy's ``density_warn_g_per_l`` (warn)
-  and ``density_fail_g_per_l`` (fail).  Both are company policy limits: breaking
-  the limit fails whatever the status of the source its default came from.  The
+  and ``density_fail_g_per_l`` (fail).  The fail limit fails only when the
+  contractor states it in the policy: the default maximum comes from rebreather
+  literature, so a dive above it on the default warns.  The
   defaults, 5.2 g/L preferred and 6.2 g/L maximum, follow the recommendation of
   Anthony and Mitchell (2016) [3], held FROM MEMORY; the underlying finding that
   CO2 retention rises steeply above about 6 g/L (UK defence-research test data on
@@ -41,15 +46,26 @@ from collections.abc import Iterator
 
 from supervisor import analysis as an
 from supervisor import constants as C
+from supervisor.engine.oxygen import PO2_TOLERANCE_ATM
 from supervisor.findings import Finding
-from supervisor.gas import density_at_depth, equivalent_narcotic_depth, maximum_operating_depth
+from supervisor.gas import (
+    HYPOXIC_PO2_MIN_ATA,
+    density_at_depth,
+    equivalent_narcotic_depth,
+    inspired_po2,
+    maximum_operating_depth,
+)
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.po2_limits import po2_limit
 
 FAMILY = Family("gas", "Breathing gas")
 
-HYPOXIA_ATA = 0.16
+HYPOXIA_ATA = HYPOXIC_PO2_MIN_ATA
 HYPOXIA_BAR = HYPOXIA_ATA * C.P_ATM_BAR
 NAVY_HYPOXIA = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 15 (hypoxia below 0.16 ata)"
+HYPOXIA_POLICY = (f"contractor policy (policy.po2_min_ata); default {HYPOXIC_PO2_MIN_ATA:g} "
+                  f"ata: {NAVY_HYPOXIA}, OLDER-EDITION")
+NOT_COMPUTED = "not computed"
 ANTHONY_MITCHELL = (
     "Anthony & Mitchell (2016), Respiratory physiology of rebreather diving, "
     "in Rebreathers and Scientific Diving"
@@ -69,69 +85,98 @@ DENSITY_DEFAULT_SOURCE = (
 @FAMILY.rule(
     "gas-hypoxic",
     title="No hypoxic gas at the surface, on descent or at a stop",
-    citation=NAVY_HYPOXIA,
-    kind="reference",
-    source_status="OLDER-EDITION",
+    citation=HYPOXIA_POLICY,
+    kind="policy",
 )
 def hypoxic(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Lowest PO2 in each phase against 0.16 ata."""
+    """Lowest inspired PO2 of each phase against ``policy.po2_min_ata`` (default 0.16 ata).
+
+    The bottom gas is breathed from the surface on descent (at the site's surface
+    pressure), each stop gas from where it is taken to where it is left.  Below the
+    minimum fails, whoever chose it: hypoxia is physics that kills.  The minimum is
+    not relaxed by the 0.01 atm rounding tolerance.  A gas at least as rich as the
+    site's own air is never called hypoxic (at altitude the air itself falls below
+    0.16 ata, and the diver breathes it on deck).
+    """
     pa = an.for_context(ctx)
+    plan = ctx.plan
+    floor = float(plan.policy.po2_min_ata)
+    own = "po2_min_ata" in plan.policy.model_fields_set
+    basis = ("policy.po2_min_ata, the contractor's own" if own else
+             f"default {HYPOXIC_PO2_MIN_ATA:g} ata: {NAVY_HYPOXIA}, OLDER-EDITION")
+    site_air = C.FO2_AIR * plan.p_surface_bar / C.P_ATM_BAR
+    limit = min(floor, site_air)
     for d in ctx.dives():
         a = pa.dives[d.id]
-        lows = {k: v for k, v in a.po2_min.items() if v is not None}
+        lows = {k: v / C.P_ATM_BAR for k, v in a.po2_min.items() if v is not None}
         if not lows:
-            yield r.review("needs review: the phase PO2 could not be computed", dive=d.id)
+            yield r.review("needs review: the phase PO2 could not be computed", dive=d.id,
+                           measured=NOT_COMPUTED, limit=floor, unit="ata")
             continue
         phase, low = min(lows.items(), key=lambda kv: kv[1])
-        kw = dict(measured=round(low, 3), limit=round(HYPOXIA_BAR, 3), unit="bar", dive=d.id)
-        if low + 1e-9 < HYPOXIA_BAR:
-            where = "at the surface and on descent" if phase == "bottom" else f"in the {phase}"
+        kw = dict(measured=round(low, 3), limit=round(floor, 3), unit="ata", dive=d.id)
+        where = "at the surface and on descent" if phase == "bottom" else f"in the {phase}"
+        if low + 1e-9 < limit:
             yield r.breach(
-                f"hypoxic gas {where}: PO2 {low:.3f} bar, below 0.16 ata ({HYPOXIA_BAR:.3f} bar)",
-                **kw,
-            )
-        else:
+                f"hypoxic gas {where}: inspired PO2 {low:.3f} ata, below {floor:g} ata "
+                f"({basis})", **kw)
+        elif low + 1e-9 < floor:
             yield r.ok(
-                f"lowest PO2 {low:.3f} bar ({phase} phase); the 0.16 ata threshold is from an "
-                "older edition",
-                verified=False, **kw,
-            )
+                f"lowest inspired PO2 {low:.3f} ata ({phase} phase) is below {floor:g} ata but "
+                f"no lower than the site's own air ({site_air:.3f} ata at altitude)", **kw)
+        else:
+            yield r.ok(f"lowest inspired PO2 {low:.3f} ata ({phase} phase), at least "
+                       f"{floor:g} ata ({basis})", **kw)
 
 
 @FAMILY.rule(
     "gas-mod",
     title="Every gas within its maximum operating depth",
-    citation="contractor policy (policy.po2_bottom_max, po2_decompression_max, po2_chamber_max)",
+    citation="contractor policy (policy.po2_bottom_max_ata, po2_decompression_max_ata, "
+    "po2_chamber_max_ata)",
     kind="policy",
 )
 def mod(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Each gas's maximum operating depth at the policy PO2 limit against where it is breathed."""
-    pol, plan = ctx.policy, ctx.plan
+    """Each gas's PO2 where it is breathed against the phase's PO2 limit (as a depth, MOD).
+
+    The limits and their severity are those of :mod:`supervisor.rules.po2_limits` (the
+    contractor's own fail, the bottom default warns), with the same 0.01 atm tolerance.
+    """
+    plan = ctx.plan
+    table = an.for_context(ctx).table
+    limits = {ph: po2_limit(plan.policy, ph, table) for ph in ("bottom", "decompression",
+                                                               "chamber")}
+    rank = {"pass": 0, "warn": 1, "fail": 2}
     for d in ctx.dives():
-        uses = [(d.gas_mix, d.max_depth, float(pol.po2_bottom_max), "bottom")]
+        uses = [(d.gas_mix, d.max_depth, "bottom", "bottom")]
         for s in d.stops:
-            limit = pol.po2_chamber_max if s.place == "chamber" else pol.po2_decompression_max
-            uses.append((d.stop_gas(s), s.depth, float(limit), f"{s.place} stop {s.depth:g}"))
+            phase = "chamber" if s.place == "chamber" else "decompression"
+            uses.append((d.stop_gas(s), s.depth, phase, f"{s.place} stop {s.depth:g}"))
         worst = None
-        for gas, depth, po2, where in uses:
-            m = float(maximum_operating_depth(gas, po2, plan.unit, plan.p_surface_bar))
-            excess = depth - m
-            if worst is None or excess > worst[0]:
-                worst = (excess, gas, depth, po2, where, m)
-        excess, gas, depth, po2, where, m = worst  # type: ignore[misc]
-        kw = dict(measured=depth, limit=round(m, 1), unit=ctx.unit, dive=d.id)
-        if excess > 1e-6:
-            yield r.breach(
-                f"{gas.name} at the {where} ({ctx.show(depth)}) is deeper than its maximum "
-                f"operating depth {m:.1f} {ctx.unit} at PO2 {po2:g} bar",
-                **kw,
-            )
+        for gas, depth, phase, where in uses:
+            po2 = float(inspired_po2(depth, gas, plan.unit, plan.p_surface_bar)) / C.P_ATM_BAR
+            lim = limits[phase]
+            sev = lim.judge(po2)
+            limit = lim.limit_for(sev)
+            m = float(maximum_operating_depth(gas, limit * C.P_ATM_BAR, plan.unit,
+                                              plan.p_surface_bar))
+            key = (rank[sev], depth - m)
+            if worst is None or key > worst[0]:
+                worst = (key, sev, gas, depth, limit, where, m, lim)
+        _, sev, gas, depth, limit, where, m, lim = worst  # type: ignore[misc]
+        kw = dict(measured=depth, limit=round(m, 1), unit=ctx.unit, dive=d.id,
+                  citation=lim.citation)
+        text = (f"{gas.name} at the {where} ({ctx.show(depth)}); maximum operating depth "
+                f"{m:.1f} {ctx.unit} at PO2 {limit:g} ata ({lim.basis}; tolerance "
+                f"{PO2_TOLERANCE_ATM:g} atm)")
+        if sev == "fail":
+            yield r.breach(f"{text}: deeper than its maximum operating depth", **kw)
+        elif sev == "warn":
+            yield r.finding("warn", f"{text}: deeper than its maximum operating depth at the "
+                            f"default; set policy.{lim.key} to the contractor's own limit",
+                            status=None, verified=False, **kw)
         else:
-            yield r.ok(
-                f"every gas within its maximum operating depth (closest: {gas.name} at the "
-                f"{where}, MOD {m:.1f} {ctx.unit})",
-                **kw,
-            )
+            yield r.ok(f"every gas within its maximum operating depth (closest: {text})", **kw)
 
 
 @FAMILY.rule(
@@ -199,6 +244,10 @@ def density(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             own, limit = own_fail, hi
             msg = text + " is above the " + _threshold(own, "density_fail_g_per_l", hi, "limit")
             sev, verified = "fail", True
+            if not own:  # a default nobody chose warns; only the contractor's own fails
+                sev, verified = "warn", False
+                msg += ("; a default, not the contractor's limit: set "
+                        "policy.density_fail_g_per_l for a limit that fails")
         elif rho > lo + 1e-9:
             own, limit = own_warn, lo
             msg = text + " is above the " + _threshold(own, "density_warn_g_per_l", lo,

@@ -3,8 +3,10 @@
 PO2 is the inspired oxygen partial pressure of the dry gas at the diver's depth
 (Dalton's law) in each phase of the planned profile: ``bottom`` (descent and
 bottom), ``decompression`` (in the water after leaving the bottom) and
-``chamber``.  The policy's PO2 limits are the contractor's own: a dive above one
-fails.
+``chamber``, in ata.  The limits are the policy's (:mod:`supervisor.rules.po2_limits`):
+the contractor's own fail; of the defaults nobody chose, the bottom 1.4 ata warns and
+the in-water and chamber ceilings, which guard against oxygen convulsion, fail.  Every
+comparison tolerates 0.01 atm.
 
 The CNS percentage is charged against the NOAA normal-exposure limits and the
 pulmonary dose (OTU) against the REPEX allowances, both through
@@ -25,25 +27,31 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterator
 from typing import Any
 
 from supervisor import analysis as an
+from supervisor import constants as C
 from supervisor.engine import oxygen as ox
+from supervisor.engine.oxygen import PO2_TOLERANCE_ATM
 from supervisor.findings import Finding
 from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.po2_limits import PHASE_KEYS, po2_limit
 
 FAMILY = Family("oxygen", "Oxygen exposure")
 
 NOAA_CNS = "NOAA Diving Manual, CNS oxygen exposure limits (normal exposures)"
 REPEX = "Hamilton, Kenyon & Peterson, REPEX, NOAA OUR Technical Report 88-1B (1988)"
 CNS_LIMIT_PERCENT = 100.0
+#: Short form of the chamber procedure's limit for a finding's limit column.
+CHAMBER_PERIODS = f"{an.O2_AIR_BREAK[0]:g} min O2 / {an.O2_AIR_BREAK[1]:g} min air"
 NOT_COMPUTED = "not computed"
 
-_PHASES: dict[str, tuple[str, str]] = {
-    "bottom": ("po2_bottom_max", "bottom"),
-    "decompression": ("po2_decompression_max", "in-water decompression"),
-    "chamber": ("po2_chamber_max", "chamber"),
+_PHASES: dict[str, str] = {
+    "bottom": "bottom",
+    "decompression": "in-water decompression",
+    "chamber": "chamber",
 }
 
 
@@ -68,67 +76,100 @@ def _limit_finding(
 
 
 def _po2_rule(phase: str) -> Any:
-    field, what = _PHASES[phase]
+    what = _PHASES[phase]
 
     def rule(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         pa = an.for_context(ctx)
-        limit = float(getattr(ctx.policy, field))
+        lim = po2_limit(ctx.plan.policy, phase, pa.table)
         for d in ctx.dives():
             a = pa.dives[d.id]
             if "oxygen" in a.errors:
                 yield r.review(
                     f"needs review: {what} PO2 could not be computed ({a.errors['oxygen']})",
-                    dive=d.id, measured=NOT_COMPUTED, limit=limit,
-                    unit="bar",
+                    dive=d.id, measured=NOT_COMPUTED, limit=lim.fail_ata, unit="ata",
                 )
                 continue
-            po2 = a.po2_max.get(phase)
-            if po2 is None:
+            po2_bar = a.po2_max.get(phase)
+            if po2_bar is None:
                 continue  # the dive has no such phase
-            kw = dict(measured=round(po2, 3), limit=limit, unit="bar", dive=d.id)
-            if po2 > limit + 1e-6:
-                yield r.breach(f"{what} PO2 reaches {po2:.2f} bar, above the policy limit", **kw)
+            po2 = po2_bar / C.P_ATM_BAR
+            sev = lim.judge(po2)
+            limit = lim.limit_for(sev)
+            kw = dict(measured=round(po2, 3), limit=round(limit, 3), unit="ata", dive=d.id,
+                      citation=lim.citation)
+            tol = f"tolerance {PO2_TOLERANCE_ATM:g} atm"
+            if sev == "fail":
+                yield r.breach(f"{what} PO2 reaches {po2:.2f} ata, above the limit {limit:g} "
+                               f"ata ({lim.basis}; {tol})", **kw)
+            elif sev == "warn":
+                yield r.finding(
+                    "warn", f"{what} PO2 reaches {po2:.2f} ata, above {limit:g} ata "
+                    f"({lim.basis}; {tol}); set policy.{lim.key} to the contractor's own "
+                    "limit", status=None, verified=False, **kw)
             else:
-                yield r.ok(f"{what} PO2 at most {po2:.2f} bar", **kw)
+                yield r.ok(f"{what} PO2 at most {po2:.2f} ata, within {limit:g} ata "
+                           f"({lim.basis}; {tol})", **kw)
 
-    rule.__doc__ = f"Highest {what} PO2 against policy.{field}."
+    rule.__doc__ = f"Highest {what} PO2 against the policy's limit (rules.po2_limits)."
     return rule
 
 
-for _phase, (_field, _what) in _PHASES.items():
+for _phase, _what in _PHASES.items():
     FAMILY.rule(
         f"oxygen-po2-{_phase}",
         title=f"{_what.capitalize()} PO2 within policy",
-        citation=f"contractor policy (policy.{_field})",
+        citation=f"contractor policy (policy.{PHASE_KEYS[_phase]})",
         kind="policy",
     )(_po2_rule(_phase))
 
 
 @FAMILY.rule(
     "oxygen-po2-range",
-    title="PO2 within the range of the CNS table",
+    title="In-water PO2 within the range of the CNS table",
     citation=NOAA_CNS,
     kind="reference",
     source_status="FROM MEMORY",
 )
 def po2_range(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """A PO2 above the CNS table's highest row makes the CNS figure a lower bound: review."""
+    """An in-water PO2 above the CNS table's top row (+ 0.01 atm): counted at the top row's
+    rate, the CNS figure a lower bound; fails on a verified table, else warns for review.
+    Chamber oxygen gets a note naming the rule that counts it (the chamber periods)."""
     pa = an.for_context(ctx)
     for d in ctx.dives():
         e = pa.dives[d.id].exposure
         if e is None:
             continue
-        kw = dict(measured=round(e.max_po2_atm, 3), limit=e.range_top_atm, unit="atm", dive=d.id,
-                  status=e.cns_limits.source_status)
+        info = e.cns_limits
+        kw = dict(measured=round(e.water_max_po2_atm, 3), limit=e.range_top_atm, unit="atm",
+                  dive=d.id, status=info.source_status)
         if e.out_of_range:
-            yield r.review(
-                f"needs review: PO2 reaches {e.max_po2_atm:.2f} atm, above the CNS table's "
-                f"highest row ({e.range_top_atm:g} atm) for {e.minutes_above_range:.1f} min; "
-                f"the CNS figure of {e.cns_percent:.0f} % is a lower bound",
-                **kw,
-            )
+            text = (f"in-water PO2 reaches {e.water_max_po2_atm:.2f} atm, above the CNS "
+                    f"table's highest row ({e.range_top_atm:g} atm, tolerance "
+                    f"{e.po2_tolerance_atm:g} atm) for {e.minutes_above_range:.1f} min; "
+                    f"counted at the {e.range_top_atm:g} atm rate, the CNS figure is at "
+                    f"least {_floor1(e.cns_percent)} % (a lower bound)")
+            if info.usable_without_review:
+                yield r.breach(text, **kw)
+            else:
+                yield r.review(f"needs review: {text} ({info.name}: {info.source_status}, "
+                               "unverified rows)", **kw)
         else:
-            yield r.ok(f"PO2 at most {e.max_po2_atm:.2f} atm, inside the CNS table", **kw)
+            yield r.ok(f"in-water PO2 at most {e.water_max_po2_atm:.2f} atm, inside the CNS "
+                       f"table (tolerance {e.po2_tolerance_atm:g} atm)", **kw)
+        c = an.chamber_oxygen_json(e, d)
+        if c is not None:  # chamber oxygen: say which rule counts it instead
+            yield r.note(
+                f"chamber oxygen {c['minutes']:.1f} min ({c['periods']:g} period(s)), "
+                f"{c['otu']:g} OTU, PO2 up to {c['max_po2_atm']:.2f} atm: not on the "
+                f"in-water CNS table and given no CNS percentage; counted by "
+                f"{c['counted_by']}: {c['limit']}",
+                measured=c["minutes"], limit=CHAMBER_PERIODS, unit="min", dive=d.id,
+            )
+
+
+def _floor1(x: float) -> str:
+    """A lower bound printed rounded down to 0.1 (never rounded up past the figure)."""
+    return f"{math.floor(x * 10 + 1e-9) / 10:g}"
 
 
 @FAMILY.rule(
@@ -147,10 +188,12 @@ def cns_dive(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.review("needs review: the CNS exposure could not be computed", dive=d.id,
                            measured=NOT_COMPUTED, limit=CNS_LIMIT_PERCENT, unit="%")
             continue
-        bound = " (lower bound)" if e.out_of_range else ""
+        figure = (f"at least {_floor1(e.cns_percent)} % (a lower bound: PO2 above the "
+                  "table in the water)" if e.out_of_range else f"{e.cns_percent:.0f} %")
+        where = " (in the water; chamber oxygen counted apart)" if e.has_chamber else ""
         yield _limit_finding(
             r, e.cns_limits, e.cns_percent > CNS_LIMIT_PERCENT + 1e-9,
-            f"CNS exposure {e.cns_percent:.0f} %{bound} of the single-exposure limits",
+            f"in-water CNS exposure {figure} of the single-exposure limits{where}",
             measured=round(e.cns_percent, 1), limit=CNS_LIMIT_PERCENT, unit="%", dive=d.id,
         )
 
@@ -180,8 +223,11 @@ def cns_day(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         yield _limit_finding(
             r, dd.cns_limits, dd.cns_24h_exceeded,
-            f"{day.diver}: highest CNS exposure in any 24 hours {dd.max_cns_24h_percent:.0f} % "
-            f"of the 24-hour limits over {len(day.dive_ids)} dive(s)",
+            f"{day.diver}: highest in-water CNS exposure in any 24 hours "
+            + (f"at least {_floor1(dd.max_cns_24h_percent)} % (a lower bound: PO2 above the "
+               "table in the water)" if dd.out_of_range else
+               f"{dd.max_cns_24h_percent:.0f} %")
+            + f" of the 24-hour limits over {len(day.dive_ids)} dive(s)",
             measured=round(dd.max_cns_24h_percent, 1), limit=CNS_LIMIT_PERCENT, unit="%",
             dive=_day_dive(day),
         )

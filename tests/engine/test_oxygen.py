@@ -137,10 +137,14 @@ def test_otu_linear_integral_vs_scipy_quad(p1, p2, minutes):
 def test_otu_treatment_table_5_oxygen_periods():
     """Patient OTU of the U.S. Navy Treatment Table 5 oxygen periods.
 
-    Steps (U.S. Navy Diving Manual TT5; step times from memory): 40 min O2 at 60 fsw,
-    60 -> 30 fsw in 30 min, 20 min at 30 fsw, 30 -> 0 fsw in 30 min.  Expected 332 OTU
-    derived from the UPTD formula with exact integration of the ascents (whole OTU ->
-    atol 0.5).  At 2.82 atm the CNS table does not apply: flagged.
+    Steps from memory (U.S. Navy Diving Manual TT5; no stored copy gives them): 40 min O2
+    at 60 fsw, 60 -> 30 fsw in 30 min, 20 min at 30 fsw, 30 -> 0 fsw in 30 min; the
+    1 ft/min ascent rate is OLDER-EDITION (Rev 4/5 TT5 notes).  No published OTU figure
+    for TT5 is available: the expected value is the project's own UPTD formula (Clark &
+    Lambertsen) integrated independently here by scipy.integrate.quad (general-purpose
+    library), with ata = 1 + D/33; it agrees with the 332 OTU the reference notes derive
+    the same way (DERIVED, not an outside value).  At 2.82 atm the oxygen is chamber
+    oxygen: no in-water CNS percentage.
     """
     prof = Profile(
         [
@@ -152,12 +156,27 @@ def test_otu_treatment_table_5_oxygen_periods():
         unit="fsw",
     )
     e = ox.profile_exposure(prof)
-    assert e.otu == pytest.approx(332.0, abs=0.5)
-    assert e.out_of_range
-    assert e.max_po2_atm == pytest.approx(fsw_to_atm(60), rel=1e-12)
-    # minutes above 1.6 atm: 40 + 30 + 20 + 30 * (1.909 - 1.6) / (1.909 - 1.0) (arithmetic)
-    above_last = 30.0 * (fsw_to_atm(30) - 1.6) / (fsw_to_atm(30) - 1.0)
-    assert e.minutes_above_range == pytest.approx(90.0 + above_last, rel=1e-9)
+    legs = [(60, 60, 40), (60, 30, 30), (30, 30, 20), (30, 0, 30)]
+    expected = 0.0
+    for d0, d1, t in legs:
+        # the package's own fsw -> bar convention, so only the integration is independent
+        p0 = prof.p_surface_bar / ATM + d0 * C.BAR_PER_FSW / ATM
+        p1 = prof.p_surface_bar / ATM + d1 * C.BAR_PER_FSW / ATM
+        expected += integrate.quad(otu_integrand(p0, p1, t), 0.0, t, epsabs=1e-12)[0]
+    assert e.otu == pytest.approx(expected, rel=1e-9)
+    assert e.otu == pytest.approx(332.0, abs=1.0)  # DERIVED in the reference notes
+    # chamber oxygen: no in-water CNS percentage, kept apart with its minutes and OTU
+    assert not e.out_of_range and e.cns_percent == 0.0
+    assert e.chamber_otu == e.otu and e.chamber_oxygen_minutes == 120.0
+    assert e.max_po2_atm == pytest.approx(fsw_to_atm(60), rel=1e-3)
+    # 2.82 ata for oxygen at 60 fsw: the figure the Navy treatment tables print
+    # (U.S. Navy Diving Manual Rev 4 Change A ch. 21, OLDER-EDITION); two decimals
+    assert e.max_po2_atm == pytest.approx(2.82, abs=0.005)
+    assert e.chamber_max_po2_atm == e.max_po2_atm
+    top = 1.6 + ox.PO2_TOLERANCE_ATM
+    hi30 = prof.p_surface_bar / ATM + 30 * C.BAR_PER_FSW / ATM
+    above_last = 30.0 * (hi30 - top) / (hi30 - prof.p_surface_bar / ATM)
+    assert e.chamber_minutes_above_table == pytest.approx(90.0 + above_last, rel=1e-9)
 
 
 @pytest.mark.parametrize(
@@ -213,7 +232,11 @@ def test_noaa_rows_each_reproduce_100_percent(po2, single, daily):
 
 
 def test_cns_table_file_matches_noaa_rows():
-    """The bundled file holds the NOAA rows listed above, all unverified."""
+    """The bundled file holds the rows listed in NOAA_ROWS, all unverified.
+
+    Not an outside check: NOAA_ROWS and the file are the same recollection of the NOAA
+    table (FROM MEMORY); this pins the transcription.  The outside values, where a quoted
+    copy exists, are checked in the next test."""
     lim = ox.load_cns_limits()
     np.testing.assert_array_equal(lim.po2_atm, [r[0] for r in NOAA_ROWS])
     np.testing.assert_array_equal(lim.single_exposure_min, [r[1] for r in NOAA_ROWS])
@@ -221,6 +244,25 @@ def test_cns_table_file_matches_noaa_rows():
     assert lim.info.source_status == "FROM MEMORY"
     assert not lim.info.verified
     assert lim.range_top_atm == 1.6
+
+
+# NOAA Diving Manual, 3rd ed., normal-exposure limits as quoted on a technical-diving
+# mailing list (2001): single exposure [min] by PO2 [atm].  SECONDARY.
+NOAA_QUOTED_SINGLE = {1.6: 45, 1.5: 120, 1.4: 150, 1.3: 180, 1.2: 210}
+# The same table's 24-hour limit at 1.4 atm as quoted on a diving forum: SECONDARY.
+NOAA_QUOTED_DAILY = {1.4: 180}
+
+
+def test_cns_table_rows_vs_quoted_noaa_table():
+    """The bundled single-exposure limits for 1.2-1.6 atm and the 1.4 atm 24-hour limit
+    equal the quoted NOAA Diving Manual table (SECONDARY quotations named above)."""
+    lim = ox.load_cns_limits()
+    rows = {float(p): (float(a), float(b)) for p, a, b in
+            zip(lim.po2_atm, lim.single_exposure_min, lim.daily_limit_min, strict=True)}
+    for po2, minutes in NOAA_QUOTED_SINGLE.items():
+        assert rows[po2][0] == minutes
+    for po2, minutes in NOAA_QUOTED_DAILY.items():
+        assert rows[po2][1] == minutes
 
 
 def test_cns_row_reached_through_profile_rounding():
@@ -249,29 +291,31 @@ def test_cns_below_lowest_row_charged_at_first_row():
 
 
 def test_cns_ramp_across_rows_analytic():
-    """0.4 -> 0.8 atm in 40 min: 10 min in each band above 0.5 atm, charged at the NOAA
-    limits 720, 570, 450 min (arithmetic on the NOAA rows)."""
+    """0.4 -> 0.8 atm in 40 min (0.01 atm/min): 11 min in (0.5, 0.61], 10 in (0.61, 0.71]
+    and 9 in (0.71, 0.8], charged at the NOAA limits 720, 570, 450 min (arithmetic on
+    the NOAA rows, each row's band reaching 0.01 atm above it); 9 min below 0.59 atm."""
     e = ox.segment_exposure(40.0, 0.4 * ATM, 0.8 * ATM)
-    expected = 100.0 * (10.0 / 720 + 10.0 / 570 + 10.0 / 450)
+    expected = 100.0 * (11.0 / 720 + 10.0 / 570 + 9.0 / 450)
     assert e.cns_percent == pytest.approx(expected, rel=1e-9)
-    assert e.minutes_below_table == pytest.approx(10.0, rel=1e-9)
+    assert e.minutes_below_table == pytest.approx(9.0, rel=1e-9)
 
 
 @pytest.mark.parametrize(
     ("p1", "p2", "minutes"),
-    [(1.0, 1.6, 17.0), (1.55, 0.62, 9.0), (0.3, 1.25, 30.0), (1.12, 1.18, 5.0)],
+    [(1.0, 1.6, 17.0), (1.55, 0.62, 9.0), (0.3, 1.25, 30.0), (1.12, 1.18, 5.0),
+     (1.2, 2.0, 12.0)],
 )
 def test_cns_linear_integral_vs_scipy_quad(p1, p2, minutes):
     """Exact CNS integral over the step curve of the NOAA rows equals scipy quad with the
     row crossings as break points (general-purpose library)."""
-    rows = np.array([r[0] for r in NOAA_ROWS])
+    rows = np.array([r[0] for r in NOAA_ROWS]) + ox.PO2_TOLERANCE_ATM  # row + tolerance
     lim = np.array([r[1] for r in NOAA_ROWS], dtype=float)
 
     def rate(t: float) -> float:
         p = p1 + (p2 - p1) * t / minutes
         if p <= 0.5:
             return 0.0
-        return 100.0 / lim[np.searchsorted(rows, p, side="left")]
+        return 100.0 / lim[min(int(np.searchsorted(rows, p, side="left")), lim.size - 1)]
 
     pts = crossing_times(p1, p2, minutes, [0.5, *rows])
     expected, _ = integrate.quad(rate, 0.0, minutes, points=pts, epsabs=1e-12, epsrel=1e-12,
@@ -283,33 +327,42 @@ def test_cns_linear_integral_vs_scipy_quad(p1, p2, minutes):
 # ------------------------------------------------------------------ above the table
 
 
-def test_above_range_is_flagged_not_extrapolated():
-    """Chamber O2 at 2.8 atm (U.S. Navy treatment tables breathe O2 at 60 fsw, 2.82 ata):
-    above the NOAA table's 1.6 atm, so no CNS limit is invented."""
+def test_above_table_in_water_counts_at_top_row_rate():
+    """In the water above 1.6 atm (+ 0.01) the NOAA table gives no limit: the minutes are
+    charged at the 1.6 atm row's limits (45 min single exposure, SECONDARY quotation of
+    the NOAA Diving Manual 3rd ed.; 150 min in 24 h, from memory) and the figure is
+    marked a lower bound; CNS never counts zero."""
     e = ox.segment_exposure(30.0, 2.8 * ATM)
-    assert e.out_of_range
+    assert e.out_of_range and e.cns_is_lower_bound
     assert e.minutes_above_range == 30.0
     assert e.max_po2_atm == pytest.approx(2.8, rel=1e-12)
-    assert e.cns_percent == 0.0  # lower bound: nothing in range
+    assert e.cns_percent == pytest.approx(30.0 / 45.0 * 100.0, rel=1e-12)
+    assert e.cns_24h_percent == pytest.approx(30.0 / 150.0 * 100.0, rel=1e-12)
     assert e.cns_status == "lower bound"
     assert e.needs_review
     assert any("lower bound" in r for r in e.review_reasons)
-    # the same CNS figure at 1.7 and 2.8 atm: no extrapolation of the limit curve
+    assert "30.0 min in the water above 1.6 atm" in e.cns_note
+    # the same CNS figure at 1.7 and 2.8 atm: the top row's rate, no extrapolation
     assert ox.segment_exposure(30.0, 1.7 * ATM).cns_percent == e.cns_percent
     # the pulmonary dose is still computed
     assert e.otu == pytest.approx(30.0 * ox.otu_rate(2.8), rel=1e-12)
     d = e.to_dict()
-    assert d["cns_percent_is_lower_bound"] is True
+    assert d["cns_percent_is_lower_bound"] is True and d["cns_is_lower_bound"] is True
     assert d["out_of_range"] is True
+    assert d["minutes_above_table"] == 30.0 and d["po2_tolerance_atm"] == 0.01
+    assert d["chamber_oxygen"] is None
 
 
-def test_ramp_through_top_charges_only_the_in_range_part():
-    """1.0 -> 2.2 atm in 20 min: the first 10 min (to 1.6 atm) are charged, the last 10
-    are counted above range (arithmetic on the linear ramp)."""
+def test_ramp_through_top_charges_the_part_above_at_the_top_rate():
+    """1.0 -> 2.2 atm in 20 min (0.06 atm/min): 10.17 min up to 1.61 atm are charged by
+    the table, the last 9.83 min at the 1.6 atm row's 45 min (arithmetic on the ramp and
+    the NOAA rows)."""
     e = ox.segment_exposure(20.0, 1.0 * ATM, 2.2 * ATM)
-    inside = ox.segment_exposure(10.0, 1.0 * ATM, 1.6 * ATM)
-    assert e.cns_percent == pytest.approx(inside.cns_percent, rel=1e-9)
-    assert e.minutes_above_range == pytest.approx(10.0, rel=1e-9)
+    t_in = 20.0 * 0.61 / 1.2
+    inside = ox.segment_exposure(t_in, 1.0 * ATM, 1.61 * ATM)
+    assert e.minutes_above_range == pytest.approx(20.0 - t_in, rel=1e-9)
+    assert e.cns_percent == pytest.approx(
+        inside.cns_percent + (20.0 - t_in) / 45.0 * 100.0, rel=1e-9)
     assert e.out_of_range and not inside.out_of_range
 
 
@@ -321,11 +374,100 @@ def test_zero_length_segment_above_range_is_flagged():
     assert e.minutes_above_range == 0.0
 
 
-@pytest.mark.parametrize(("po2_bar", "flagged"), [(1.62, False), (1.63, True)])
+@pytest.mark.parametrize(("po2_bar", "flagged"), [(1.62, False), (1.63, False), (1.64, True)])
 def test_bar_is_converted_to_atm(po2_bar, flagged):
-    """1 atm = 1.01325 bar: 1.62 bar = 1.599 atm is inside the table, 1.63 bar = 1.609 atm
-    is above it."""
+    """1 atm = 1.01325 bar: 1.62 bar = 1.599 atm and 1.63 bar = 1.609 atm count at the
+    1.6 atm row (within 0.01 atm), 1.64 bar = 1.619 atm is above the table."""
     assert ox.segment_exposure(10.0, po2_bar).out_of_range is flagged
+
+
+@pytest.mark.parametrize(
+    ("po2_atm", "minutes", "expected"),
+    [
+        # oxygen at 20 fsw: 1 + 20/33 = 1.606 atm (Navy 33 fsw/atm): the 1.6 atm row, 45 min
+        (1.0 + 20.0 / 33.0, 45.0, 100.0),
+        (1.609, 45.0, 100.0),  # within 0.01 atm of the 1.6 atm row
+        (1.105, 240.0, 100.0),  # within 0.01 atm of the 1.1 atm row (240 min), not 1.2
+        (1.111, 210.0, 100.0),  # beyond the tolerance: the next-higher 1.2 atm row (210 min)
+        (0.595, 720.0, 100.0),  # within 0.01 atm below the 0.6 atm row (720 min)
+    ],
+)
+def test_po2_within_tolerance_counts_at_the_row(po2_atm, minutes, expected):
+    """NOAA normal-exposure rows: 1.6 atm 45 min and 1.2 atm 210 min as quoted from the
+    NOAA Diving Manual 3rd ed. (SECONDARY, NOAA_QUOTED_SINGLE); 1.1 atm 240 min and
+    0.6 atm 720 min from memory (NOAA_ROWS).  A PO2 within 0.01 atm of a row counts at
+    that row (the tolerance is the project's own choice, no source); 1.606 atm for 45 min
+    is exactly the 1.6 atm single-exposure limit."""
+    e = ox.segment_exposure(minutes, po2_atm * ATM)
+    assert e.cns_percent == pytest.approx(expected, rel=1e-12)
+    assert not e.out_of_range
+    assert ox.PO2_TOLERANCE_ATM == 0.01
+
+
+def test_oxygen_at_20_fsw_from_a_profile_counts_at_the_top_row():
+    """A 20 fsw in-water oxygen stop, the trade's standard depth (common practice, no
+    source): 45 min give 100 % of the NOAA 1.6 atm single-exposure limit (45 min, SECONDARY
+    quotation of the NOAA Diving Manual 3rd ed.), never 0 % and not above the table."""
+    prof = Profile([Segment(20, 20, 45.0, OXYGEN, "water")], unit="fsw")
+    e = ox.profile_exposure(prof)
+    assert e.water_max_po2_atm == pytest.approx(1.605, abs=0.002)
+    assert e.cns_percent == pytest.approx(100.0, rel=1e-12)
+    assert not e.out_of_range and e.cns_note == ""
+
+
+# ------------------------------------------------------------------ chamber oxygen
+
+
+def _surd_profile() -> Profile:
+    """In-water air to a 40 fsw stop, then oxygen at 50 fsw in the chamber (2.5 atm)."""
+    return Profile(
+        [
+            Segment(0, 100, 2.0, AIR, "water"),
+            Segment(100, 100, 28.0, AIR, "water"),
+            Segment(100, 40, 2.0, AIR, "water"),
+            Segment(40, 40, 2.0, AIR, "water"),
+            Segment(40, 0, 1.33, AIR, "water"),
+            Segment(0, 50, 0.5, AIR, "chamber"),
+            Segment(50, 50, 30.0, OXYGEN, "chamber"),
+            Segment(50, 50, 5.0, AIR, "chamber"),
+            Segment(50, 40, 1.0, OXYGEN, "chamber"),
+            Segment(40, 40, 20.0, OXYGEN, "chamber"),
+            Segment(40, 0, 1.33, OXYGEN, "chamber"),
+        ],
+        unit="fsw",
+    )
+
+
+def test_chamber_oxygen_gives_no_in_water_cns_and_is_kept_apart():
+    """Chamber oxygen at 2.5 atm is not on the NOAA in-water table: the CNS figure counts
+    the water segments only (identical to the in-water part alone), the chamber's minutes,
+    OTU and highest PO2 are reported apart (arithmetic on the same engine)."""
+    prof = _surd_profile()
+    e = ox.profile_exposure(prof)
+    water = ox.profile_exposure(Profile(prof.segments[:5], unit="fsw"))
+    assert e.cns_percent == pytest.approx(water.cns_percent, rel=1e-12)
+    assert e.cns_24h_percent == pytest.approx(water.cns_24h_percent, rel=1e-12)
+    assert not e.out_of_range and e.minutes_above_range == 0.0
+    assert e.chamber_oxygen_minutes == pytest.approx(30.0 + 1.0 + 20.0 + 1.33)
+    assert e.chamber_minutes == pytest.approx(0.5 + 30 + 5 + 1 + 20 + 1.33)
+    assert e.otu == pytest.approx(water.otu + e.chamber_otu, rel=1e-12)
+    assert e.chamber_max_po2_atm == pytest.approx(fsw_to_atm(50), abs=0.01)
+    assert e.water_max_po2_atm < 1.0
+    assert "not on the NOAA in-water CNS table" in e.cns_note
+    d = json.loads(json.dumps(e.to_dict()))
+    assert d["chamber_oxygen"]["otu"] == pytest.approx(e.chamber_otu)
+    assert d["chamber_oxygen"]["minutes"] == pytest.approx(e.chamber_oxygen_minutes)
+    assert d["cns_is_lower_bound"] is False
+
+
+def test_daily_exposure_counts_chamber_otu_but_no_chamber_cns():
+    """Rolling 24 h: the chamber oxygen adds its OTU (REPEX counts every dose) and no
+    in-water CNS percentage."""
+    e = ox.profile_exposure(_surd_profile())
+    d = ox.daily_exposure([(0.0, e)])
+    assert d.max_otu_24h == pytest.approx(e.otu, rel=1e-9)
+    assert d.max_cns_24h_percent == pytest.approx(e.cns_24h_percent, rel=1e-9, abs=1e-12)
+    assert not d.out_of_range
 
 
 # ------------------------------------------------------------------ vector and profile
@@ -524,6 +666,8 @@ def test_daily_out_of_range_propagates():
     d = ox.daily_exposure([(0.0, _const(30.0, 2.8)), (300.0, _const(30.0, 1.2))])
     assert d.out_of_range and d.needs_review
     assert d.minutes_above_range == 30.0
+    # 30 min above the table at the 1.6 atm 24-hour rate (150 min) + 30 of 240 at 1.2 atm
+    assert d.max_cns_24h_percent == pytest.approx(100 * (30 / 150 + 30 / 240), rel=1e-9)
     blob = json.loads(json.dumps(d.to_dict()))
     assert blob["cns_status"] == "lower bound"
 
