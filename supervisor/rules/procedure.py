@@ -26,9 +26,9 @@ from collections.abc import Iterator
 from supervisor import analysis as an
 from supervisor.findings import Finding
 from supervisor.gas import parse_gas
-from supervisor.plan import CHAMBER_COMPRESSION_FSW_PER_MIN, Dive, Stop
+from supervisor.plan import Dive, Stop
 from supervisor.references import LookupResult, lookup_schedule
-from supervisor.rules.base import NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.base import CheckContext, Family, Rule
 from supervisor.rules.regulatory import READY, chamber_state
 from supervisor.rules.tables import shortfall, stop_checks
 
@@ -43,8 +43,6 @@ NAVY_ASCENT_MIN_FSW_MIN = 20.0  # ch. 14 tolerance, OLDER-EDITION (Rev 4 Change 
 NAVY_ASCENT_MAX_FSW_MIN = 40.0  # idem
 NAVY_ASCENT_FSW_MIN = 30.0  # ascent rate the tables assume, Rev 4 Change A ch. 9, OLDER-EDITION
 FIRST_STOP_DELAY_MAX_MIN = 1.0  # delay reaching the first stop that changes the schedule, SECONDARY
-SURD_INTERVAL_MAX_MIN = 5.0  # ch. 9 SurDO2, SECONDARY; Rev 4 Change A ch. 14 OLDER-EDITION
-SURD_LATE_MAX_MIN = 7.0  # SurDO2 late-arrival band, from memory
 O2_PERIOD_MIN = 30.0  # SurDO2 chamber period and in-water O2 run, SECONDARY
 O2_FINAL_RUN_MAX_MIN = 35.0  # no final air break if the last run is <= 35 min, OLDER-EDITION
 AIR_BREAK_MIN = 5.0  # SECONDARY
@@ -327,54 +325,150 @@ def surd_interval_min(ctx: CheckContext, dive: Dive) -> float | None:
 
     From leaving the last water stop (the bottom if there is none) to arriving
     at the first chamber stop: ascent at the dive's ascent rate, the stated
-    deck time, and compression at 100 fsw/min.
+    deck time, and compression at 100 fsw/min
+    (:meth:`supervisor.plan.Plan.surface_decompression_times`).
     """
     if dive.surface_transfer_min is None or not dive.chamber_stops:
         return None
+    up, deck, down, _ = ctx.plan.surface_decompression_times(dive)
+    return up + deck + down
+
+
+def _interval_span(ctx: CheckContext, dive: Dive) -> str:
+    """Where the surface interval runs: "the 40 fsw water stop to 50 fsw in the chamber"."""
     ws = dive.water_stops
-    start = ws[-1].depth if ws else dive.max_depth
-    ascent = start / ctx.plan.ascent_rate(dive)
-    compress = dive.chamber_stops[0].depth / ctx.plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
-    return ascent + dive.surface_transfer_min + compress
+    start = (f"the {ws[-1].depth:g} {ctx.unit} water stop" if ws
+             else f"the bottom ({dive.max_depth:g} {ctx.unit})")
+    chamber = dive.chamber_stops
+    end = f"{chamber[0].depth:g} {ctx.unit} in the chamber" if chamber else "the chamber"
+    return f"leaving {start} to arriving at {end}"
+
+
+#: What the procedure does with a late chamber (U.S. Navy Diving Manual Rev 7 ch. 9 as
+#: recalled; a secondary source agrees that past the 5-min limit the diver is treated).
+SURD_LATE_TEXT = (
+    "the procedure (from memory): an interval over 5 and up to 7 min adds a half-period "
+    "(15 min oxygen) at 50 fsw; over 7 min surface decompression is abandoned and the diver "
+    "is treated: Treatment Table 5 if the schedule needed 2 chamber periods or fewer, Table 6 "
+    "if more or on any symptom (secondary sources: past the 5-min limit the diver is treated "
+    "on Table 5 or 6)"
+)
+
+SURD_INTERVAL_DEFAULT = (
+    "default 5 min: U.S. Navy Diving Manual, Rev 7, ch. 9, surface decompression on oxygen "
+    "(SECONDARY); Rev 4 Change A, ch. 14 (OLDER-EDITION)"
+)
 
 
 @FAMILY.rule(
     "proc-surd-interval",
-    title="Surface decompression: surface interval within 5 min",
-    citation=f"{NAVY_REV7} (surface decompression on oxygen, surface interval)",
-    source_status="SECONDARY",
-    kind="reference",
+    title="Surface decompression: surface interval within the policy's limit",
+    citation=f"contractor policy (policy.surd_interval_max_min); {SURD_INTERVAL_DEFAULT}",
+    kind="policy",
 )
 def surd_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Leaving the water stop to arriving at the chamber stop within 5 min (SECONDARY).
+    """Leaving the last water stop to arriving at the first chamber depth within the policy.
 
-    From memory: more than 5 but no more than 7 min adds a half-period at
-    50 fsw; more than 7 min means treatment instead of surface decompression.
+    The limit guards against immediate harm (the diver sits on the surface with
+    tissues above their M-values until the chamber is pressed), so a longer
+    interval fails; the finding says what the procedure does beyond 5 and 7 min.
     """
+    top = float(ctx.policy.surd_interval_max_min)
+    limit = f"{top:g} min (policy.surd_interval_max_min)"
     for d in ctx.dives():
-        if d.decompression != "surface-oxygen":
+        if d.decompression != "surface-oxygen" and not d.chamber_stops:
             continue
+        span = _interval_span(ctx, d)
         si = surd_interval_min(ctx, d)
         if si is None:
             yield r.review(
-                "needs review: surface decompression without surface_transfer_min; "
-                "the surface interval cannot be checked",
-                measured=NOT_STATED,
-                limit=SURD_INTERVAL_MAX_MIN,
-                unit="min",
-                dive=d.id,
+                f"needs review: surface decompression without surface_transfer_min (the time "
+                f"on deck); the surface interval, {span}, cannot be checked against "
+                f"{top:g} min",
+                measured=f"not stated ({span})", limit=limit, dive=d.id,
             )
             continue
-        kw = dict(measured=round(si, 2), limit=SURD_INTERVAL_MAX_MIN, unit="min", dive=d.id)
-        if si > SURD_INTERVAL_MAX_MIN + _TOL:
-            late = (
-                " (over 7 min: a treatment, not surface decompression, from memory)"
-                if si > SURD_LATE_MAX_MIN
-                else " (5-7 min: extra oxygen time, from memory)"
+        measured = f"{si:.1f} min, {span}"
+        if si > top + _TOL:
+            yield r.breach(
+                f"surface interval of {si:.1f} min, {span}, is over the policy's {top:g} min; "
+                f"{SURD_LATE_TEXT}",
+                measured=measured, limit=limit, dive=d.id,
             )
-            yield r.breach(f"surface interval of {si:.1f} min is over 5 min{late}", **kw)
         else:
-            yield r.ok(f"surface interval of {si:.1f} min within 5 min", **kw)
+            yield r.ok(f"surface interval of {si:.1f} min, {span}, within {top:g} min",
+                       measured=measured, limit=limit, dive=d.id)
+
+
+#: Default limit of the supersaturation during a surface-decompression interval [% of
+#: the M-value gradient]: DERIVED, not a published limit: the highest peak this project's
+#: ZH-L16C model gives (275 %, from 271 % rounded up) for air surface decompression to
+#: 190 fsw within 4 chamber periods (the exceptional-exposure line of the Navy procedure,
+#: SECONDARY) at a 5-min interval.  Beyond it a dive is outside ordinary surface
+#: decompression as this model sees it: needs review, unless the contractor sets a limit.
+SURFACE_INTERVAL_GF_DEFAULT = 275.0
+SURFACE_INTERVAL_GF_SOURCE = (
+    "default 275 %: DERIVED by this project from its own ZH-L16C model (the highest peak of "
+    "air surface decompression to 190 fsw within 4 chamber periods at a 5-min interval); "
+    "not a published limit"
+)
+
+
+@FAMILY.rule(
+    "proc-surd-supersaturation",
+    title="Surface decompression: supersaturation during the surface interval within the limit",
+    citation=f"contractor policy (policy.surface_interval_gf_max); {SURFACE_INTERVAL_GF_SOURCE}",
+    kind="policy",
+)
+def surd_supersaturation(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The model's peak supersaturation on the surface between the water and the chamber.
+
+    The ceiling check of the planned profile covers the water and the chamber; on
+    the surface the ceiling is broken on purpose, so the peak is judged here, as a
+    percentage of the M-value gradient (100 % is the M-value) against the
+    contractor's ``surface_interval_gf_max``: beyond it the dive fails.  Without a
+    contractor limit the project's default applies (DERIVED from its own model, no
+    published limit): beyond it the dive needs review, and fails only when the
+    interval itself is over the policy's limit too.
+    """
+    own = ctx.policy.surface_interval_gf_max
+    top = float(own) if own is not None else SURFACE_INTERVAL_GF_DEFAULT
+    limit = (f"{top:g} % (policy.surface_interval_gf_max)" if own is not None
+             else f"{top:g} % (default, DERIVED)")
+    si_max = float(ctx.policy.surd_interval_max_min)
+    pa = an.for_context(ctx)
+    for d in ctx.dives():
+        if not d.chamber_stops:
+            continue
+        a = pa.dives[d.id]
+        ev = a.evaluation
+        span = _interval_span(ctx, d)
+        if ev is None or ev.surface_interval_max_gf is None:
+            why = a.errors.get("evaluation") or a.errors.get("profile") or "no surface interval"
+            yield r.review(f"needs review: the supersaturation during the surface interval "
+                           f"({span}) could not be computed ({why})",
+                           measured=f"not computed ({span})", limit=limit, dive=d.id)
+            continue
+        peak = 100.0 * ev.surface_interval_max_gf
+        up, deck, down, _ = ctx.plan.surface_decompression_times(d)
+        si = up + deck + down
+        measured = (f"{peak:.0f} % of the M-value gradient, peak of the {si:.1f}-min "
+                    f"surface interval ({span})")
+        head = (f"the model ({a.coefficient_status} coefficients) puts the supersaturation "
+                f"during the {si:.1f}-min surface interval ({span}) at up to {peak:.0f} % of "
+                f"the M-value gradient (100 % is the M-value)")
+        kw = dict(measured=measured, limit=limit, dive=d.id)
+        if peak <= top + 1e-9:
+            yield r.ok(f"{head}, within {limit}", **kw)
+        elif own is not None:
+            yield r.breach(f"{head}, beyond the contractor's {top:g} %", **kw)
+        elif si > si_max + _TOL:
+            yield r.breach(f"{head}, beyond the default {top:g} % (DERIVED, no published "
+                           f"limit), and the interval is over {si_max:g} min", **kw)
+        else:
+            yield r.review(
+                f"needs review: {head}, beyond the default {top:g} % ({SURFACE_INTERVAL_GF_SOURCE}"
+                "); set policy.surface_interval_gf_max to the contractor's own limit", **kw)
 
 
 def _o2_runs(dive: Dive, place: str) -> tuple[list[float], list[float]]:

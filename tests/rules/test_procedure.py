@@ -18,6 +18,7 @@ from _engine_plans import TABLE, data, trusted_table
 from _engine_plans import run as run_engine
 
 from supervisor.findings import Finding, verdict
+from supervisor.rules import procedure
 from supervisor.rules.procedure import FAMILY, NAVY_COLD
 
 O2 = "oxygen"
@@ -200,21 +201,46 @@ def test_surd_needs_ready_chamber(base, run):
     _all_pass(run(_surd(base), FAMILY, "proc-surd-chamber"))
 
 
-def test_surd_interval_over_5_min_warns(base, run):
-    """U.S. Navy Diving Manual Rev 7 ch. 9 (SECONDARY): leaving the 40 fsw stop to 50 fsw in
-    the chamber within 5 min.  40/30 + 4 + 50/100 = 5.83 min (arithmetic)."""
+_SPAN = "leaving the 40 fsw water stop to arriving at 50 fsw in the chamber"
+_SI_LIMIT = "5 min (policy.surd_interval_max_min)"
+
+
+def test_surd_interval_over_the_policy_fails(base, run):
+    """Contractor policy, default 5 min (U.S. Navy Diving Manual Rev 7 ch. 9 as quoted,
+    SECONDARY): leaving the 40 fsw stop to 50 fsw in the chamber.  A longer interval guards
+    against immediate harm, so it fails.  40/30 + 4 + 50/100 = 5.83 min (arithmetic)."""
     f = _one_bad(run(_surd(base, transfer=4.0), FAMILY, "proc-surd-interval"))
-    assert (f.rule, f.severity, f.limit, f.source_status) == (
-        "proc-surd-interval", "warn", 5.0, "SECONDARY")
-    assert f.measured == pytest.approx(40 / 30 + 4 + 0.5, abs=0.01)
-    assert "surface decompression" in f.citation
+    assert (f.rule, f.severity, f.limit) == ("proc-surd-interval", "fail", _SI_LIMIT)
+    assert f.measured == f"5.8 min, {_SPAN}"  # never a bare "5.83 min / 5 min"
+    assert "policy.surd_interval_max_min" in f.citation and "Rev 7, ch. 9" in f.citation
+    assert "half-period (15 min oxygen) at 50 fsw" in f.message  # 5-7 min (from memory)
+    assert "over 7 min surface decompression is abandoned" in f.message
+    assert "Treatment Table 5" in f.message and "Table 6" in f.message
+
+
+def test_a_planned_60_min_interval_fails(base, run):
+    """Issue 8: a 60-min surface interval only warned; it fails now (policy limit)."""
+    f = _one_bad(run(_surd(base, transfer=60.0), FAMILY, "proc-surd-interval"))
+    assert f.severity == "fail" and f.measured.startswith("61.8 min, ")
+    assert "treated" in f.message
+
+
+def test_surd_interval_limit_is_the_contractors(base, run):
+    d = _surd(base, transfer=4.0)
+    d["policy"]["surd_interval_max_min"] = 6
+    [f] = run(d, FAMILY, "proc-surd-interval")
+    assert f.severity == "pass" and f.limit == "6 min (policy.surd_interval_max_min)"
+    d["policy"]["surd_interval_max_min"] = 4
+    f = _one_bad(run(_surd(base, transfer=3.0) | {"policy": d["policy"]}, FAMILY,
+                     "proc-surd-interval"))
+    assert f.severity == "fail" and f.measured == f"4.8 min, {_SPAN}"
 
 
 def test_surd_interval_within_5_min_passes(base, run):
     """40/30 + 3 + 50/100 = 4.83 min."""
     [f] = run(_surd(base, transfer=3.0), FAMILY, "proc-surd-interval")
     assert f.severity == "pass"
-    assert f.measured == pytest.approx(4.83, abs=0.01)
+    assert f.measured == f"4.8 min, {_SPAN}" and f.limit == _SI_LIMIT
 
 
 def test_surd_interval_not_stated_needs_review(base, run):
@@ -223,6 +249,36 @@ def test_surd_interval_not_stated_needs_review(base, run):
     del d["dives"][0]["surface_transfer_min"]
     f = _one_bad(run(d, FAMILY, "proc-surd-interval"))
     assert f.severity == "warn" and not f.verified
+    assert f.measured == f"not stated ({_SPAN})"
+
+
+def test_surface_interval_supersaturation_is_judged(base, run):
+    """The peak supersaturation on the surface is judged, not skipped.  Expected figures are
+    this project's own model (ZH-L16C), compared with the policy's limit."""
+    [f] = run(_surd(base), FAMILY, "proc-surd-supersaturation")
+    assert f.severity == "pass" and f.limit == "275 % (default, DERIVED)"
+    peak = int(f.measured.split(" %")[0])
+    assert 100 < peak < 275  # above the M-value on the surface: surface decompression's nature
+    assert f.measured.endswith(f"peak of the 4.8-min surface interval ({_SPAN})")
+    # the contractor's own limit fails a plan beyond it
+    d = _surd(base)
+    d["policy"]["surface_interval_gf_max"] = peak - 1
+    f = _one_bad(run(d, FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "fail" and f.limit == f"{peak - 1} % (policy.surface_interval_gf_max)"
+    assert f.measured.startswith(f"{peak} % of the M-value gradient")
+
+
+def test_surface_interval_supersaturation_beyond_the_default(base, run, monkeypatch):
+    """Beyond the project's default (DERIVED, no published limit): needs review; a fail only
+    when the interval itself is over the policy's limit too."""
+    from supervisor.rules import procedure
+
+    monkeypatch.setattr(procedure, "SURFACE_INTERVAL_GF_DEFAULT", 100.0)
+    f = _one_bad(run(_surd(base), FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "warn" and not f.verified and f.message.startswith("needs review")
+    assert "policy.surface_interval_gf_max" in f.message
+    f = _one_bad(run(_surd(base, transfer=10.0), FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "fail" and "the interval is over 5 min" in f.message
 
 
 def test_chamber_periods(base, run):
@@ -415,6 +471,15 @@ def _surd_c(**kw):
     return _surd(_c.base, **kw)
 
 
+def _peak(ctx):
+    """The failing finding's measured figure from the model (this project's own output)."""
+    from supervisor import analysis as an
+
+    peak = 100 * an.for_context(ctx).dives["D1"].evaluation.surface_interval_max_gf
+    return (f"{peak:.0f} % of the M-value gradient, peak of the 4.8-min surface interval "
+            f"({_SPAN})")
+
+
 def _chamber(d, **kw):
     d["chamber"].update(kw)
     return d
@@ -464,8 +529,16 @@ CASES: dict[str, Case] = {
         citation="plan consistency (surface decompression is completed in a chamber)"),
     "proc-surd-interval": Case(
         passing=lambda _: _surd_c(), failing=lambda _: _surd_c(transfer=4.0),
-        measured=5.83, limit=5.0, severity="warn",  # 40/30 + 4 + 50/100 min, to 0.01
-        citation=f"{_NAVY7} (surface decompression on oxygen, surface interval)"),
+        measured=f"5.8 min, {_SPAN}", limit=_SI_LIMIT,  # 40/30 + 4 + 50/100 min
+        citation="contractor policy (policy.surd_interval_max_min); default 5 min: U.S. Navy "
+        "Diving Manual, Rev 7, ch. 9, surface decompression on oxygen (SECONDARY); Rev 4 "
+        "Change A, ch. 14 (OLDER-EDITION)"),
+    "proc-surd-supersaturation": Case(
+        passing=lambda _: _surd_c(),
+        failing=lambda _: _policy(_surd_c(), surface_interval_gf_max=100),
+        measured=_peak, limit="100 % (policy.surface_interval_gf_max)",
+        citation="contractor policy (policy.surface_interval_gf_max); "
+        + procedure.SURFACE_INTERVAL_GF_SOURCE),
     "proc-o2-air-breaks": Case(
         passing=lambda _: _p(**_W, stops=[{"depth": 30, "minutes": 10, "gas": O2},
                                           {"depth": 20, "minutes": 24, "gas": O2}]),
@@ -526,3 +599,18 @@ def test_contract_other_ids(key, plan, rule, severity, measured, limit, citation
 
 def test_contract_covers_every_rule():
     _c.check_covers(FAMILY, CASES)
+
+
+def test_the_supersaturation_default_is_the_models_ordinary_range():
+    """SURFACE_INTERVAL_GF_DEFAULT is DERIVED (this project's model, not an outside value):
+    the highest surface-interval peak of air surface decompression to 190 fsw within 4
+    chamber periods (the Navy exceptional-exposure line, SECONDARY) at 5 min, rounded up."""
+    from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedules
+
+    sd = SurfaceDecompression(40, 5, 50, second_depth=40)
+    reqs = [ScheduleRequest(depth=d, bottom_time_min=t, surface_decompression=sd,
+                            max_total_stop_min=100_000)
+            for d in range(50, 200, 10) for t in range(10, 400, 5)]
+    peaks = [100 * r.surface_interval_max_gf for r in plan_schedules(reqs, details=False)
+             if r.chamber_o2_periods is not None and r.chamber_o2_periods <= 4]
+    assert max(peaks) <= procedure.SURFACE_INTERVAL_GF_DEFAULT < max(peaks) + 5
