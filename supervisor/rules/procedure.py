@@ -237,7 +237,10 @@ def time_to_first_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         t = (d.max_depth - ws[0].depth) / rate
         t_table = (ctx.fsw(d.max_depth) - ctx.fsw(ws[0].depth)) / NAVY_ASCENT_FSW_MIN
         limit = round(t_table + FIRST_STOP_DELAY_MAX_MIN, 2)
-        kw = dict(measured=round(t, 2), limit=limit, unit="min", dive=d.id)
+        to = f"to the first stop at {ws[0].depth:g} {ctx.unit}"
+        kw = dict(measured=f"{t:.2f} min {to} ({rate:g} {ctx.unit}/min)",
+                  limit=f"{limit:.2f} min {to} ({t_table:.2f} min at 30 fsw/min + 1 min)",
+                  dive=d.id)
         head = (f"travel to the first stop at {ws[0].depth:g} {ctx.unit}: {t:.1f} min at "
                 f"{rate:g} {ctx.unit}/min against {t_table:.1f} min at 30 fsw/min")
         if t > limit + _TOL:
@@ -471,26 +474,35 @@ def surd_supersaturation(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 "); set policy.surface_interval_gf_max to the contractor's own limit", **kw)
 
 
-def _o2_runs(dive: Dive, place: str) -> tuple[list[float], list[float]]:
-    """Continuous oxygen runs and the air breaks between them at ``place`` [min]."""
-    runs: list[float] = []
-    breaks: list[float] = []
-    run = 0.0
-    gap = 0.0
+def _o2_runs(dive: Dive, place: str) -> tuple[list[tuple[float, str]], list[tuple[float, str]]]:
+    """Continuous oxygen runs and the air breaks between them at ``place``.
+
+    Returns ``(runs, breaks)``, each a list of (minutes, where), where naming the
+    stop depths, e.g. ``"30-20 fsw"``.
+    """
+    runs: list[tuple[float, list[float]]] = []
+    breaks: list[tuple[float, list[float]]] = []
+    run: tuple[float, list[float]] = (0.0, [])
+    gap: tuple[float, list[float]] = (0.0, [])
     for s in (x for x in dive.stops if x.place == place):
         if _is_oxygen(dive, s):
-            if run == 0.0 and runs:
+            if run[0] == 0.0 and runs:
                 breaks.append(gap)
-            run += s.minutes
-            gap = 0.0
+            run = (run[0] + s.minutes, run[1] + [s.depth])
+            gap = (0.0, [])
         else:
-            if run > 0.0:
+            if run[0] > 0.0:
                 runs.append(run)
-                run = 0.0
-            gap += s.minutes
-    if run > 0.0:
+                run = (0.0, [])
+            gap = (gap[0] + s.minutes, gap[1] + [s.depth])
+    if run[0] > 0.0:
         runs.append(run)
-    return runs, breaks
+
+    def where(depths: list[float]) -> str:
+        hi, lo = max(depths), min(depths)
+        return f"{hi:g}" + (f"-{lo:g}" if lo != hi else "")
+
+    return ([(m, where(ds)) for m, ds in runs], [(m, where(ds)) for m, ds in breaks])
 
 
 def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iterator[Finding]:
@@ -498,35 +510,35 @@ def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iter
     if not runs:
         return
     where = "in the water" if place == "water" else "in the chamber"
+    u = ctx.unit
     over = [
-        (i, t)
-        for i, t in enumerate(runs)
+        (i, t, at)
+        for i, (t, at) in enumerate(runs)
         if t > (O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN) + _TOL
     ]
-    short = [b for b in breaks if b < AIR_BREAK_MIN - _TOL]
-    for i, t in over:
+    short = [(b, at) for b, at in breaks if b < AIR_BREAK_MIN - _TOL]
+    for i, t, at in over:
         lim = O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN
+        last = " (the last run)" if i == len(runs) - 1 else ""
         yield r.breach(
-            f"{t:g} min of continuous oxygen {where} without a 5-min air break",
-            measured=t,
-            limit=lim,
-            unit="min",
+            f"{t:g} min of continuous oxygen {where} at {at} {u} without a 5-min air break",
+            measured=f"{t:g} min of oxygen at {at} {u} {where}",
+            limit=f"{lim:g} min of oxygen{last}, then a 5-min air break",
             dive=d.id,
         )
-    for b in short:
+    for b, at in short:
         yield r.breach(
-            f"air break of {b:g} min {where} is shorter than 5 min",
-            measured=b,
-            limit=AIR_BREAK_MIN,
-            unit="min",
+            f"air break of {b:g} min {where} at {at} {u} is shorter than 5 min",
+            measured=f"{b:g} min air break at {at} {u} {where}",
+            limit=f"{AIR_BREAK_MIN:g} min air break",
             dive=d.id,
         )
     if not over and not short:
+        t, at = max(runs)
         yield r.ok(
             f"oxygen {where} in runs of at most 30 min with 5-min air breaks",
-            measured=max(runs),
-            limit=O2_PERIOD_MIN,
-            unit="min",
+            measured=f"{t:g} min of oxygen at {at} {u} {where} (longest run)",
+            limit=f"{O2_PERIOD_MIN:g} min of oxygen, then a 5-min air break",
             dive=d.id,
         )
 
@@ -590,14 +602,15 @@ def exceptional_exposure(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             hits.append(
                 (
                     f"{d.in_water_stop_min:g} min in-water decompression, over 90 min",
-                    d.in_water_stop_min,
-                    EE_IN_WATER_MIN,
-                    "min",
+                    f"{d.in_water_stop_min:g} min of in-water stops",
+                    f"{EE_IN_WATER_MIN:g} min of in-water stops",
+                    None,
                 )
             )
         if d.decompression == "surface-oxygen" and surd_periods(d) > EE_SURD_PERIODS:
             n = surd_periods(d)
-            hits.append((f"{n:g} chamber oxygen periods, over 4", n, EE_SURD_PERIODS, "periods"))
+            hits.append((f"{n:g} chamber oxygen periods, over 4", n, EE_SURD_PERIODS,
+                         "30-min chamber oxygen periods"))
         for text, measured, limit, unit in hits:
             yield r.breach(
                 f"exceptional exposure: {text}; needs the approval the contractor's "
@@ -703,13 +716,14 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         a = pa.dives[d.id]
         have = float(sum(s.minutes for s in d.stops))
+        proposed = (f"{have:g} min of proposed stops ({len(d.stops)} stop(s))" if d.stops
+                    else "no proposed stops")
         nxt, reason = next_longer(ctx, a)
         if nxt is None:
             yield r.review(
                 f"needs review: {why}: the next longer bottom-time schedule is not available "
                 f"({reason}); decompress per the contractor's manual",
-                measured=have,
-                unit="min",
+                measured=proposed,
                 dive=d.id,
             )
             continue
@@ -717,7 +731,9 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         need = float(sum(c.required_min for c in checks))
         where = (f"{nxt.table} at {nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min (row "
                  f"{nxt.row}: {nxt.verification}, {nxt.source_status})")
-        kw = dict(measured=have, limit=need, unit="min", dive=d.id)
+        kw = dict(measured=proposed,
+                  limit=f"{need:g} min of stops on the next longer schedule, "
+                  f"{nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min", dive=d.id)
         tail = ("; later tables may already allow for these conditions: decide per the "
                 "contractor's manual")
         if all(c.ok for c in checks):
@@ -745,7 +761,9 @@ def short_surface_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         si = d.surface_interval_min
         if si is None:
             continue
-        kw = dict(measured=si, limit=SHORT_SI_MIN, unit="min", dive=d.id)
+        after = f" after {d.previous_dive}" if d.previous_dive else ""
+        kw = dict(measured=f"{si:g} min surface interval{after}",
+                  limit=f"{SHORT_SI_MIN:g} min surface interval", dive=d.id)
         if si < SHORT_SI_MIN - _TOL:
             yield r.breach(
                 f"surface interval of {si:g} min is under 10 min: treat the dives as "

@@ -140,8 +140,9 @@ def test_time_to_first_stop_at_the_table_rate_passes(base, run):
     d["dives"][0].update(max_depth=100, bottom_time_min=30, decompression="in-water",
                          stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
     [f] = run(d, FAMILY, "proc-time-to-first-stop")
-    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.verified) == (
-        "proc-time-to-first-stop", "pass", 2.0, 3.0, "min", False)
+    assert (f.rule, f.severity, f.measured, f.limit, f.verified) == (
+        "proc-time-to-first-stop", "pass", "2.00 min to the first stop at 40 fsw (30 fsw/min)",
+        "3.00 min to the first stop at 40 fsw (2.00 min at 30 fsw/min + 1 min)", False)
 
 
 def test_time_to_first_stop_delayed_over_1_min_warns(base, run):
@@ -154,7 +155,8 @@ def test_time_to_first_stop_delayed_over_1_min_warns(base, run):
                          stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
     f = _one_bad(run(d, FAMILY, "proc-time-to-first-stop"))
     assert (f.rule, f.severity, f.measured, f.limit) == (
-        "proc-time-to-first-stop", "warn", 5.5, 4.67)
+        "proc-time-to-first-stop", "warn", "5.50 min to the first stop at 40 fsw (20 fsw/min)",
+        "4.67 min to the first stop at 40 fsw (3.67 min at 30 fsw/min + 1 min)")
     assert f.citation == "U.S. Navy Diving Manual, Rev 7, ch. 9 (delay in reaching the first stop)"
     assert "1.8 min changes the schedule" in f.message
 
@@ -288,11 +290,13 @@ def test_chamber_periods(base, run):
     d["dives"][0]["stops"][3]["minutes"] = 2  # air break too short
     f = _one_bad(run(d, FAMILY, "proc-o2-chamber-periods"))
     assert (f.rule, f.severity, f.measured, f.limit) == (
-        "proc-o2-chamber-periods", "warn", 2, 5.0)
+        "proc-o2-chamber-periods", "warn", "2 min air break at 40 fsw in the chamber",
+        "5 min air break")
     d = _surd(base)
     d["dives"][0]["stops"][2]["minutes"] = 25  # 15 + 25 = 40 min without a break
     f = _one_bad(run(d, FAMILY, "proc-o2-chamber-periods"))
-    assert (f.measured, f.limit) == (40, 30.0)
+    assert (f.measured, f.limit) == ("40 min of oxygen at 50-40 fsw in the chamber",
+                                     "30 min of oxygen, then a 5-min air break")
 
 
 def test_in_water_air_breaks(base, run):
@@ -305,7 +309,9 @@ def test_in_water_air_breaks(base, run):
                                 {"depth": 20, "minutes": 5, "gas": "air"},
                                 {"depth": 20, "minutes": 10, "gas": O2}])
     f = _one_bad(run(d, FAMILY, "proc-o2-air-breaks"))
-    assert (f.rule, f.severity, f.measured, f.limit) == ("proc-o2-air-breaks", "warn", 40, 30.0)
+    assert (f.rule, f.severity, f.measured, f.limit) == (
+        "proc-o2-air-breaks", "warn", "40 min of oxygen at 30-20 fsw in the water",
+        "30 min of oxygen, then a 5-min air break")
     d["dives"][0]["stops"] = [{"depth": 30, "minutes": 10, "gas": O2},
                               {"depth": 20, "minutes": 24, "gas": O2}]
     _all_pass(run(d, FAMILY, "proc-o2-air-breaks"))
@@ -315,8 +321,8 @@ def test_in_water_air_breaks(base, run):
     ("change", "measured", "limit", "unit"),
     [
         ({"max_depth": 200, "bottom_time_min": 10}, 200, 190.0, "fsw"),
-        ({"decompression": "in-water", "stops": [{"depth": 20, "minutes": 95}]}, 95.0, 90.0,
-         "min"),
+        ({"decompression": "in-water", "stops": [{"depth": 20, "minutes": 95}]},
+         "95 min of in-water stops", "90 min of in-water stops", None),
     ],
 )
 def test_exceptional_exposure(base, run, change, measured, limit, unit):
@@ -341,7 +347,7 @@ def test_exceptional_exposure_surd_periods(base, run):
     d["dives"][0]["stops"] += [brk, per, brk, per, brk, per]
     f = _one_bad(run(d, FAMILY, "proc-exceptional-exposure"))
     assert (f.rule, f.measured, f.limit, f.unit) == (
-        "proc-exceptional-exposure", 5.0, 4.0, "periods")
+        "proc-exceptional-exposure", 5.0, 4.0, "30-min chamber oxygen periods")
     [f] = run(_surd(base), FAMILY, "proc-exceptional-exposure")
     assert f.severity == "pass" and "2 chamber oxygen periods within 4" in f.message
 
@@ -352,7 +358,8 @@ def test_short_surface_interval(base, run):
     d["dives"].append(dict(d["dives"][0], id="D2", previous_dive="D1", surface_interval_min=8))
     f = _one_bad(run(d, FAMILY, "proc-short-surface-interval"))
     assert (f.rule, f.severity, f.measured, f.limit, f.dive) == (
-        "proc-short-surface-interval", "warn", 8, 10.0, "D2")
+        "proc-short-surface-interval", "warn", "8 min surface interval after D1",
+        "10 min surface interval", "D2")
     d["dives"][1]["surface_interval_min"] = 90
     _all_pass(run(d, FAMILY, "proc-short-surface-interval"))
 
@@ -365,6 +372,7 @@ def test_short_surface_interval(base, run):
 # 8 min O2); 70 fsw / 40 min.
 
 NEXT_60 = [{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 12}]
+_NEXT = "60 fsw/60 min"
 
 
 def _cold(table=TABLE, **dive):
@@ -383,8 +391,9 @@ def _cold_one(d):
 def test_cold_dive_short_of_the_next_longer_schedule_warns():
     """60 fsw / 40 min enters the 60/50 row; cold work takes the 60/60 schedule: 14 min."""
     f = _cold_one(_cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]))
-    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.source_status) == (
-        "proc-cold-strenuous", "warn", 5.0, 14.0, "min", "OLDER-EDITION")
+    assert (f.rule, f.severity, f.measured, f.limit, f.source_status) == (
+        "proc-cold-strenuous", "warn", "5 min of proposed stops (1 stop(s))",
+        f"14 min of stops on the next longer schedule, {_NEXT}", "OLDER-EDITION")
     assert f.citation == NAVY_COLD
     assert "60 fsw/60 min" in f.message and "stop 20 fsw on air: missing" in f.message
     assert "stop 10 fsw on air: 5 of 12 min" in f.message
@@ -393,13 +402,17 @@ def test_cold_dive_short_of_the_next_longer_schedule_warns():
 def test_cold_no_stop_dive_without_the_next_longer_stops_warns():
     """A dive planned without stops is short of every stop of the next longer schedule."""
     f = _cold_one(_cold())
-    assert (f.severity, f.measured, f.limit) == ("warn", 0.0, 14.0)
+    # never "0 min / 14 min": the figures say what they are
+    assert (f.severity, f.measured, f.limit) == (
+        "warn", "no proposed stops", f"14 min of stops on the next longer schedule, {_NEXT}")
 
 
 def test_cold_dive_covering_the_next_longer_schedule_passes_for_review():
     """Every stop present and at least as long: a pass, unverified (OLDER-EDITION rule)."""
     f = _cold_one(_cold(decompression="in-water", stops=NEXT_60))
-    assert (f.severity, f.measured, f.limit, f.verified) == ("pass", 14.0, 14.0, False)
+    assert (f.severity, f.measured, f.limit, f.verified) == (
+        "pass", "14 min of proposed stops (2 stop(s))",
+        f"14 min of stops on the next longer schedule, {_NEXT}", False)
     assert verdict([f]) == "needs-review"
 
 
@@ -417,7 +430,9 @@ def test_strenuous_in_water_oxygen_takes_the_air_o2_schedule():
               stops=[{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 8, "gas": "oxygen"}])
     d["dives"][0].update(cold=False, strenuous=True)
     f = _cold_one(d)
-    assert (f.severity, f.measured, f.limit) == ("pass", 10.0, 10.0)
+    assert (f.severity, f.measured, f.limit) == (
+        "pass", "10 min of proposed stops (2 stop(s))",
+        f"10 min of stops on the next longer schedule, {_NEXT}")
     assert f.message.startswith("strenuous work:")
 
 
@@ -446,7 +461,9 @@ def test_cold_without_a_next_longer_row_needs_review(table, dive, reason):
     assert (f.rule, f.severity, f.verified, f.limit) == ("proc-cold-strenuous", "warn", False,
                                                          None)
     assert f.message.startswith("needs review: cold:") and reason in f.message
-    assert f.measured == sum(s["minutes"] for s in dive.get("stops", []))
+    stops = dive.get("stops", [])
+    assert f.measured == (f"{sum(s['minutes'] for s in stops):g} min of proposed stops "
+                          f"({len(stops)} stop(s))" if stops else "no proposed stops")
     _c.reported(f)
 
 
@@ -517,8 +534,9 @@ CASES: dict[str, Case] = {
                              stops=[{"depth": 40, "minutes": 2}]),
         failing=lambda _: _p(max_depth=150, bottom_time_min=20, ascent_rate=20,
                              decompression="in-water", stops=[{"depth": 40, "minutes": 2}]),
-        measured=5.5, limit=4.67, severity="warn",
-        citation=f"{_NAVY7} (delay in reaching the first stop)"),
+        measured="5.50 min to the first stop at 40 fsw (20 fsw/min)",
+        limit="4.67 min to the first stop at 40 fsw (3.67 min at 30 fsw/min + 1 min)",
+        severity="warn", citation=f"{_NAVY7} (delay in reaching the first stop)"),
     "proc-decompression-declared": Case(
         passing=lambda _: _surd_c(), failing=lambda _: _p(decompression="in-water"),
         measured="in-water", limit="water stops",
@@ -546,7 +564,8 @@ CASES: dict[str, Case] = {
                                           {"depth": 20, "minutes": 20, "gas": O2},
                                           {"depth": 20, "minutes": 5, "gas": "air"},
                                           {"depth": 20, "minutes": 10, "gas": O2}]),
-        measured=40, limit=30.0, severity="warn",
+        measured="40 min of oxygen at 30-20 fsw in the water",
+        limit="30 min of oxygen, then a 5-min air break", severity="warn",
         citation=f"{_NAVY7} (in-water air/oxygen decompression, air breaks)"),
     "proc-o2-chamber-periods": Case(
         passing=lambda _: _surd_c(),
@@ -556,7 +575,8 @@ CASES: dict[str, Case] = {
             {"depth": 40, "minutes": 25, "gas": O2, "place": "chamber"},
             {"depth": 40, "minutes": 5, "gas": "air", "place": "chamber"},
             {"depth": 40, "minutes": 30, "gas": O2, "place": "chamber"}]),
-        measured=40, limit=30.0, severity="warn",
+        measured="40 min of oxygen at 50-40 fsw in the chamber",
+        limit="30 min of oxygen, then a 5-min air break", severity="warn",
         citation=f"{_NAVY7} (surface decompression on oxygen, chamber periods)"),
     "proc-exceptional-exposure": Case(
         passing=lambda _: _c.base(), failing=lambda _: _p(max_depth=200, bottom_time_min=10),
@@ -564,10 +584,13 @@ CASES: dict[str, Case] = {
     "proc-cold-strenuous": Case(
         passing=lambda _: _cold(decompression="in-water", stops=NEXT_60),
         failing=lambda _: _cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]),
-        measured=5.0, limit=14.0, severity="warn", citation=NAVY_COLD),
+        measured="5 min of proposed stops (1 stop(s))",
+        limit="14 min of stops on the next longer schedule, 60 fsw/60 min", severity="warn",
+        citation=NAVY_COLD),
     "proc-short-surface-interval": Case(
         passing=lambda _: _second(90), failing=lambda _: _second(8),
-        measured=8, limit=10.0, severity="warn",
+        measured="8 min surface interval after D1", limit="10 min surface interval",
+        severity="warn",
         citation="U.S. Navy Diving Manual, pre-2008 air tables (surface interval under 10 min)"),
 }
 
