@@ -337,14 +337,20 @@ def surd_interval_min(ctx: CheckContext, dive: Dive) -> float | None:
     return up + deck + down
 
 
-def _interval_span(ctx: CheckContext, dive: Dive) -> str:
-    """Where the surface interval runs: "the 40 fsw water stop to 50 fsw in the chamber"."""
-    ws = dive.water_stops
-    start = (f"the {ws[-1].depth:g} {ctx.unit} water stop" if ws
-             else f"the bottom ({dive.max_depth:g} {ctx.unit})")
-    chamber = dive.chamber_stops
-    end = f"{chamber[0].depth:g} {ctx.unit} in the chamber" if chamber else "the chamber"
-    return f"leaving {start} to arriving at {end}"
+def _interval_span(ctx: CheckContext, dive: Dive) -> tuple[str, str]:
+    """Where the surface interval runs, short and in words.
+
+    ``("40 fsw water stop to 50 fsw chamber", "leaving the 40 fsw water stop to
+    arriving at 50 fsw in the chamber")``.
+    """
+    ws, chamber = dive.water_stops, dive.chamber_stops
+    u = ctx.unit
+    start = f"{ws[-1].depth:g} {u} water stop" if ws else f"bottom ({dive.max_depth:g} {u})"
+    end = f"{chamber[0].depth:g} {u}" if chamber else ""
+    short = f"{start} to {end + ' ' if end else ''}chamber"
+    words = (f"leaving the {start} to arriving at " + (f"{end} in the chamber" if end
+                                                         else "the chamber"))
+    return short, words
 
 
 #: What the procedure does with a late chamber (U.S. Navy Diving Manual Rev 7 ch. 9 as
@@ -381,17 +387,17 @@ def surd_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
     for d in ctx.dives():
         if d.decompression != "surface-oxygen" and not d.chamber_stops:
             continue
-        span = _interval_span(ctx, d)
+        short, span = _interval_span(ctx, d)
         si = surd_interval_min(ctx, d)
         if si is None:
             yield r.review(
                 f"needs review: surface decompression without surface_transfer_min (the time "
                 f"on deck); the surface interval, {span}, cannot be checked against "
                 f"{top:g} min",
-                measured=f"not stated ({span})", limit=limit, dive=d.id,
+                measured=f"not stated ({short})", limit=limit, dive=d.id,
             )
             continue
-        measured = f"{si:.1f} min, {span}"
+        measured = f"{si:.1f} min, {short}"
         if si > top + _TOL:
             yield r.breach(
                 f"surface interval of {si:.1f} min, {span}, is over the policy's {top:g} min; "
@@ -445,18 +451,17 @@ def surd_supersaturation(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         a = pa.dives[d.id]
         ev = a.evaluation
-        span = _interval_span(ctx, d)
+        short, span = _interval_span(ctx, d)
         if ev is None or ev.surface_interval_max_gf is None:
             why = a.errors.get("evaluation") or a.errors.get("profile") or "no surface interval"
             yield r.review(f"needs review: the supersaturation during the surface interval "
                            f"({span}) could not be computed ({why})",
-                           measured=f"not computed ({span})", limit=limit, dive=d.id)
+                           measured=f"not computed ({short})", limit=limit, dive=d.id)
             continue
         peak = 100.0 * ev.surface_interval_max_gf
         up, deck, down, _ = ctx.plan.surface_decompression_times(d)
         si = up + deck + down
-        measured = (f"{peak:.0f} % of the M-value gradient, peak of the {si:.1f}-min "
-                    f"surface interval ({span})")
+        measured = f"{peak:.0f} % of the M-value gradient, {si:.1f}-min interval"
         head = (f"the model ({a.coefficient_status} coefficients) puts the supersaturation "
                 f"during the {si:.1f}-min surface interval ({span}) at up to {peak:.0f} % of "
                 f"the M-value gradient (100 % is the M-value)")
@@ -523,7 +528,7 @@ def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iter
         yield r.breach(
             f"{t:g} min of continuous oxygen {where} at {at} {u} without a 5-min air break",
             measured=f"{t:g} min of oxygen at {at} {u} {where}",
-            limit=f"{lim:g} min of oxygen{last}, then a 5-min air break",
+            limit=f"{lim:g} min of oxygen{last}, then air",
             dive=d.id,
         )
     for b, at in short:
@@ -538,7 +543,7 @@ def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iter
         yield r.ok(
             f"oxygen {where} in runs of at most 30 min with 5-min air breaks",
             measured=f"{t:g} min of oxygen at {at} {u} {where} (longest run)",
-            limit=f"{O2_PERIOD_MIN:g} min of oxygen, then a 5-min air break",
+            limit=f"{O2_PERIOD_MIN:g} min of oxygen, then air",
             dive=d.id,
         )
 
@@ -732,8 +737,8 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         where = (f"{nxt.table} at {nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min (row "
                  f"{nxt.row}: {nxt.verification}, {nxt.source_status})")
         kw = dict(measured=proposed,
-                  limit=f"{need:g} min of stops on the next longer schedule, "
-                  f"{nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min", dive=d.id)
+                  limit=f"{need:g} min of stops, next longer schedule "
+                  f"({nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min)", dive=d.id)
         tail = ("; later tables may already allow for these conditions: decide per the "
                 "contractor's manual")
         if all(c.ok for c in checks):
