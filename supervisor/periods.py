@@ -263,3 +263,46 @@ def merge_stops(stops: Iterable[tuple[float, float, str, str]]) -> list[dict[str
         s["gas"] = gases[0] if gases else AIR.name
         s["periods"] = periods_json(periods)
     return [{k: s[k] for k in ("depth", "minutes", "gas", "place", "periods")} for s in out]
+
+
+def pattern_difference(plan_stops: Iterable[tuple[float, str, str]],
+                       table_stops: Iterable[tuple[float, str, str]], unit: str) -> str | None:
+    """Say plainly where a plan's oxygen pattern differs from a table's, or ``None``.
+
+    The oxygen stops (an oxygen-rich gas) of each place are compared by depth: a
+    plan taking chamber oxygen at 50 and 40 fsw against a table whose chamber stops
+    are at 20 and 10 fsw follows another pattern, so comparing them stop by stop
+    says nothing; cover is then a matter for the model.
+
+    Parameters
+    ----------
+    plan_stops, table_stops : iterable of (depth, gas name, place)
+        The stops of the plan and of the table's schedule, in the same unit.
+    unit : str
+        Depth unit, for the sentence.
+
+    Returns
+    -------
+    str or None
+        One sentence naming both patterns, or ``None`` when they agree.
+    """
+    def oxygen(stops: Iterable[tuple[float, str, str]]) -> dict[str, list[float]]:
+        out: dict[str, list[float]] = {}
+        for depth, gas, place in stops:
+            if is_oxygen_rich(gas) and depth not in out.setdefault(place, []):
+                out[place].append(depth)
+        return out
+
+    mine, theirs = oxygen(plan_stops), oxygen(table_stops)
+    parts = []
+    for place in ("water", "chamber"):
+        a, b = mine.get(place, []), theirs.get(place, [])
+        if sorted(a) != sorted(b):
+            def show(ds: list[float]) -> str:
+                return "/".join(f"{_num(d)}" for d in sorted(ds, reverse=True)) + f" {unit}" \
+                    if ds else "none"
+            parts.append(f"{place} oxygen at {show(a)} in the plan, {show(b)} in the table")
+    if not parts:
+        return None
+    return ("the plan's oxygen pattern differs from the table's (" + "; ".join(parts)
+            + "): the stops are not compared one by one; cover is judged by the model")

@@ -83,3 +83,17 @@ def test_texts_show_the_periods_of_a_stop_with_breaks() -> None:
     assert stop_text(40, 3, "air", "water", "fsw", [("air", 3)]) == "40 fsw 3 min air"
     assert stop_text(50, 15, "oxygen", "chamber", "fsw") == "50 fsw 15 min oxygen (chamber)"
     assert periods_json([("oxygen", 12.5)]) == [{"gas": "oxygen", "minutes": 12.5}]
+
+
+def test_pattern_difference_is_said_once_and_plainly() -> None:
+    from supervisor.periods import pattern_difference
+
+    plan = [(40, "air", "water"), (50, "oxygen", "chamber"), (40, "oxygen", "chamber"),
+            (40, "air", "chamber")]
+    old = [(40, "air", "water"), (20, "oxygen", "chamber"), (10, "oxygen", "chamber")]
+    text = pattern_difference(plan, old, "fsw")
+    assert text == ("the plan's oxygen pattern differs from the table's (chamber oxygen at "
+                    "50/40 fsw in the plan, 20/10 fsw in the table): the stops are not compared "
+                    "one by one; cover is judged by the model")
+    same = [(40, "air", "water"), (50, "oxygen", "chamber"), (40, "oxygen", "chamber")]
+    assert pattern_difference(plan, same, "fsw") is None

@@ -85,6 +85,9 @@ MIN_STOP_STEP: dict[str, float] = {"fsw": 1.0, "ft": 1.0, "msw": 0.3, "m": 0.3}
 #: days: above the 33.5-35 h of Navy Treatment Table 4 (FROM MEMORY), far above any
 #: surface-oriented decompression.
 MAX_TOTAL_STOP_MIN: int = 2880
+#: Longest time on the surface in a surface-decompression interval the planner computes
+#: [min]: the plan's ``surface_transfer_min`` cap; far beyond the procedure's 5 min.
+MAX_SURFACE_MIN: float = 60.0
 
 
 class BeyondRangeError(ScheduleError):
@@ -397,11 +400,13 @@ class ScheduleRequest:
             travel = sd.leave_water_depth / self.ascent_rate + sd.chamber_depth / sd.compression(
                 self.descent_rate)
             si = sd.surface_interval_min
-            if not _num(si) or si + 1e-9 < travel or si > 60:
+            if not _num(si) or si + 1e-9 < travel or si > travel + MAX_SURFACE_MIN + 1e-9:
                 raise InputError(
                     "--surface-interval",
                     f"got {si!r} min; expected from the travel time ({travel:.2f} min: up from "
-                    f"{sd.leave_water_depth:g} {u}, down to {sd.chamber_depth:g} {u}) to 60 min",
+                    f"{sd.leave_water_depth:g} {u}, down to {sd.chamber_depth:g} {u}) to "
+                    f"{travel + MAX_SURFACE_MIN:.2f} min (at most {MAX_SURFACE_MIN:g} min on "
+                    "the surface)",
                 )
             second = sd.second_depth
             if second is not None and (not _num(second) or second <= 0

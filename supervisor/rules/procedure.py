@@ -26,9 +26,9 @@ from collections.abc import Iterator
 from supervisor import analysis as an
 from supervisor.findings import Finding
 from supervisor.gas import parse_gas
-from supervisor.plan import CHAMBER_COMPRESSION_FSW_PER_MIN, Dive, Stop
+from supervisor.plan import Dive, Stop
 from supervisor.references import LookupResult, lookup_schedule
-from supervisor.rules.base import NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.base import CheckContext, Family, Rule
 from supervisor.rules.regulatory import READY, chamber_state
 from supervisor.rules.tables import shortfall, stop_checks
 
@@ -43,8 +43,6 @@ NAVY_ASCENT_MIN_FSW_MIN = 20.0  # ch. 14 tolerance, OLDER-EDITION (Rev 4 Change 
 NAVY_ASCENT_MAX_FSW_MIN = 40.0  # idem
 NAVY_ASCENT_FSW_MIN = 30.0  # ascent rate the tables assume, Rev 4 Change A ch. 9, OLDER-EDITION
 FIRST_STOP_DELAY_MAX_MIN = 1.0  # delay reaching the first stop that changes the schedule, SECONDARY
-SURD_INTERVAL_MAX_MIN = 5.0  # ch. 9 SurDO2, SECONDARY; Rev 4 Change A ch. 14 OLDER-EDITION
-SURD_LATE_MAX_MIN = 7.0  # SurDO2 late-arrival band, from memory
 O2_PERIOD_MIN = 30.0  # SurDO2 chamber period and in-water O2 run, SECONDARY
 O2_FINAL_RUN_MAX_MIN = 35.0  # no final air break if the last run is <= 35 min, OLDER-EDITION
 AIR_BREAK_MIN = 5.0  # SECONDARY
@@ -239,7 +237,10 @@ def time_to_first_stop(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         t = (d.max_depth - ws[0].depth) / rate
         t_table = (ctx.fsw(d.max_depth) - ctx.fsw(ws[0].depth)) / NAVY_ASCENT_FSW_MIN
         limit = round(t_table + FIRST_STOP_DELAY_MAX_MIN, 2)
-        kw = dict(measured=round(t, 2), limit=limit, unit="min", dive=d.id)
+        to = f"to the first stop at {ws[0].depth:g} {ctx.unit}"
+        kw = dict(measured=f"{t:.2f} min {to} ({rate:g} {ctx.unit}/min)",
+                  limit=f"{limit:.2f} min {to} ({t_table:.2f} min at 30 fsw/min + 1 min)",
+                  dive=d.id)
         head = (f"travel to the first stop at {ws[0].depth:g} {ctx.unit}: {t:.1f} min at "
                 f"{rate:g} {ctx.unit}/min against {t_table:.1f} min at 30 fsw/min")
         if t > limit + _TOL:
@@ -327,76 +328,186 @@ def surd_interval_min(ctx: CheckContext, dive: Dive) -> float | None:
 
     From leaving the last water stop (the bottom if there is none) to arriving
     at the first chamber stop: ascent at the dive's ascent rate, the stated
-    deck time, and compression at 100 fsw/min.
+    deck time, and compression at 100 fsw/min
+    (:meth:`supervisor.plan.Plan.surface_decompression_times`).
     """
     if dive.surface_transfer_min is None or not dive.chamber_stops:
         return None
-    ws = dive.water_stops
-    start = ws[-1].depth if ws else dive.max_depth
-    ascent = start / ctx.plan.ascent_rate(dive)
-    compress = dive.chamber_stops[0].depth / ctx.plan.from_fsw(CHAMBER_COMPRESSION_FSW_PER_MIN)
-    return ascent + dive.surface_transfer_min + compress
+    up, deck, down, _ = ctx.plan.surface_decompression_times(dive)
+    return up + deck + down
+
+
+def _interval_span(ctx: CheckContext, dive: Dive) -> tuple[str, str]:
+    """Where the surface interval runs, short and in words.
+
+    ``("40 fsw water stop to 50 fsw chamber", "leaving the 40 fsw water stop to
+    arriving at 50 fsw in the chamber")``.
+    """
+    ws, chamber = dive.water_stops, dive.chamber_stops
+    u = ctx.unit
+    start = f"{ws[-1].depth:g} {u} water stop" if ws else f"bottom ({dive.max_depth:g} {u})"
+    end = f"{chamber[0].depth:g} {u}" if chamber else ""
+    short = f"{start} to {end + ' ' if end else ''}chamber"
+    words = (f"leaving the {start} to arriving at " + (f"{end} in the chamber" if end
+                                                         else "the chamber"))
+    return short, words
+
+
+#: What the procedure does with a late chamber (U.S. Navy Diving Manual Rev 7 ch. 9 as
+#: recalled; a secondary source agrees that past the 5-min limit the diver is treated).
+SURD_LATE_TEXT = (
+    "the procedure (from memory): an interval over 5 and up to 7 min adds a half-period "
+    "(15 min oxygen) at 50 fsw; over 7 min surface decompression is abandoned and the diver "
+    "is treated: Treatment Table 5 if the schedule needed 2 chamber periods or fewer, Table 6 "
+    "if more or on any symptom (secondary sources: past the 5-min limit the diver is treated "
+    "on Table 5 or 6)"
+)
+
+SURD_INTERVAL_DEFAULT = (
+    "default 5 min: U.S. Navy Diving Manual, Rev 7, ch. 9, surface decompression on oxygen "
+    "(SECONDARY); Rev 4 Change A, ch. 14 (OLDER-EDITION)"
+)
 
 
 @FAMILY.rule(
     "proc-surd-interval",
-    title="Surface decompression: surface interval within 5 min",
-    citation=f"{NAVY_REV7} (surface decompression on oxygen, surface interval)",
-    source_status="SECONDARY",
-    kind="reference",
+    title="Surface decompression: surface interval within the policy's limit",
+    citation=f"contractor policy (policy.surd_interval_max_min); {SURD_INTERVAL_DEFAULT}",
+    kind="policy",
 )
 def surd_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
-    """Leaving the water stop to arriving at the chamber stop within 5 min (SECONDARY).
+    """Leaving the last water stop to arriving at the first chamber depth within the policy.
 
-    From memory: more than 5 but no more than 7 min adds a half-period at
-    50 fsw; more than 7 min means treatment instead of surface decompression.
+    The limit guards against immediate harm (the diver sits on the surface with
+    tissues above their M-values until the chamber is pressed), so a longer
+    interval fails; the finding says what the procedure does beyond 5 and 7 min.
     """
+    top = float(ctx.policy.surd_interval_max_min)
+    limit = f"{top:g} min (policy.surd_interval_max_min)"
     for d in ctx.dives():
-        if d.decompression != "surface-oxygen":
+        if d.decompression != "surface-oxygen" and not d.chamber_stops:
             continue
+        short, span = _interval_span(ctx, d)
         si = surd_interval_min(ctx, d)
         if si is None:
             yield r.review(
-                "needs review: surface decompression without surface_transfer_min; "
-                "the surface interval cannot be checked",
-                measured=NOT_STATED,
-                limit=SURD_INTERVAL_MAX_MIN,
-                unit="min",
-                dive=d.id,
+                f"needs review: surface decompression without surface_transfer_min (the time "
+                f"on deck); the surface interval, {span}, cannot be checked against "
+                f"{top:g} min",
+                measured=f"not stated ({short})", limit=limit, dive=d.id,
             )
             continue
-        kw = dict(measured=round(si, 2), limit=SURD_INTERVAL_MAX_MIN, unit="min", dive=d.id)
-        if si > SURD_INTERVAL_MAX_MIN + _TOL:
-            late = (
-                " (over 7 min: a treatment, not surface decompression, from memory)"
-                if si > SURD_LATE_MAX_MIN
-                else " (5-7 min: extra oxygen time, from memory)"
+        measured = f"{si:.1f} min, {short}"
+        if si > top + _TOL:
+            yield r.breach(
+                f"surface interval of {si:.1f} min, {span}, is over the policy's {top:g} min; "
+                f"{SURD_LATE_TEXT}",
+                measured=measured, limit=limit, dive=d.id,
             )
-            yield r.breach(f"surface interval of {si:.1f} min is over 5 min{late}", **kw)
         else:
-            yield r.ok(f"surface interval of {si:.1f} min within 5 min", **kw)
+            yield r.ok(f"surface interval of {si:.1f} min, {span}, within {top:g} min",
+                       measured=measured, limit=limit, dive=d.id)
 
 
-def _o2_runs(dive: Dive, place: str) -> tuple[list[float], list[float]]:
-    """Continuous oxygen runs and the air breaks between them at ``place`` [min]."""
-    runs: list[float] = []
-    breaks: list[float] = []
-    run = 0.0
-    gap = 0.0
+#: Default limit of the supersaturation during a surface-decompression interval [% of
+#: the M-value gradient]: DERIVED, not a published limit: the highest peak this project's
+#: ZH-L16C model gives (275 %, from 271 % rounded up) for air surface decompression to
+#: 190 fsw within 4 chamber periods (the exceptional-exposure line of the Navy procedure,
+#: SECONDARY) at a 5-min interval.  Beyond it a dive is outside ordinary surface
+#: decompression as this model sees it: needs review, unless the contractor sets a limit.
+SURFACE_INTERVAL_GF_DEFAULT = 275.0
+SURFACE_INTERVAL_GF_SOURCE = (
+    "default 275 %: DERIVED by this project from its own ZH-L16C model (the highest peak of "
+    "air surface decompression to 190 fsw within 4 chamber periods at a 5-min interval); "
+    "not a published limit"
+)
+
+
+@FAMILY.rule(
+    "proc-surd-supersaturation",
+    title="Surface decompression: supersaturation during the surface interval within the limit",
+    citation=f"contractor policy (policy.surface_interval_gf_max); {SURFACE_INTERVAL_GF_SOURCE}",
+    kind="policy",
+)
+def surd_supersaturation(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
+    """The model's peak supersaturation on the surface between the water and the chamber.
+
+    The ceiling check of the planned profile covers the water and the chamber; on
+    the surface the ceiling is broken on purpose, so the peak is judged here, as a
+    percentage of the M-value gradient (100 % is the M-value) against the
+    contractor's ``surface_interval_gf_max``: beyond it the dive fails.  Without a
+    contractor limit the project's default applies (DERIVED from its own model, no
+    published limit): beyond it the dive needs review, and fails only when the
+    interval itself is over the policy's limit too.
+    """
+    own = ctx.policy.surface_interval_gf_max
+    top = float(own) if own is not None else SURFACE_INTERVAL_GF_DEFAULT
+    limit = (f"{top:g} % (policy.surface_interval_gf_max)" if own is not None
+             else f"{top:g} % (default, DERIVED)")
+    si_max = float(ctx.policy.surd_interval_max_min)
+    pa = an.for_context(ctx)
+    for d in ctx.dives():
+        if not d.chamber_stops:
+            continue
+        a = pa.dives[d.id]
+        ev = a.evaluation
+        short, span = _interval_span(ctx, d)
+        if ev is None or ev.surface_interval_max_gf is None:
+            why = a.errors.get("evaluation") or a.errors.get("profile") or "no surface interval"
+            yield r.review(f"needs review: the supersaturation during the surface interval "
+                           f"({span}) could not be computed ({why})",
+                           measured=f"not computed ({short})", limit=limit, dive=d.id)
+            continue
+        peak = 100.0 * ev.surface_interval_max_gf
+        up, deck, down, _ = ctx.plan.surface_decompression_times(d)
+        si = up + deck + down
+        measured = f"{peak:.0f} % of the M-value gradient, {si:.1f}-min interval"
+        head = (f"the model ({a.coefficient_status} coefficients) puts the supersaturation "
+                f"during the {si:.1f}-min surface interval ({span}) at up to {peak:.0f} % of "
+                f"the M-value gradient (100 % is the M-value)")
+        kw = dict(measured=measured, limit=limit, dive=d.id)
+        if peak <= top + 1e-9:
+            yield r.ok(f"{head}, within {limit}", **kw)
+        elif own is not None:
+            yield r.breach(f"{head}, beyond the contractor's {top:g} %", **kw)
+        elif si > si_max + _TOL:
+            yield r.breach(f"{head}, beyond the default {top:g} % (DERIVED, no published "
+                           f"limit), and the interval is over {si_max:g} min", **kw)
+        else:
+            yield r.review(
+                f"needs review: {head}, beyond the default {top:g} % ({SURFACE_INTERVAL_GF_SOURCE}"
+                "); set policy.surface_interval_gf_max to the contractor's own limit", **kw)
+
+
+def _o2_runs(dive: Dive, place: str) -> tuple[list[tuple[float, str]], list[tuple[float, str]]]:
+    """Continuous oxygen runs and the air breaks between them at ``place``.
+
+    Returns ``(runs, breaks)``, each a list of (minutes, where), where naming the
+    stop depths, e.g. ``"30-20 fsw"``.
+    """
+    runs: list[tuple[float, list[float]]] = []
+    breaks: list[tuple[float, list[float]]] = []
+    run: tuple[float, list[float]] = (0.0, [])
+    gap: tuple[float, list[float]] = (0.0, [])
     for s in (x for x in dive.stops if x.place == place):
         if _is_oxygen(dive, s):
-            if run == 0.0 and runs:
+            if run[0] == 0.0 and runs:
                 breaks.append(gap)
-            run += s.minutes
-            gap = 0.0
+            run = (run[0] + s.minutes, run[1] + [s.depth])
+            gap = (0.0, [])
         else:
-            if run > 0.0:
+            if run[0] > 0.0:
                 runs.append(run)
-                run = 0.0
-            gap += s.minutes
-    if run > 0.0:
+                run = (0.0, [])
+            gap = (gap[0] + s.minutes, gap[1] + [s.depth])
+    if run[0] > 0.0:
         runs.append(run)
-    return runs, breaks
+
+    def where(depths: list[float]) -> str:
+        hi, lo = max(depths), min(depths)
+        return f"{hi:g}" + (f"-{lo:g}" if lo != hi else "")
+
+    return ([(m, where(ds)) for m, ds in runs], [(m, where(ds)) for m, ds in breaks])
 
 
 def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iterator[Finding]:
@@ -404,35 +515,35 @@ def _o2_period_findings(ctx: CheckContext, r: Rule, d: Dive, place: str) -> Iter
     if not runs:
         return
     where = "in the water" if place == "water" else "in the chamber"
+    u = ctx.unit
     over = [
-        (i, t)
-        for i, t in enumerate(runs)
+        (i, t, at)
+        for i, (t, at) in enumerate(runs)
         if t > (O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN) + _TOL
     ]
-    short = [b for b in breaks if b < AIR_BREAK_MIN - _TOL]
-    for i, t in over:
+    short = [(b, at) for b, at in breaks if b < AIR_BREAK_MIN - _TOL]
+    for i, t, at in over:
         lim = O2_FINAL_RUN_MAX_MIN if i == len(runs) - 1 else O2_PERIOD_MIN
+        last = " (the last run)" if i == len(runs) - 1 else ""
         yield r.breach(
-            f"{t:g} min of continuous oxygen {where} without a 5-min air break",
-            measured=t,
-            limit=lim,
-            unit="min",
+            f"{t:g} min of continuous oxygen {where} at {at} {u} without a 5-min air break",
+            measured=f"{t:g} min of oxygen at {at} {u} {where}",
+            limit=f"{lim:g} min of oxygen{last}, then air",
             dive=d.id,
         )
-    for b in short:
+    for b, at in short:
         yield r.breach(
-            f"air break of {b:g} min {where} is shorter than 5 min",
-            measured=b,
-            limit=AIR_BREAK_MIN,
-            unit="min",
+            f"air break of {b:g} min {where} at {at} {u} is shorter than 5 min",
+            measured=f"{b:g} min air break at {at} {u} {where}",
+            limit=f"{AIR_BREAK_MIN:g} min air break",
             dive=d.id,
         )
     if not over and not short:
+        t, at = max(runs)
         yield r.ok(
             f"oxygen {where} in runs of at most 30 min with 5-min air breaks",
-            measured=max(runs),
-            limit=O2_PERIOD_MIN,
-            unit="min",
+            measured=f"{t:g} min of oxygen at {at} {u} {where} (longest run)",
+            limit=f"{O2_PERIOD_MIN:g} min of oxygen, then air",
             dive=d.id,
         )
 
@@ -496,14 +607,15 @@ def exceptional_exposure(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             hits.append(
                 (
                     f"{d.in_water_stop_min:g} min in-water decompression, over 90 min",
-                    d.in_water_stop_min,
-                    EE_IN_WATER_MIN,
-                    "min",
+                    f"{d.in_water_stop_min:g} min of in-water stops",
+                    f"{EE_IN_WATER_MIN:g} min of in-water stops",
+                    None,
                 )
             )
         if d.decompression == "surface-oxygen" and surd_periods(d) > EE_SURD_PERIODS:
             n = surd_periods(d)
-            hits.append((f"{n:g} chamber oxygen periods, over 4", n, EE_SURD_PERIODS, "periods"))
+            hits.append((f"{n:g} chamber oxygen periods, over 4", n, EE_SURD_PERIODS,
+                         "30-min chamber oxygen periods"))
         for text, measured, limit, unit in hits:
             yield r.breach(
                 f"exceptional exposure: {text}; needs the approval the contractor's "
@@ -609,13 +721,14 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             continue
         a = pa.dives[d.id]
         have = float(sum(s.minutes for s in d.stops))
+        proposed = (f"{have:g} min of proposed stops ({len(d.stops)} stop(s))" if d.stops
+                    else "no proposed stops")
         nxt, reason = next_longer(ctx, a)
         if nxt is None:
             yield r.review(
                 f"needs review: {why}: the next longer bottom-time schedule is not available "
                 f"({reason}); decompress per the contractor's manual",
-                measured=have,
-                unit="min",
+                measured=proposed,
                 dive=d.id,
             )
             continue
@@ -623,7 +736,9 @@ def cold_strenuous(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         need = float(sum(c.required_min for c in checks))
         where = (f"{nxt.table} at {nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min (row "
                  f"{nxt.row}: {nxt.verification}, {nxt.source_status})")
-        kw = dict(measured=have, limit=need, unit="min", dive=d.id)
+        kw = dict(measured=proposed,
+                  limit=f"{need:g} min of stops, next longer schedule "
+                  f"({nxt.depth:g} {nxt.unit}/{nxt.bottom_time:g} min)", dive=d.id)
         tail = ("; later tables may already allow for these conditions: decide per the "
                 "contractor's manual")
         if all(c.ok for c in checks):
@@ -651,7 +766,9 @@ def short_surface_interval(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         si = d.surface_interval_min
         if si is None:
             continue
-        kw = dict(measured=si, limit=SHORT_SI_MIN, unit="min", dive=d.id)
+        after = f" after {d.previous_dive}" if d.previous_dive else ""
+        kw = dict(measured=f"{si:g} min surface interval{after}",
+                  limit=f"{SHORT_SI_MIN:g} min surface interval", dive=d.id)
         if si < SHORT_SI_MIN - _TOL:
             yield r.breach(
                 f"surface interval of {si:g} min is under 10 min: treat the dives as "

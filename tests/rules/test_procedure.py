@@ -18,6 +18,7 @@ from _engine_plans import TABLE, data, trusted_table
 from _engine_plans import run as run_engine
 
 from supervisor.findings import Finding, verdict
+from supervisor.rules import procedure
 from supervisor.rules.procedure import FAMILY, NAVY_COLD
 
 O2 = "oxygen"
@@ -139,8 +140,9 @@ def test_time_to_first_stop_at_the_table_rate_passes(base, run):
     d["dives"][0].update(max_depth=100, bottom_time_min=30, decompression="in-water",
                          stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
     [f] = run(d, FAMILY, "proc-time-to-first-stop")
-    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.verified) == (
-        "proc-time-to-first-stop", "pass", 2.0, 3.0, "min", False)
+    assert (f.rule, f.severity, f.measured, f.limit, f.verified) == (
+        "proc-time-to-first-stop", "pass", "2.00 min to the first stop at 40 fsw (30 fsw/min)",
+        "3.00 min to the first stop at 40 fsw (2.00 min at 30 fsw/min + 1 min)", False)
 
 
 def test_time_to_first_stop_delayed_over_1_min_warns(base, run):
@@ -153,7 +155,8 @@ def test_time_to_first_stop_delayed_over_1_min_warns(base, run):
                          stops=[{"depth": 40, "minutes": 2}, {"depth": 20, "minutes": 5}])
     f = _one_bad(run(d, FAMILY, "proc-time-to-first-stop"))
     assert (f.rule, f.severity, f.measured, f.limit) == (
-        "proc-time-to-first-stop", "warn", 5.5, 4.67)
+        "proc-time-to-first-stop", "warn", "5.50 min to the first stop at 40 fsw (20 fsw/min)",
+        "4.67 min to the first stop at 40 fsw (3.67 min at 30 fsw/min + 1 min)")
     assert f.citation == "U.S. Navy Diving Manual, Rev 7, ch. 9 (delay in reaching the first stop)"
     assert "1.8 min changes the schedule" in f.message
 
@@ -200,21 +203,46 @@ def test_surd_needs_ready_chamber(base, run):
     _all_pass(run(_surd(base), FAMILY, "proc-surd-chamber"))
 
 
-def test_surd_interval_over_5_min_warns(base, run):
-    """U.S. Navy Diving Manual Rev 7 ch. 9 (SECONDARY): leaving the 40 fsw stop to 50 fsw in
-    the chamber within 5 min.  40/30 + 4 + 50/100 = 5.83 min (arithmetic)."""
+_SPAN = "40 fsw water stop to 50 fsw chamber"
+_SI_LIMIT = "5 min (policy.surd_interval_max_min)"
+
+
+def test_surd_interval_over_the_policy_fails(base, run):
+    """Contractor policy, default 5 min (U.S. Navy Diving Manual Rev 7 ch. 9 as quoted,
+    SECONDARY): leaving the 40 fsw stop to 50 fsw in the chamber.  A longer interval guards
+    against immediate harm, so it fails.  40/30 + 4 + 50/100 = 5.83 min (arithmetic)."""
     f = _one_bad(run(_surd(base, transfer=4.0), FAMILY, "proc-surd-interval"))
-    assert (f.rule, f.severity, f.limit, f.source_status) == (
-        "proc-surd-interval", "warn", 5.0, "SECONDARY")
-    assert f.measured == pytest.approx(40 / 30 + 4 + 0.5, abs=0.01)
-    assert "surface decompression" in f.citation
+    assert (f.rule, f.severity, f.limit) == ("proc-surd-interval", "fail", _SI_LIMIT)
+    assert f.measured == f"5.8 min, {_SPAN}"  # never a bare "5.83 min / 5 min"
+    assert "policy.surd_interval_max_min" in f.citation and "Rev 7, ch. 9" in f.citation
+    assert "half-period (15 min oxygen) at 50 fsw" in f.message  # 5-7 min (from memory)
+    assert "over 7 min surface decompression is abandoned" in f.message
+    assert "Treatment Table 5" in f.message and "Table 6" in f.message
+
+
+def test_a_planned_60_min_interval_fails(base, run):
+    """Issue 8: a 60-min surface interval only warned; it fails now (policy limit)."""
+    f = _one_bad(run(_surd(base, transfer=60.0), FAMILY, "proc-surd-interval"))
+    assert f.severity == "fail" and f.measured.startswith("61.8 min, ")
+    assert "treated" in f.message
+
+
+def test_surd_interval_limit_is_the_contractors(base, run):
+    d = _surd(base, transfer=4.0)
+    d["policy"]["surd_interval_max_min"] = 6
+    [f] = run(d, FAMILY, "proc-surd-interval")
+    assert f.severity == "pass" and f.limit == "6 min (policy.surd_interval_max_min)"
+    d["policy"]["surd_interval_max_min"] = 4
+    f = _one_bad(run(_surd(base, transfer=3.0) | {"policy": d["policy"]}, FAMILY,
+                     "proc-surd-interval"))
+    assert f.severity == "fail" and f.measured == f"4.8 min, {_SPAN}"
 
 
 def test_surd_interval_within_5_min_passes(base, run):
     """40/30 + 3 + 50/100 = 4.83 min."""
     [f] = run(_surd(base, transfer=3.0), FAMILY, "proc-surd-interval")
     assert f.severity == "pass"
-    assert f.measured == pytest.approx(4.83, abs=0.01)
+    assert f.measured == f"4.8 min, {_SPAN}" and f.limit == _SI_LIMIT
 
 
 def test_surd_interval_not_stated_needs_review(base, run):
@@ -223,6 +251,37 @@ def test_surd_interval_not_stated_needs_review(base, run):
     del d["dives"][0]["surface_transfer_min"]
     f = _one_bad(run(d, FAMILY, "proc-surd-interval"))
     assert f.severity == "warn" and not f.verified
+    assert f.measured == f"not stated ({_SPAN})"
+
+
+def test_surface_interval_supersaturation_is_judged(base, run):
+    """The peak supersaturation on the surface is judged, not skipped.  Expected figures are
+    this project's own model (ZH-L16C), compared with the policy's limit."""
+    [f] = run(_surd(base), FAMILY, "proc-surd-supersaturation")
+    assert f.severity == "pass" and f.limit == "275 % (default, DERIVED)"
+    peak = int(f.measured.split(" %")[0])
+    assert 100 < peak < 275  # above the M-value on the surface: surface decompression's nature
+    assert f.measured.endswith("% of the M-value gradient, 4.8-min interval")
+    assert "leaving the 40 fsw water stop to arriving at 50 fsw in the chamber" in f.message
+    # the contractor's own limit fails a plan beyond it
+    d = _surd(base)
+    d["policy"]["surface_interval_gf_max"] = peak - 1
+    f = _one_bad(run(d, FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "fail" and f.limit == f"{peak - 1} % (policy.surface_interval_gf_max)"
+    assert f.measured.startswith(f"{peak} % of the M-value gradient")
+
+
+def test_surface_interval_supersaturation_beyond_the_default(base, run, monkeypatch):
+    """Beyond the project's default (DERIVED, no published limit): needs review; a fail only
+    when the interval itself is over the policy's limit too."""
+    from supervisor.rules import procedure
+
+    monkeypatch.setattr(procedure, "SURFACE_INTERVAL_GF_DEFAULT", 100.0)
+    f = _one_bad(run(_surd(base), FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "warn" and not f.verified and f.message.startswith("needs review")
+    assert "policy.surface_interval_gf_max" in f.message
+    f = _one_bad(run(_surd(base, transfer=10.0), FAMILY, "proc-surd-supersaturation"))
+    assert f.severity == "fail" and "the interval is over 5 min" in f.message
 
 
 def test_chamber_periods(base, run):
@@ -232,11 +291,13 @@ def test_chamber_periods(base, run):
     d["dives"][0]["stops"][3]["minutes"] = 2  # air break too short
     f = _one_bad(run(d, FAMILY, "proc-o2-chamber-periods"))
     assert (f.rule, f.severity, f.measured, f.limit) == (
-        "proc-o2-chamber-periods", "warn", 2, 5.0)
+        "proc-o2-chamber-periods", "warn", "2 min air break at 40 fsw in the chamber",
+        "5 min air break")
     d = _surd(base)
     d["dives"][0]["stops"][2]["minutes"] = 25  # 15 + 25 = 40 min without a break
     f = _one_bad(run(d, FAMILY, "proc-o2-chamber-periods"))
-    assert (f.measured, f.limit) == (40, 30.0)
+    assert (f.measured, f.limit) == ("40 min of oxygen at 50-40 fsw in the chamber",
+                                     "30 min of oxygen, then air")
 
 
 def test_in_water_air_breaks(base, run):
@@ -249,7 +310,9 @@ def test_in_water_air_breaks(base, run):
                                 {"depth": 20, "minutes": 5, "gas": "air"},
                                 {"depth": 20, "minutes": 10, "gas": O2}])
     f = _one_bad(run(d, FAMILY, "proc-o2-air-breaks"))
-    assert (f.rule, f.severity, f.measured, f.limit) == ("proc-o2-air-breaks", "warn", 40, 30.0)
+    assert (f.rule, f.severity, f.measured, f.limit) == (
+        "proc-o2-air-breaks", "warn", "40 min of oxygen at 30-20 fsw in the water",
+        "30 min of oxygen, then air")
     d["dives"][0]["stops"] = [{"depth": 30, "minutes": 10, "gas": O2},
                               {"depth": 20, "minutes": 24, "gas": O2}]
     _all_pass(run(d, FAMILY, "proc-o2-air-breaks"))
@@ -259,8 +322,8 @@ def test_in_water_air_breaks(base, run):
     ("change", "measured", "limit", "unit"),
     [
         ({"max_depth": 200, "bottom_time_min": 10}, 200, 190.0, "fsw"),
-        ({"decompression": "in-water", "stops": [{"depth": 20, "minutes": 95}]}, 95.0, 90.0,
-         "min"),
+        ({"decompression": "in-water", "stops": [{"depth": 20, "minutes": 95}]},
+         "95 min of in-water stops", "90 min of in-water stops", None),
     ],
 )
 def test_exceptional_exposure(base, run, change, measured, limit, unit):
@@ -285,7 +348,7 @@ def test_exceptional_exposure_surd_periods(base, run):
     d["dives"][0]["stops"] += [brk, per, brk, per, brk, per]
     f = _one_bad(run(d, FAMILY, "proc-exceptional-exposure"))
     assert (f.rule, f.measured, f.limit, f.unit) == (
-        "proc-exceptional-exposure", 5.0, 4.0, "periods")
+        "proc-exceptional-exposure", 5.0, 4.0, "30-min chamber oxygen periods")
     [f] = run(_surd(base), FAMILY, "proc-exceptional-exposure")
     assert f.severity == "pass" and "2 chamber oxygen periods within 4" in f.message
 
@@ -296,7 +359,8 @@ def test_short_surface_interval(base, run):
     d["dives"].append(dict(d["dives"][0], id="D2", previous_dive="D1", surface_interval_min=8))
     f = _one_bad(run(d, FAMILY, "proc-short-surface-interval"))
     assert (f.rule, f.severity, f.measured, f.limit, f.dive) == (
-        "proc-short-surface-interval", "warn", 8, 10.0, "D2")
+        "proc-short-surface-interval", "warn", "8 min surface interval after D1",
+        "10 min surface interval", "D2")
     d["dives"][1]["surface_interval_min"] = 90
     _all_pass(run(d, FAMILY, "proc-short-surface-interval"))
 
@@ -309,6 +373,7 @@ def test_short_surface_interval(base, run):
 # 8 min O2); 70 fsw / 40 min.
 
 NEXT_60 = [{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 12}]
+_NEXT = "60 fsw/60 min"
 
 
 def _cold(table=TABLE, **dive):
@@ -327,8 +392,9 @@ def _cold_one(d):
 def test_cold_dive_short_of_the_next_longer_schedule_warns():
     """60 fsw / 40 min enters the 60/50 row; cold work takes the 60/60 schedule: 14 min."""
     f = _cold_one(_cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]))
-    assert (f.rule, f.severity, f.measured, f.limit, f.unit, f.source_status) == (
-        "proc-cold-strenuous", "warn", 5.0, 14.0, "min", "OLDER-EDITION")
+    assert (f.rule, f.severity, f.measured, f.limit, f.source_status) == (
+        "proc-cold-strenuous", "warn", "5 min of proposed stops (1 stop(s))",
+        f"14 min of stops, next longer schedule ({_NEXT})", "OLDER-EDITION")
     assert f.citation == NAVY_COLD
     assert "60 fsw/60 min" in f.message and "stop 20 fsw on air: missing" in f.message
     assert "stop 10 fsw on air: 5 of 12 min" in f.message
@@ -337,13 +403,17 @@ def test_cold_dive_short_of_the_next_longer_schedule_warns():
 def test_cold_no_stop_dive_without_the_next_longer_stops_warns():
     """A dive planned without stops is short of every stop of the next longer schedule."""
     f = _cold_one(_cold())
-    assert (f.severity, f.measured, f.limit) == ("warn", 0.0, 14.0)
+    # never "0 min / 14 min": the figures say what they are
+    assert (f.severity, f.measured, f.limit) == (
+        "warn", "no proposed stops", f"14 min of stops, next longer schedule ({_NEXT})")
 
 
 def test_cold_dive_covering_the_next_longer_schedule_passes_for_review():
     """Every stop present and at least as long: a pass, unverified (OLDER-EDITION rule)."""
     f = _cold_one(_cold(decompression="in-water", stops=NEXT_60))
-    assert (f.severity, f.measured, f.limit, f.verified) == ("pass", 14.0, 14.0, False)
+    assert (f.severity, f.measured, f.limit, f.verified) == (
+        "pass", "14 min of proposed stops (2 stop(s))",
+        f"14 min of stops, next longer schedule ({_NEXT})", False)
     assert verdict([f]) == "needs-review"
 
 
@@ -361,7 +431,9 @@ def test_strenuous_in_water_oxygen_takes_the_air_o2_schedule():
               stops=[{"depth": 20, "minutes": 2}, {"depth": 10, "minutes": 8, "gas": "oxygen"}])
     d["dives"][0].update(cold=False, strenuous=True)
     f = _cold_one(d)
-    assert (f.severity, f.measured, f.limit) == ("pass", 10.0, 10.0)
+    assert (f.severity, f.measured, f.limit) == (
+        "pass", "10 min of proposed stops (2 stop(s))",
+        f"10 min of stops, next longer schedule ({_NEXT})")
     assert f.message.startswith("strenuous work:")
 
 
@@ -390,7 +462,9 @@ def test_cold_without_a_next_longer_row_needs_review(table, dive, reason):
     assert (f.rule, f.severity, f.verified, f.limit) == ("proc-cold-strenuous", "warn", False,
                                                          None)
     assert f.message.startswith("needs review: cold:") and reason in f.message
-    assert f.measured == sum(s["minutes"] for s in dive.get("stops", []))
+    stops = dive.get("stops", [])
+    assert f.measured == (f"{sum(s['minutes'] for s in stops):g} min of proposed stops "
+                          f"({len(stops)} stop(s))" if stops else "no proposed stops")
     _c.reported(f)
 
 
@@ -413,6 +487,14 @@ def _policy(d, **kw):
 
 def _surd_c(**kw):
     return _surd(_c.base, **kw)
+
+
+def _peak(ctx):
+    """The failing finding's measured figure from the model (this project's own output)."""
+    from supervisor import analysis as an
+
+    peak = 100 * an.for_context(ctx).dives["D1"].evaluation.surface_interval_max_gf
+    return f"{peak:.0f} % of the M-value gradient, 4.8-min interval"
 
 
 def _chamber(d, **kw):
@@ -452,8 +534,9 @@ CASES: dict[str, Case] = {
                              stops=[{"depth": 40, "minutes": 2}]),
         failing=lambda _: _p(max_depth=150, bottom_time_min=20, ascent_rate=20,
                              decompression="in-water", stops=[{"depth": 40, "minutes": 2}]),
-        measured=5.5, limit=4.67, severity="warn",
-        citation=f"{_NAVY7} (delay in reaching the first stop)"),
+        measured="5.50 min to the first stop at 40 fsw (20 fsw/min)",
+        limit="4.67 min to the first stop at 40 fsw (3.67 min at 30 fsw/min + 1 min)",
+        severity="warn", citation=f"{_NAVY7} (delay in reaching the first stop)"),
     "proc-decompression-declared": Case(
         passing=lambda _: _surd_c(), failing=lambda _: _p(decompression="in-water"),
         measured="in-water", limit="water stops",
@@ -464,8 +547,16 @@ CASES: dict[str, Case] = {
         citation="plan consistency (surface decompression is completed in a chamber)"),
     "proc-surd-interval": Case(
         passing=lambda _: _surd_c(), failing=lambda _: _surd_c(transfer=4.0),
-        measured=5.83, limit=5.0, severity="warn",  # 40/30 + 4 + 50/100 min, to 0.01
-        citation=f"{_NAVY7} (surface decompression on oxygen, surface interval)"),
+        measured=f"5.8 min, {_SPAN}", limit=_SI_LIMIT,  # 40/30 + 4 + 50/100 min
+        citation="contractor policy (policy.surd_interval_max_min); default 5 min: U.S. Navy "
+        "Diving Manual, Rev 7, ch. 9, surface decompression on oxygen (SECONDARY); Rev 4 "
+        "Change A, ch. 14 (OLDER-EDITION)"),
+    "proc-surd-supersaturation": Case(
+        passing=lambda _: _surd_c(),
+        failing=lambda _: _policy(_surd_c(), surface_interval_gf_max=100),
+        measured=_peak, limit="100 % (policy.surface_interval_gf_max)",
+        citation="contractor policy (policy.surface_interval_gf_max); "
+        + procedure.SURFACE_INTERVAL_GF_SOURCE),
     "proc-o2-air-breaks": Case(
         passing=lambda _: _p(**_W, stops=[{"depth": 30, "minutes": 10, "gas": O2},
                                           {"depth": 20, "minutes": 24, "gas": O2}]),
@@ -473,7 +564,8 @@ CASES: dict[str, Case] = {
                                           {"depth": 20, "minutes": 20, "gas": O2},
                                           {"depth": 20, "minutes": 5, "gas": "air"},
                                           {"depth": 20, "minutes": 10, "gas": O2}]),
-        measured=40, limit=30.0, severity="warn",
+        measured="40 min of oxygen at 30-20 fsw in the water",
+        limit="30 min of oxygen, then air", severity="warn",
         citation=f"{_NAVY7} (in-water air/oxygen decompression, air breaks)"),
     "proc-o2-chamber-periods": Case(
         passing=lambda _: _surd_c(),
@@ -483,7 +575,8 @@ CASES: dict[str, Case] = {
             {"depth": 40, "minutes": 25, "gas": O2, "place": "chamber"},
             {"depth": 40, "minutes": 5, "gas": "air", "place": "chamber"},
             {"depth": 40, "minutes": 30, "gas": O2, "place": "chamber"}]),
-        measured=40, limit=30.0, severity="warn",
+        measured="40 min of oxygen at 50-40 fsw in the chamber",
+        limit="30 min of oxygen, then air", severity="warn",
         citation=f"{_NAVY7} (surface decompression on oxygen, chamber periods)"),
     "proc-exceptional-exposure": Case(
         passing=lambda _: _c.base(), failing=lambda _: _p(max_depth=200, bottom_time_min=10),
@@ -491,10 +584,13 @@ CASES: dict[str, Case] = {
     "proc-cold-strenuous": Case(
         passing=lambda _: _cold(decompression="in-water", stops=NEXT_60),
         failing=lambda _: _cold(decompression="in-water", stops=[{"depth": 10, "minutes": 5}]),
-        measured=5.0, limit=14.0, severity="warn", citation=NAVY_COLD),
+        measured="5 min of proposed stops (1 stop(s))",
+        limit="14 min of stops, next longer schedule (60 fsw/60 min)", severity="warn",
+        citation=NAVY_COLD),
     "proc-short-surface-interval": Case(
         passing=lambda _: _second(90), failing=lambda _: _second(8),
-        measured=8, limit=10.0, severity="warn",
+        measured="8 min surface interval after D1", limit="10 min surface interval",
+        severity="warn",
         citation="U.S. Navy Diving Manual, pre-2008 air tables (surface interval under 10 min)"),
 }
 
@@ -526,3 +622,18 @@ def test_contract_other_ids(key, plan, rule, severity, measured, limit, citation
 
 def test_contract_covers_every_rule():
     _c.check_covers(FAMILY, CASES)
+
+
+def test_the_supersaturation_default_is_the_models_ordinary_range():
+    """SURFACE_INTERVAL_GF_DEFAULT is DERIVED (this project's model, not an outside value):
+    the highest surface-interval peak of air surface decompression to 190 fsw within 4
+    chamber periods (the Navy exceptional-exposure line, SECONDARY) at 5 min, rounded up."""
+    from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedules
+
+    sd = SurfaceDecompression(40, 5, 50, second_depth=40)
+    reqs = [ScheduleRequest(depth=d, bottom_time_min=t, surface_decompression=sd,
+                            max_total_stop_min=100_000)
+            for d in range(50, 200, 10) for t in range(10, 400, 5)]
+    peaks = [100 * r.surface_interval_max_gf for r in plan_schedules(reqs, details=False)
+             if r.chamber_o2_periods is not None and r.chamber_o2_periods <= 4]
+    assert max(peaks) <= procedure.SURFACE_INTERVAL_GF_DEFAULT < max(peaks) + 5
