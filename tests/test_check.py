@@ -264,3 +264,19 @@ def test_every_stop_of_the_check_carries_its_periods():
     # a chamber stop of more than one period never reads as one continuous oxygen line
     text = [f["message"] for f in r["findings"] if f["rule"] == "contingency-schedules"]
     assert any("O2 15, air 5" in t for t in text), text
+
+
+def test_no_chamber_is_one_finding_for_the_dive() -> None:
+    """Issue 8 §3: "no chamber" is one fact: one finding, the worst (fail), not a fail and a
+    warning; the other rules' citations are listed in it."""
+    import tomllib
+
+    from supervisor.plan import plan_from_dict
+
+    root = Path(__file__).resolve().parents[1]
+    d = tomllib.loads((root / "examples" / "demo-job.toml").read_text(encoding="utf-8"))
+    d["chamber"] = {"on_site": False, "ready": False}
+    out = run_check(plan_from_dict(d), now=NOW)
+    facts = [f for f in out["findings"] if f.get("fact") == "no-chamber" and f["dive"] == "D2"]
+    assert len(facts) == 1 and facts[0]["severity"] == "fail"
+    assert {x["rule"] for x in facts[0]["also_cited"]} >= {"osha-425-b2", "proc-surd-chamber"}

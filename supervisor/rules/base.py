@@ -52,6 +52,10 @@ _UNSET: Any = object()
 #: person or item (``measured=NONE`` against the item required).
 YES, NO, NOT_STATED, NONE = "yes", "no", "not stated", "none"
 
+#: Facts several rules report (``fact=`` of :meth:`Rule.finding`): the check keeps one finding
+#: per dive and fact (:func:`supervisor.findings.one_per_fact`).
+NO_CHAMBER = "no-chamber"
+
 
 @dataclass
 class CheckContext:

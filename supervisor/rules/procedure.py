@@ -28,7 +28,7 @@ from supervisor.findings import Finding
 from supervisor.gas import parse_gas
 from supervisor.plan import Dive, Stop
 from supervisor.references import LookupResult, lookup_schedule
-from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.base import NO_CHAMBER, CheckContext, Family, Rule
 from supervisor.rules.regulatory import READY, chamber_state
 from supervisor.rules.tables import shortfall, stop_checks
 
@@ -317,6 +317,7 @@ def surd_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             yield r.breach(
                 "surface decompression planned without a ready chamber at the site",
+                fact=NO_CHAMBER,
                 measured=chamber_state(ctx),
                 limit=READY,
                 dive=d.id,

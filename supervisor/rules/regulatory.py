@@ -28,7 +28,7 @@ from typing import Any
 
 from supervisor.findings import Finding
 from supervisor.plan import Dive
-from supervisor.rules.base import NONE, NOT_STATED, CheckContext, Family, Rule
+from supervisor.rules.base import NO_CHAMBER, NONE, NOT_STATED, CheckContext, Family, Rule
 
 FAMILY = Family("regulatory", "Federal commercial-diving rules")
 
@@ -161,7 +161,7 @@ def osha_scuba_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         why = f"SCUBA to {ctx.show(d.max_depth)}" + (f", {deco}" if deco else "")
         kw = dict(measured=d.max_depth, limit=ctx.limit(100), unit=ctx.unit, dive=d.id)
         if not ch.ready:
-            yield r.breach(f"no chamber ready for use: {why}", **kw)
+            yield r.breach(f"no chamber ready for use: {why}", fact=NO_CHAMBER, **kw)
         elif not ch.on_site:
             yield r.review(
                 f"needs review: chamber ready but not at the site ({why}); the rule does not say "
@@ -316,7 +316,7 @@ def osha_ssa_chamber(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield r.breach(
                 "no chamber ready at the site for a dive deeper than 100 fsw or "
                 "outside the no-decompression limits",
-                **kw,
+                fact=NO_CHAMBER, **kw,
             )
 
 
@@ -505,6 +505,7 @@ def osha_mixed_chamber_bell(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         else:
             yield r.breach(
                 "mixed-gas dive without a chamber ready at the site",
+                fact=NO_CHAMBER,
                 dive=d.id,
                 status=st,
                 measured=chamber_state(ctx),
@@ -669,7 +670,8 @@ def osha_chamber_165(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         reason = "; ".join(why)
         kw = dict(limit=ctx.limit(165), unit=ctx.unit, dive=d.id)
         if not ch.on_site:
-            yield r.breach(f"no chamber at the site ({reason})", measured=NONE, **kw)
+            yield r.breach(f"no chamber at the site ({reason})", measured=NONE, fact=NO_CHAMBER,
+                           **kw)
             continue
         yield from chamber_reaches(ctx, r, 165.0, f" ({reason})", "chamber at the site", kw)
 

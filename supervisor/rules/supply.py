@@ -32,7 +32,7 @@ from typing import Any
 from supervisor import analysis as an
 from supervisor import constants as C
 from supervisor.findings import Finding
-from supervisor.rules.base import CheckContext, Family, Rule
+from supervisor.rules.base import NO_CHAMBER, CheckContext, Family, Rule
 from supervisor.rules.citations import OSHA_ID, USCG_ID, cross_reference, own_or_cross
 
 FAMILY = Family("gas-supply", "Gas supply")
@@ -45,8 +45,7 @@ def _cross(citation: str) -> dict[str, str]:
     return {j: cross_reference(citation) for j in (OSHA_ID, "none")}
 NAVY_CH8 = "U.S. Navy Diving Manual, Rev 4 Change A, ch. 8"
 
-#: The fact "no chamber at the site", which several rules report (one finding per dive).
-NO_CHAMBER = "no-chamber"
+
 
 
 def _figures(ctx: CheckContext, r: Rule) -> Iterator[tuple[Any, an.Supply | None, Finding | None]]:
