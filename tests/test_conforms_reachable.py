@@ -73,8 +73,6 @@ def verified(tmp_path_factory: pytest.TempPathFactory) -> tuple[Path, Path]:
     return _verified_copy(tmp / "tables"), _one_dive_plan(tmp)
 
 
-@pytest.mark.xfail(strict=True, reason="the flying, hypoxia, END and density rules still mark "
-                   "their passes unverified whatever the references say (issue 8, in progress)")
 def test_plain_dive_conforms_with_verified_references(verified: tuple[Path, Path]) -> None:
     tables, plan = verified
     out = _check(plan, tables)

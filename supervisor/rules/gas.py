@@ -198,6 +198,9 @@ def end(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         if e <= limit + 1e-6:
             if own:
                 yield r.ok(text, **kw)
+            elif _default_confirmed("gas-end"):
+                yield r.ok(text + f" within the default ceiling ({END_DEFAULT}, confirmed)",
+                           citation=END_DEFAULT, status="VERIFIED", **kw)
             else:
                 yield r.ok(text + f" within the default ceiling ({END_DEFAULT})",
                            citation=END_DEFAULT, status="SECONDARY", verified=False, **kw)
@@ -209,6 +212,14 @@ def end(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
                 "policy.end_max to the contractor's own limit",
                 citation=END_DEFAULT, status="SECONDARY", verified=False, **kw,
             )
+
+
+def _default_confirmed(rule_id: str) -> bool:
+    """Whether a second person confirmed the source of the rule's default (``rule-sources``)."""
+    from supervisor.references.rule_sources import rule_sources
+
+    src = rule_sources().get(rule_id)
+    return src is not None and src.confirms
 
 
 def _threshold(own: bool, field: str, value: float, what: str) -> str:
@@ -257,12 +268,14 @@ def density(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             own, limit = own_warn, lo
             msg = text + " is within the " + _threshold(own, "density_warn_g_per_l", lo,
                                                         "warning threshold")
-            todo = ([] if own else ["set the contractor's own density limits in the policy"])
+            confirmed = own or _default_confirmed("gas-density")
+            todo = ([] if confirmed else ["set the contractor's own density limits in the policy"])
             todo += [] if temp is not None else ["state the water temperature (site)"]
             sev, verified = "pass", not todo
             if todo:
                 msg += "; needs review: " + " and ".join(todo)
-        status = None if own else DENSITY_DEFAULT_STATUS
+        status = (None if own else "VERIFIED" if _default_confirmed("gas-density")
+                  else DENSITY_DEFAULT_STATUS)
         citation = DENSITY_POLICY if own else f"{DENSITY_POLICY}; {DENSITY_DEFAULT_SOURCE}"
         yield r.finding(sev, msg, measured=round(rho, 2), limit=limit, unit="g/L", dive=d.id,
                         citation=citation, status=status, verified=verified)

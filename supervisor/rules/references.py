@@ -166,8 +166,9 @@ def unverified(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
         "rule_sources_file": RULE_SOURCES_FILE,
     }
     if not refs and not n_rules:
-        yield r.ok("every reference and rule source the check relied on is confirmed",
-                   status="VERIFIED", measured=0, limit=0, unit="references")
+        yield replace(r.ok("every reference and rule source the check relied on is confirmed",
+                           status="VERIFIED", measured=0, limit=0, unit="references"),
+                      extra=extra)
         return
     parts = []
     if refs:
