@@ -34,6 +34,7 @@ from typing import Any
 from supervisor import analysis as an
 from supervisor.findings import CONFIRMED_STATUSES, Finding
 from supervisor.gas import parse_gas
+from supervisor.periods import pattern_difference
 from supervisor.plan import Dive
 from supervisor.rules.base import CheckContext, Family, Rule
 
@@ -153,6 +154,15 @@ def shortfall(ctx: CheckContext, checks: list[StopCheck]) -> str:
            else f"missing ({c.required_min:g} min required)")
         for c in checks if not c.ok
     )
+
+
+def _pattern(ctx: CheckContext, dive: Dive, look: Any, table: Any) -> str | None:
+    """The sentence saying the plan's oxygen pattern differs from the row's, or ``None``."""
+    t_unit = table.model.conventions.depth_unit
+    mine = [(round(float(s.depth), 1), dive.stop_gas(s).name, s.place) for s in dive.stops]
+    theirs = [(round(an.from_table_depth(ctx.plan, float(s.depth), t_unit), 1),
+               parse_gas(s.gas).name, s.place) for s in look.schedule.stops]
+    return pattern_difference(mine, theirs, ctx.unit)
 
 
 def _stop_figures(ctx: CheckContext, c: StopCheck) -> tuple[str, str]:
@@ -289,6 +299,14 @@ def conformance(ctx: CheckContext, r: Rule) -> Iterator[Finding]:
             yield _breach(
                 r, look, f"the source marks the {look.mode} schedule of {where} as not to be used",
                 dive=d.id, measured=look.mode, limit="a schedule the source permits",
+            )
+        elif tc.state == "short" and (pattern := _pattern(ctx, d, look, a.table)):
+            # another oxygen pattern (e.g. chamber oxygen at 50/40 against stops at 20/10):
+            # said once, and cover is left to the model (model-margin, model-ceiling)
+            yield r.review(
+                f"needs review: {pattern} ({where}; {_row_state(look)})",
+                dive=d.id, status=status, measured="the plan's oxygen pattern",
+                limit="the table's oxygen pattern",
             )
         elif tc.state == "short":
             worst = next(c for c in tc.stops if not c.ok)

@@ -190,3 +190,26 @@ def test_every_review_reports_measured_and_reason(plan):
     assert got
     for f in got:
         _c.reported(f)
+
+
+def test_another_oxygen_pattern_is_said_once_and_left_to_the_model() -> None:
+    """Issue 8 §2: chamber oxygen at 30 fsw against the table's 50 fsw half-period is one plain
+    sentence, not a list of missing stops (cover is judged by the model)."""
+    import tomllib
+    from pathlib import Path
+
+    from supervisor.check import check_plan
+    from supervisor.plan import plan_from_dict
+
+    root = Path(__file__).resolve().parents[2]
+    d = tomllib.loads((root / "examples" / "demo-job.toml").read_text(encoding="utf-8"))
+    d2 = next(x for x in d["dives"] if x["id"] == "D2")
+    d2["stops"] = [s for s in d2["stops"] if s["place"] == "water"] + [
+        {"depth": 30, "minutes": 30, "gas": "oxygen", "place": "chamber"}]
+    out = check_plan(plan_from_dict(d))
+    got = [f for f in out["findings"] if f["rule"] == "table-conformance" and f["dive"] == "D2"
+           and f["severity"] in ("warn", "fail")]
+    pattern = [f for f in got if "oxygen pattern differs" in f["message"]]
+    assert len(pattern) == 1 and pattern[0]["severity"] == "warn"
+    assert "chamber oxygen at 30 fsw in the plan, 50 fsw in the table" in pattern[0]["message"]
+    assert not any("missing" in f["message"] for f in got)
