@@ -34,7 +34,7 @@ from typing import Any
 from supervisor import analysis as an
 from supervisor.findings import CONFIRMED_STATUSES, Finding
 from supervisor.gas import parse_gas
-from supervisor.periods import pattern_difference
+from supervisor.periods import is_oxygen_rich, pattern_difference
 from supervisor.plan import Dive
 from supervisor.rules.base import CheckContext, Family, Rule
 
@@ -162,6 +162,10 @@ def _pattern(ctx: CheckContext, dive: Dive, look: Any, table: Any) -> str | None
     mine = [(round(float(s.depth), 1), dive.stop_gas(s).name, s.place) for s in dive.stops]
     theirs = [(round(an.from_table_depth(ctx.plan, float(s.depth), t_unit), 1),
                parse_gas(s.gas).name, s.place) for s in look.schedule.stops]
+    # a plan breathing no oxygen where the table does has the wrong gas, not another pattern
+    o2 = {place for _, gas, place in theirs if is_oxygen_rich(gas)}
+    if not o2 or not o2 <= {place for _, gas, place in mine if is_oxygen_rich(gas)}:
+        return None
     return pattern_difference(mine, theirs, ctx.unit)
 
 
