@@ -58,7 +58,7 @@ def test_dive_record_keeps_the_profile_exactly() -> None:
     back = profile_from_json(rec.body["profile"])
     assert back.segments == log.profile.segments
     assert profile_to_json(back) == rec.body["profile"]
-    assert rec.occurred_at == "2026-06-03T10:15:00" and rec.diver == "Priya Raman"
+    assert rec.occurred_at == "2026-06-03T09:30:00" and rec.diver == "Priya Raman"
 
 
 def test_dive_record_needs_the_repetitive_status() -> None:
