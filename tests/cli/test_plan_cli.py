@@ -108,7 +108,7 @@ def test_validate_bottom_time_shorter_than_descent_and_unknown_table(capsys, tmp
     lines = err.splitlines()
     assert len(lines) == 2
     assert lines[0].startswith("error: policy.reference_table: got 'navy-air': no bundled table")
-    # D2: 110 fsw at 60 fsw/min = 1.83 min of descent
+    # D2: 110 fsw at 75 fsw/min = 1.467 min of descent (shown rounded up)
     assert lines[1] == ("error: dives[1].bottom_time_min: got 0.5 min; expected at least the "
-                        "descent time 1.84 min (110 fsw at 60 fsw/min): the bottom time counts "
+                        "descent time 1.47 min (110 fsw at 75 fsw/min): the bottom time counts "
                         "from leaving the surface")
