@@ -375,7 +375,7 @@ def compartment_chart(
     words = (f"surfacing gradient factor, percent of the M-value gradient (dashed line: GF high "
              f"{fmt_number(limit, 0)} %; black bars exceed it)")
     if any(v < 0 for v in loads):
-        words += f"; <0: {NEGATIVE_GF_NOTE}"
+        words += f"; <0: {NEGATIVE_GF_NOTE.removeprefix('below 0 %: ')}"
     caption = _wrap(words, width - x0 - 4)
     y0, y1 = _BOTTOM, height - _TOP - _LEGEND_LINE * (len(caption) - 1)
 

@@ -188,15 +188,16 @@ def _pass_values(items: Sequence[Mapping[str, Any]], units: UnitSystem | None = 
 #: the contingency table (family ``contingency``) and the ceiling-check paragraph with
 #: its margin (rule ``model-margin``).  They are not printed twice; the JSON keeps them.
 SHOWN_IN_DIVE_SECTION = {"contingency": "contingency schedules",
-                         "model-margin": "the ceiling check's margin"}
+                         "model-margin": "the ceiling check's margin",
+                         "table-conformance": "the reference table row (Schedules; its "
+                                              "status is in references-unverified)",
+                         "exposure-flying": "the wait before travel to altitude (page 1)"}
 
 
 def _shown_elsewhere(f: Mapping[str, Any]) -> str | None:
     if f.get("family") == "contingency":
         return SHOWN_IN_DIVE_SECTION["contingency"]
-    if f.get("rule") == "model-margin":
-        return SHOWN_IN_DIVE_SECTION["model-margin"]
-    return None
+    return SHOWN_IN_DIVE_SECTION.get(str(f.get("rule")))
 
 
 def information_lines(record: Mapping[str, Any], dive_id: object,

@@ -251,6 +251,13 @@ def required(item: Mapping[str, Any], record: Mapping[str, Any], dives: Sequence
     return any(d is None or any(_condition(c, d, unit) for c in conds) for d in chosen)
 
 
+def _short(item: Mapping[str, Any], jurisdiction: object) -> str:
+    """An item in a few words with its first citation (for the "not required" line)."""
+    words = text(item.get("text")).split(":")[0].split(";")[0].split(",")[0].rstrip(".")
+    cites = cited_for(item.get("citations") or [], jurisdiction).split("; ")
+    return f"{words} ({cites[0]})" if cites and cites[0] else words
+
+
 def _item_cells(item: Mapping[str, Any], record: Mapping[str, Any]) -> list[object]:
     body = [para(text(item.get("text")), ITEM)]
     if item.get("applies_when"):
@@ -313,12 +320,8 @@ def predive_checklist(record: Mapping[str, Any], width: float) -> list[Flowable]
             out.append(Spacer(1, 3))
             out.append(rich([("Not required for these dives", True),
                              (" (by the check: within 100 fsw, no decompression, no mixed gas, "
-                              "no chamber required); confirm on site: ", False)]
-                            + [(f"{text(i.get('text')).split(':')[0].split(';')[0].rstrip('.')}"
-                                f" ({cited_for(i.get('citations') or [], where_)}; applies "
-                                f"when {text(i.get('applies_when'))}){'; ' if n else '.'}",
-                                False)
-                               for n, i in reversed(list(enumerate(reversed(skipped))))],
+                              "no chamber required; confirm on site): ", False),
+                             ("; ".join(_short(i, where_) for i in skipped) + ".", False)],
                             SMALL))
     return out
 

@@ -460,13 +460,12 @@ def test_harbour_job_page_1_is_a_one_page_summary(
 
 
 def test_harbour_job_checklist_is_short(harbour_pages: tuple[list[str], dict[str, Any]]) -> None:
-    """Issue 8 target: at most 8 pages (it was 19: every passed check a table row)."""
+    """Issue 8 target: at most 8 pages (it was 19: every passed check a table row) and at most
+    5 warnings, the unverified references reported once for the job."""
     pages, check = harbour_pages
-    assert len(pages) <= 9
-    if not any(f["rule"] == "references-unverified" for f in check["findings"]):
-        pytest.skip("at most 8 pages once the check reports unverified references once per job "
-                    "(CONTRACT-8 'references-unverified'); today it repeats them per dive")
     assert len(pages) <= 8
+    assert check["counts"]["warn"] <= 5
+    assert sum(f["rule"] == "references-unverified" for f in check["findings"]) == 1
 
 
 def test_longest_accepted_text_and_many_stops_never_crash(runner: CliRunner,
