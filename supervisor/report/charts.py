@@ -21,7 +21,7 @@ from reportlab.graphics.shapes import Drawing, Group, Line, PolyLine, Rect, Stri
 from reportlab.lib import colors
 from reportlab.pdfbase.pdfmetrics import stringWidth
 
-from supervisor.quantities import NEGATIVE_GF_NOTE, gf_percent_text
+from supervisor.quantities import gf_percent_text
 from supervisor.report.fonts import BOLD, REGULAR, register_fonts
 from supervisor.report.formatting import fmt_number, is_number
 
@@ -338,7 +338,8 @@ def compartment_chart(
     definition: :func:`supervisor.quantities.gf_percent_text`), so the tallest bar is
     the figure printed in the text and the JSON.  The dashed line is the policy's GF
     high; a negative value (an undersaturated compartment) is drawn at zero and
-    labelled "<0", and the caption says what it means.
+    labelled "<0", and the caption says what it means (undersaturated:
+    :data:`supervisor.quantities.NEGATIVE_GF_NOTE`).
 
     Parameters
     ----------
@@ -372,10 +373,10 @@ def compartment_chart(
     loads = [float(v) for v in values if v is not None]
     top = nice_ticks(0.0, max(110.0, limit * 1.1, max(loads) * 1.08), 5)
     x0, x1 = _LEFT, width - _RIGHT
-    words = (f"surfacing gradient factor, percent of the M-value gradient (dashed line: GF high "
-             f"{fmt_number(limit, 0)} %; black bars exceed it)")
+    words = (f"% of the M-value gradient; dashed: GF high {fmt_number(limit, 0)} %; black: "
+             "above it")
     if any(v < 0 for v in loads):
-        words += f"; <0: {NEGATIVE_GF_NOTE.removeprefix('below 0 %: ')}"
+        words += "; <0: undersaturated"
     caption = _wrap(words, width - x0 - 4)
     y0, y1 = _BOTTOM, height - _TOP - _LEGEND_LINE * (len(caption) - 1)
 

@@ -283,8 +283,8 @@ def surface_interval_note(dive: Mapping[str, Any]) -> str:
     if peak is None:
         return head + "surface interval: not assessed by the ceiling check — needs review."
     return head + (f"surface interval: peak supersaturation {fmt_number(peak, 0)} % of the "
-                   "M-value gradient, reported by the model and not judged against a limit "
-                   "— needs review.")
+                   "M-value gradient, judged apart against the policy's surface-interval limit "
+                   "(finding proc-surd-supersaturation).")
 
 
 def model_margin(dive: Mapping[str, Any], record: Mapping[str, Any]) -> list[Flowable]:
