@@ -112,7 +112,8 @@ def cns(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
                        "single-exposure limits", measured=round(e.cns_percent, 1),
                        limit=CNS_LIMIT_PERCENT, unit="%", dive=ctx.dive.id)
     if e.out_of_range and f.severity == "pass":
-        f = r.review(f.message + "; needs review", measured=f.measured, limit=f.limit,
+        text = f.message if "needs review" in f.message else f.message + "; needs review"
+        f = r.review(text, measured=f.measured, limit=f.limit,
                      unit="%", dive=ctx.dive.id, status=e.cns_limits.source_status)
     yield f
 
