@@ -255,7 +255,11 @@ def table(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
         text = (f"omitted decompression against the table schedule the actual exposure "
                 f"requires ({look.depth:g} {look.unit} / {look.bottom_time:g} min, {row}): "
                 f"{_short(times, u)}")
-        f = r.breach(text, measured=_short(times, u), limit=limit, status=status, **kw)
+        if trusted:
+            f = r.breach(text, measured=_short(times, u), limit=limit, status=status, **kw)
+        else:  # a row not verified, or not from a VERIFIED source, can only warn
+            f = r.finding("warn", text, measured=_short(times, u), limit=limit, status=status,
+                          verified=False, **kw)
         yield with_action(f, OMITTED_DECOMPRESSION)
     else:
         yield r.ok(f"every stop of the table schedule for the actual exposure was taken "

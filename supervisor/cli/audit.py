@@ -162,8 +162,9 @@ def _run(log: Path, plan: Path, dive: str | None, as_json: bool, record: bool, d
         if folder and one.meta.get("dive") is None:
             want = _dive_from_name(f, ids) or dive
             if want is None:
-                raise InputError("LOG", f"{excerpt(str(f))}: cannot tell the dive; name the "
-                                        "file <dive-id>...csv or give --dive")
+                raise InputError("LOG", f"{excerpt(f.name)} in {excerpt(str(f.parent), 60)}: "
+                                        "cannot tell the dive; name the file "
+                                        "<dive-id>...csv or give --dive")
         elif folder:
             want = None  # a timed log names its dive
         imported.append(one)
