@@ -106,6 +106,8 @@ class AuditContext:
         The oxygen exposure of the executed profile as breathed.
     errors : dict
         Section name to the reason it could not be computed.
+    figures : dict
+        Figures a rule computed, kept for the result (the approved stops' times).
     """
 
     pa: PlanAudit
@@ -116,6 +118,7 @@ class AuditContext:
     evaluation: Any = None
     exposure: Any = None
     errors: dict[str, str] = field(default_factory=dict)
+    figures: dict[str, Any] = field(default_factory=dict)
 
     @property
     def unit(self) -> str:

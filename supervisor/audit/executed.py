@@ -81,6 +81,9 @@ class Executed:
         True when the chamber part was inferred from a recorder log.
     notes : list of str
         What was assumed in building the profile.
+    cache : dict
+        Figures computed once per profile (the rate windows); cleared by nothing, so
+        change no array after auditing.
     """
 
     t: NDArray[np.float64]
@@ -99,6 +102,9 @@ class Executed:
     source: str = "samples"
     chamber_inferred: bool = False
     notes: list[str] = field(default_factory=list)
+    cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
+
+
 
     @property
     def minutes(self) -> NDArray[np.float64]:

@@ -46,6 +46,12 @@ def exposure(ex: Executed) -> ox.OxygenExposure:
 
 def po2_by_phase(ex: Executed) -> dict[str, float | None]:
     """Highest inspired PO2 [bar] per phase; None for a phase the dive did not have."""
+    if "po2_by_phase" not in ex.cache:
+        ex.cache["po2_by_phase"] = _po2_by_phase(ex)
+    return ex.cache["po2_by_phase"]
+
+
+def _po2_by_phase(ex: Executed) -> dict[str, float | None]:
     p = ex.p_bar(ex.depth)
     po2 = np.maximum(p[:-1], p[1:]) * ex.fo2
     left = ex.events.get("left_bottom", float(ex.t[int(np.argmax(ex.depth))]))

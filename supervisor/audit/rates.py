@@ -140,7 +140,10 @@ def check_rate(ex: Executed, direction: Direction, limit: float,
     RateCheck
     """
     slack = float(convert_depth(RATE_SLACK_FSW, "fsw", ex.unit))  # type: ignore[arg-type]
-    s, e, change = window_changes(ex.t, ex.depth, ex.place != "water", window)
+    key = ("windows", window)
+    if key not in ex.cache:  # both directions and the result's figures share one pass
+        ex.cache[key] = window_changes(ex.t, ex.depth, ex.place != "water", window)
+    s, e, change = ex.cache[key]
     if direction == "ascent":
         change = -change
     if change.size == 0:

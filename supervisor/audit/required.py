@@ -156,7 +156,7 @@ def fill(pa: PlanAudit, ctxs: Sequence[AuditContext]) -> None:
         keys.setdefault(r, len(todo))
         if keys[r] == len(todo):
             todo.append(r)
-    results = schedules(todo)
+    results = schedules(todo, details=False)  # stops only: no profile or oxygen needed
     for req, r in asked:
         res, err = results[keys[r]]
         req.model, req.model_error = res, err

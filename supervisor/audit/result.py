@@ -83,8 +83,7 @@ class AuditResult:
             "ascent": rates.check_rate(c.ex, "ascent", float(pol.ascent_rate_max)).to_json(),
             "descent": rates.check_rate(c.ex, "descent", float(pol.descent_rate_max)).to_json(),
         }
-        out["stops"] = [s.to_json() for s in stops.measure(c.ex, stops.approved_stops(c),
-                                                           c.step)]
+        out["stops"] = [s.to_json() for s in stops.approved_times(c)]
         out["surface_interval_min"] = _r(surd.surface_interval(c))
         out["po2_by_phase"] = {k: _r(v, 3) for k, v in oxygen.po2_by_phase(c.ex).items()}
         e = c.exposure

@@ -31,8 +31,10 @@ from supervisor.findings import Finding, could_not_run, sort_findings
 from supervisor.plan import Plan
 from supervisor.records.importers.common import ImportedLog
 
-#: Executed profiles evaluated together (a batch pads them to the longest).
-EVAL_BATCH = 16
+#: Segments evaluated together at most (a batch pads its profiles to the longest; one
+#: long profile is a batch of its own): large enough to spread numpy's per-call cost,
+#: small enough that the (segments x 16 compartments) arrays stay a few megabytes.
+EVAL_SEGMENTS = 65536
 
 
 def prepare(plan: str | Path | Plan, *, analyse: bool = True) -> PlanAudit:
@@ -110,8 +112,15 @@ def _evaluate(pa: PlanAudit, ctxs: Sequence[AuditContext]) -> None:
             [_anchor(c.required.model) if c.required is not None else None for c in xs],
         )
 
-    for k in range(0, len(ctxs), EVAL_BATCH):
-        part = list(ctxs[k:k + EVAL_BATCH])
+    batches: list[list[AuditContext]] = [[]]
+    width = 0
+    for c in ctxs:
+        width = max(width, c.ex.minutes.size)
+        if batches[-1] and width * (len(batches[-1]) + 1) > EVAL_SEGMENTS:
+            batches.append([])
+            width = c.ex.minutes.size
+        batches[-1].append(c)
+    for part in batches:
         for c, (ev, err) in zip(part, robust(run, part), strict=True):
             c.evaluation = ev
             if err is not None:

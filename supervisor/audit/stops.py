@@ -170,6 +170,13 @@ def approved_stops(ctx: AuditContext) -> list[Spec]:
     return [(float(s.depth), s.place, d.stop_gas(s).name, float(s.minutes)) for s in d.stops]
 
 
+def approved_times(ctx: AuditContext) -> list[StopTime]:
+    """The approved stops against the executed profile (computed once per audit)."""
+    if "stops" not in ctx.figures:
+        ctx.figures["stops"] = measure(ctx.ex, approved_stops(ctx), ctx.step)
+    return ctx.figures["stops"]
+
+
 def _inferred(ctx: AuditContext, s: StopTime) -> bool:
     return s.place == "chamber" and ctx.ex.source != "toml"
 
@@ -189,7 +196,7 @@ def approved(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
                    "required schedule for what the actual exposure needs)",
                    measured="no stops approved", limit="no stops approved", dive=ctx.dive.id)
         return
-    times = measure(ctx.ex, specs, ctx.step)
+    times = approved_times(ctx)
     bad = False
     for s in times:
         measured, limit = s.figures(u)
