@@ -135,6 +135,11 @@ class AuditContext:
         """The policy's stop step [unit]."""
         return float(self.policy.stop_step)
 
+    @property
+    def travel_rate(self) -> float:
+        """The approved dive's ascent rate [unit/min]."""
+        return float(self.pa.plan.ascent_rate(self.dive))
+
     def analysis(self) -> Any:
         """The check's analysis of the approved dive, or None."""
         pa = self.pa.analysis

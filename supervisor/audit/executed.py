@@ -81,6 +81,9 @@ class Executed:
         True when the chamber part was inferred from a recorder log.
     notes : list of str
         What was assumed in building the profile.
+    held : ndarray of bool, shape (n,), or None
+        Segments at a stop, from arriving to leaving it (a timed log); None when
+        the log does not say (a recorder).
     cache : dict
         Figures computed once per profile (the rate windows); cleared by nothing, so
         change no array after auditing.
@@ -102,6 +105,7 @@ class Executed:
     source: str = "samples"
     chamber_inferred: bool = False
     notes: list[str] = field(default_factory=list)
+    held: NDArray[np.bool_] | None = None
     cache: dict[Any, Any] = field(default_factory=dict, repr=False, compare=False)
 
 
@@ -338,6 +342,6 @@ def from_log(log: ImportedLog, unit: str, *, chamber_expected: bool = False,
         surface_interval=np.char.startswith(labels, SURFACE_INTERVAL), unit=unit,
         water=prof.water, p_surface_bar=prof.p_surface_bar, max_depth=float(max_depth),
         bottom_time_min=log.bottom_time_min, bottom_time_basis=log.bottom_time_basis,
-        events=events, source="toml",
+        events=events, source="toml", held=labels == "stop",
     )
 

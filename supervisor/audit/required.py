@@ -248,7 +248,7 @@ def table(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
                      limit=f"{look.depth:g} {look.unit} / {look.bottom_time:g} min",
                      status=status, **kw)
         return
-    times = measure(ctx.ex, _table_specs(ctx, look), ctx.step)
+    times = measure(ctx.ex, _table_specs(ctx, look), ctx.step, ctx.travel_rate)
     short = [s for s in times if s.short]
     limit = f"{look.depth:g} {look.unit} / {look.bottom_time:g} min: {stops}"
     if short:
@@ -293,7 +293,7 @@ def model(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
                      limit=None, **kw)
         return
     specs = [(float(s.depth), s.place, s.gas, float(s.minutes)) for s in res.stops]
-    times = measure(ctx.ex, specs, ctx.step)
+    times = measure(ctx.ex, specs, ctx.step, ctx.travel_rate)
     if any(s.short for s in times):
         yield r.review(f"needs review: the executed stops fall short of the model's schedule "
                        f"for the actual exposure ({stops}; {status}): {_short(times, u)}",

@@ -8,7 +8,14 @@ away, and a diver held a little deep is still at the stop; the Navy procedure
 wants the diver's chest as close as possible to the stop depth, U.S. Navy
 Diving Manual ch. 9, from memory).  The time is exact for the piecewise-linear
 profile (the part of each segment inside the band), computed for every segment
-and every stop at once.  Travel through a band counts, as a few seconds.
+and every stop at once.
+
+Travel is not stop time (the approved stop minutes exclude it, as the plan's
+profile does).  A timed log says which segments are stops (from arriving at a
+stop to leaving it), so only those count.  A recorder log does not: the time it
+takes to cross the band at the dive's ascent rate is taken off the band time, so
+a stop cut short by about that travel is not hidden by it (the first chamber stop,
+reached by compression from the surface, is crossed on its shallow side only).
 
 A stop is *short* when its time is more than :data:`STOP_TIME_TOLERANCE_MIN`
 under the approved minutes, and *missed* when the profile never enters its
@@ -108,7 +115,7 @@ class StopTime:
 
     @property
     def missed(self) -> bool:
-        """Never in the band."""
+        """No time at the stop."""
         return self.measured_min <= 1e-9
 
     def where(self, unit: str) -> str:
@@ -131,8 +138,9 @@ class StopTime:
 Spec = tuple[float, str, str, float]  # depth, place, gas, minutes
 
 
-def measure(ex: Executed, stops: Sequence[Spec], step: float) -> list[StopTime]:
-    """Time the executed profile spent at each stop, after leaving the bottom.
+def measure(ex: Executed, stops: Sequence[Spec], step: float, travel_rate: float
+            ) -> list[StopTime]:
+    """Time the executed profile spent at each stop, after leaving the bottom (module notes).
 
     Parameters
     ----------
@@ -142,6 +150,9 @@ def measure(ex: Executed, stops: Sequence[Spec], step: float) -> list[StopTime]:
         The stops required [unit, -, -, min].
     step : float
         The policy's stop step [unit].
+    travel_rate : float
+        The dive's ascent rate [unit/min]: a recorder log's band time less the band's
+        width at this rate.
 
     Returns
     -------
@@ -152,6 +163,8 @@ def measure(ex: Executed, stops: Sequence[Spec], step: float) -> list[StopTime]:
         return []
     left = ex.events.get("left_bottom", float(ex.t[int(np.argmax(ex.depth))]))
     after = ex.t[:-1] >= left - 1e-9
+    if ex.held is not None:
+        after &= ex.held
     bands = [band(float(s[0]), ex.unit, step) for s in stops]
     lo = np.array([b[0] for b in bands])
     hi = np.array([b[1] for b in bands])
@@ -160,6 +173,15 @@ def measure(ex: Executed, stops: Sequence[Spec], step: float) -> list[StopTime]:
         cols = np.array([s[1] == place for s in stops])
         mins = time_in_bands(ex.t, ex.depth, after & (ex.place == place), lo[cols], hi[cols])
         out[cols] = mins
+    if ex.held is None:  # no stop events: the crossing at the ascent rate is travel
+        depth = np.array([float(s[0]) for s in stops])
+        places = [s[1] for s in stops]
+        first_chamber = np.array([p == "chamber" and places.index("chamber") == i
+                                  for i, p in enumerate(places)])
+        # reached from below: the whole band; the first chamber stop, compressed to from the
+        # surface: its shallow part down and up again
+        crossing = np.where(first_chamber, 2.0 * (depth - lo), hi - lo)
+        out = np.maximum(out - crossing / travel_rate, 0.0)
     return [StopTime(float(s[0]), s[1], s[2], float(s[3]), float(m), b[0], b[1])
             for s, m, b in zip(stops, out, bands, strict=True)]
 
@@ -173,7 +195,8 @@ def approved_stops(ctx: AuditContext) -> list[Spec]:
 def approved_times(ctx: AuditContext) -> list[StopTime]:
     """The approved stops against the executed profile (computed once per audit)."""
     if "stops" not in ctx.figures:
-        ctx.figures["stops"] = measure(ctx.ex, approved_stops(ctx), ctx.step)
+        ctx.figures["stops"] = measure(ctx.ex, approved_stops(ctx), ctx.step,
+                                       ctx.travel_rate)
     return ctx.figures["stops"]
 
 
@@ -204,7 +227,7 @@ def approved(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
             continue
         bad = True
         what = ("missed" if s.missed else
-                f"cut short: {s.measured_min:.1f} of {s.required_min:g} min in the band")
+                f"cut short: {s.measured_min:.1f} of {s.required_min:g} min")
         if _inferred(ctx, s):
             yield r.review(
                 f"needs review: {s.where(u)} {what} in the recorder log (the chamber part is "

@@ -74,5 +74,26 @@ def test_missing_chamber_part_of_a_recorder_log_needs_review(demo):
 
 def test_measure_counts_only_after_leaving_the_bottom(demo):
     ex = executed(demo, "D2", d2_water())
-    got = measure(ex, [(110.0, "water", "air", 10.0)], 10.0)
+    got = measure(ex, [(110.0, "water", "air", 10.0)], 10.0, 30.0)
     assert got[0].measured_min < 0.5  # the bottom itself is not a stop
+
+
+def test_travel_through_the_band_does_not_hide_a_short_stop(demo):
+    # 15 s short at 40 fsw; crossing the 39-45 fsw band at 30 fsw/min takes 12 s, which a
+    # recorder's band time includes and the audit takes off again
+    r = audit_one(demo, item(demo, "D2", d2_full(demo, stop40=2.75)))
+    f = [x for x in _stops(r) if x.severity == "fail"]
+    assert len(f) == 1 and f[0].measured == "40 fsw water stop on air: 2.8 min"
+
+
+def test_timed_log_counts_only_the_logged_stop(demo):
+    from supervisor.audit.run import item_from_log
+    from supervisor.records.importers import read_log
+    from tests.audit._logs import ROOT
+
+    it = item_from_log(demo, read_log(ROOT / "examples" / "logs" / "demo-d2-log.toml"))
+    got = {(s.depth, s.place): s.measured_min
+           for s in measure(it.ex, [(50.0, "water", "air", 3.0), (40.0, "water", "air", 3.0)],
+                            10.0, 30.0)}
+    # the file's own clock times: 10:57:00-11:00:00 and 11:00:20-11:02:20
+    assert np.isclose(got[(50.0, "water")], 3.0) and np.isclose(got[(40.0, "water")], 2.0)
