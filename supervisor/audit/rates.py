@@ -10,7 +10,8 @@ a recorder log, all in one vectorised pass.
 
 A window is over the limit when its depth change exceeds the limit times the
 window by more than :data:`RATE_SLACK_FSW` (a depth reading's resolution, so
-that one sample's noise is not a violation).  Both figures are own choices and
+that one sample's noise is not a violation); a fastest window over the limit by
+less than that needs review (never a pass).  Both figures are own choices and
 are stated in every finding.
 
 The limits are the policy's: ``ascent_rate_max`` (a fast ascent guards against
@@ -174,6 +175,11 @@ def _finding(ctx: AuditContext, r: Rule, rc: RateCheck, stated: bool) -> Finding
                         f"water; the {rc.direction} rate cannot be measured",
                         measured="not measured", **kw)
     measured = round(rc.max_rate, 1)
+    if rc.episodes == 0 and rc.max_rate > rc.limit + 1e-9:
+        # over the limit by less than the slack: not shown to be a violation, nor to be fine
+        return r.review(f"needs review: fastest {rc.direction} {measured:g} {u}/min, over "
+                        f"{rc.limit:g} {u}/min by less than the depth slack ({how})",
+                        measured=measured, **kw)
     if rc.episodes == 0:
         return r.ok(f"fastest {rc.direction} {measured:g} {u}/min ({how})", measured=measured,
                     **kw)

@@ -79,3 +79,10 @@ def test_descent_within_the_limit_passes(demo):
     r = audit_one(demo, item(demo, "D1", executed(demo, "D1", d1(descent=50.0))))
     f = _find(r, "audit-descent-rate")[0]
     assert f.severity == "pass" and abs(f.measured - 50.0) < 0.5
+
+
+def test_over_the_limit_within_the_slack_needs_review(demo):
+    # 41 fsw/min: 20.5 fsw over 30 s, inside 40 x 0.5 + 1 fsw, but above the limit
+    r = audit_one(demo, item(demo, "D1", executed(demo, "D1", d1(ascent=41.0))))
+    f = _find(r, "audit-ascent-rate")[0]
+    assert f.severity == "warn" and not f.verified and f.measured > 40.0
