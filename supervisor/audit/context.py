@@ -145,6 +145,26 @@ class AuditContext:
         pa = self.pa.analysis
         return None if pa is None else pa.dives.get(self.dive.id)
 
+    def tissues_unknown(self) -> str | None:
+        """Why the tissues this dive starts with are not known, or None when they are.
+
+        A dive after another of its diver starts from that dive's tissues; without the
+        plan's analysis (or with its carry failed) they are unknown, and a start from
+        saturation at the surface would understate them.
+        """
+        a = self.analysis()
+        repetitive = self.dive.previous_dive is not None or any(
+            d.diver == self.dive.diver for d in self.pa.plan.dives[:self.pa.plan.dives.index(
+                self.dive)])
+        if not repetitive:
+            return None
+        if a is None:
+            return ("the tissues carried from the diver's previous dive are unknown (" +
+                    (self.pa.analysis_error or "the plan's analysis is missing") + ")")
+        if "tissues" in a.errors:
+            return a.errors["tissues"]
+        return None
+
 
 def with_action(f: Finding, action: dict[str, str]) -> Finding:
     """The finding with the procedure that governs what to do (``action`` in its JSON)."""

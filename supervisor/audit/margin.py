@@ -5,9 +5,11 @@ through the policy's ZH-L16 coefficient set and gradient factors by
 :func:`supervisor.engine.evaluate.evaluate_profiles`, from the tissues the
 approved plan gives the dive at leaving the surface (saturated with air, or
 carried from the diver's planned previous dive over the planned surface
-interval, as the check does).  The gradient-factor line is anchored at the
-first stop of the model's schedule for the actual exposure
-(:mod:`supervisor.audit.required`).
+interval, as the check does).  A pass for a dive after another therefore rests
+on the planned, not the executed, previous dive and needs review; without the
+plan's analysis the tissues of such a dive are unknown and every model figure
+needs review.  The gradient-factor line is anchored at the first stop of the
+model's schedule for the actual exposure (:mod:`supervisor.audit.required`).
 
 As in the check (:mod:`supervisor.rules.model`), the model and its gradient
 factors are the contractor's choice: a profile above the ceiling in the water or
@@ -47,7 +49,20 @@ def _start(ctx: AuditContext) -> str:
             f"{a.surface_interval_min:.0f}-min surface interval")
 
 
+def _carried(ctx: AuditContext) -> str:
+    """For a dive after another: its tissues are the plan's, not the executed dive's."""
+    a = ctx.analysis()
+    if a is None or a.previous is None:
+        return ""
+    return (f"; needs review: the tissues are carried from the planned {a.previous}, not from "
+            "its executed profile")
+
+
 def _unknown(ctx: AuditContext, r: Rule, what: str) -> Finding | None:
+    tissues = ctx.tissues_unknown()
+    if tissues is not None:
+        return r.review(f"needs review: {what} of the executed profile rests on unknown tissues "
+                        f"({tissues})", measured="not computed", dive=ctx.dive.id)
     if ctx.evaluation is not None:
         return None
     why = ctx.errors.get("evaluation", "not computed")
@@ -77,8 +92,10 @@ def ceiling(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
                        f"{ev.first_break_min:.1f} min of the log, by up to {excess:.1f} {u} "
                        f"({status})", **kw)
     else:
+        carried = _carried(ctx)
         yield r.ok(f"the executed profile stayed below the {_gf(ctx)} ceiling, closest "
-                   f"{-excess:.1f} {u} below it ({status})", **kw)
+                   f"{-excess:.1f} {u} below it ({status}{carried})", verified=not carried,
+                   **kw)
 
 
 @FAMILY.rule(
@@ -103,7 +120,8 @@ def surfacing(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
     if gf > limit + 1e-6:
         yield r.breach(text + " is above the policy", **kw)
     else:
-        yield r.ok(text, **kw)
+        carried = _carried(ctx)
+        yield r.ok(text + carried, verified=not carried, **kw)
     si = ev.surface_interval_max_gf
     if si is not None and (ctx.dive.chamber_stops or ctx.ex.surface_interval.any()):
         yield r.note(f"peak supersaturation during the surface interval of surface "

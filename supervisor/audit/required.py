@@ -280,6 +280,11 @@ def model(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
     q = ctx.required
     kw: dict[str, Any] = dict(dive=ctx.dive.id, unit="min")
     res = q.model
+    tissues = ctx.tissues_unknown()
+    if tissues is not None:
+        yield r.review(f"needs review: the model schedule for the actual exposure rests on "
+                       f"unknown tissues ({tissues})", measured="not computed", **kw)
+        return
     if res is None:
         yield r.review(f"needs review: the model schedule for the actual exposure could not be "
                        f"computed ({q.model_error})", measured="not computed", **kw)

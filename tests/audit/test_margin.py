@@ -40,3 +40,20 @@ def test_direct_ascent_from_110_fsw_breaks_the_ceiling_and_surfaces_above_gf_hig
 def test_repetitive_dive_starts_from_the_planned_tissues(demo):
     r = audit_one(demo, item(demo, "D3", executed(demo, "D3", d1(bt=30.0, depth=40.0))))
     assert "tissues carried from the planned D1" in _f(r, "audit-model-ceiling")[0].message
+
+
+def test_repetitive_dive_pass_rests_on_the_planned_previous_dive(demo):
+    r = audit_one(demo, item(demo, "D3", executed(demo, "D3", d1(bt=30.0, depth=40.0))))
+    f = _f(r, "audit-model-ceiling")[0]
+    assert f.severity == "pass" and not f.verified and "not from its executed" in f.message
+
+
+def test_repetitive_dive_without_the_plans_analysis_needs_review():
+    from supervisor.audit import prepare
+    from tests.audit._logs import DEMO
+
+    bare = prepare(DEMO, analyse=False)
+    r = audit_one(bare, item(bare, "D3", executed(bare, "D3", d1(bt=30.0, depth=40.0))))
+    for rule in ("audit-model-ceiling", "audit-surfacing-gf", "audit-required-model"):
+        f = _f(r, rule)[0]
+        assert f.severity == "warn" and "unknown tissues" in f.message, rule
