@@ -210,6 +210,8 @@ def _record(pa: Any, imported: list[Any], results: list[Any], rec: dict[str, Any
 
     exposure = Exposure(rec["group"], rec["since_last"], rec["no_exposure_24h"])
     name = pa.plan_path or "plan.toml"
+    for one, res in zip(imported, results, strict=True):  # refuse bad input before opening
+        dive_items(one, res, exposure, "", lambda done: 0)
     with open_store(db, create=True) as store:
         known = _plan_on_record(store, pa.plan_sha256)
         items: list[Any] = [] if known is not None else _plan_items(store, pa.plan_bytes, name,

@@ -193,3 +193,18 @@ def test_record_of_a_csv_needs_the_repetitive_status(capsys, db_url):  # noqa: F
                          "--no-exposure-24h")
     assert code == 0, err
     assert _count(db_url) == before + 2
+
+
+def test_folder_record_is_one_transaction(capsys, tmp_path, db_url):  # noqa: F811
+    folder = _folder(tmp_path)
+    # a recorder log without its repetitive status: nothing of the folder is stored
+    code, _, err = audit(folder, capsys, "--record", "--db", db_url)
+    assert code == 2 and "--group" in err
+    with RecordStore.open(db_url, create=True) as store:
+        assert store.count() == 0
+    code, _, err = audit(folder, capsys, "--record", "--db", db_url, "--no-exposure-24h")
+    assert code == 1, err
+    with RecordStore.open(db_url) as store:
+        assert [r.kind for r in store.records()] == ["job", "plan", "dive", "audit", "dive",
+                                                     "audit"]
+        assert store.verify().intact
