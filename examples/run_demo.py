@@ -4,8 +4,10 @@ Checks the invented demo job in ``examples/demo-job.toml``, makes a demo signing
 key for its fictional supervisor, adds the demo certificate to a demo company
 keyring (``out/demo-keyring.toml``, never the user's own keyring), writes the
 signed pre-dive checklist (PDF and JSON) to ``out/`` and verifies it against that
-keyring, then records the plan and two invented dive logs in
-a fresh record store ``out/demo-records.sqlite3`` and verifies its hash chain.  Then plans
+keyring, then records the plan in a fresh record store ``out/demo-records.sqlite3``,
+audits the invented timed log of the surface-decompression dive D2 (one stop cut short)
+against the plan and records the dive with its audit, records the invented recorder log
+of D1, signed, and verifies the hash chain.  Then plans
 the invented demo treatment (Treatment Table 6 in the job's deck chamber,
 ``examples/demo-treatment.toml``), writes its JSON to ``out/demo-treatment-plan.json`` and
 logs it as run (``examples/demo-treatment-events.toml``, one late air break).  The demo
@@ -78,20 +80,21 @@ def main() -> int:
     pdfs = sorted((ROOT / checklists).glob("*-checklist.pdf"))
     for pdf in pdfs:
         _run(["verify", str(pdf.relative_to(ROOT)), "--keyring", str(keyring)], env)
-    # after the dive: the timed log of D2 (one cut-short stop, for the audit to come) and the
-    # recorder log of D1 go on record with the plan, signed, and the chain is verified
+    # after the dive: the timed log of D2 (its 40 fsw stop cut short) is audited against the
+    # plan and recorded with its audit (it does not conform: status 1, shown); the recorder
+    # log of D1 goes on record signed; the chain is verified
     db = out / "demo-records.sqlite3"
     for old in (ROOT / out).glob("demo-records.sqlite3*"):
         old.unlink()
     store = ["--db", str(db)]
     _run(["records", "add", "plan", str(plan), *store], env)
     logs = Path("examples") / "logs"
-    _run(["records", "add", "dive", str(logs / "demo-d2-log.toml"), "--sign", str(key), *store],
-         env)
+    _run(["audit", str(logs / "demo-d2-log.toml"), "--plan", str(plan), "--record", *store],
+         env, ok=(1,))
     _run(["records", "add", "dive", str(logs / "demo-d1-recorder.csv"), "--job",
           "2026-06-03-outfall-diffuser-inspection-and-riser-clamp-change", "--dive", "D1",
           "--diver", "Teodor Lind", "--table", "usn-rev7-air-ndl", "--schedule", "50/50",
-          "--no-exposure-24h", *store], env)
+          "--no-exposure-24h", "--sign", str(key), *store], env)
     _run(["records", "list", *store], env)
     _run(["records", "verify", *store], env)
     _treatment(env, out)

@@ -93,3 +93,17 @@ def test_bench_job_is_a_valid_multi_day_job(tmp_path):
     assert len(surd) == -(-50 // 7)  # one a day over 8 days (the last one short)
     assert any(d.previous_dive is not None for d in plan.dives)
     assert any(d.decompression == "in-water" for d in plan.dives)
+
+
+def test_bench_audit_logs_are_audited_as_the_library_audits_them():
+    # the benchmark's invented logs: the one-in-three fast ascents (60 fsw/min) fail
+    import bench_audit as ba
+
+    from supervisor.audit import prepare
+
+    pa = prepare(ba.PLAN, analyse=False)
+    work = ba.logs(6, 1.0, seed=3)
+    out = ba.audit(pa, work)
+    assert all(o["schema"] == "supervisor.audit/1" and o["dive"] == "D1" for o in out)
+    fast = [o["executed"]["rates"]["ascent"]["max_rate"] > 45 for o in out]
+    assert [o["verdict"] == "does-not-conform" for o in out] == fast

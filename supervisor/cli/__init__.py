@@ -10,6 +10,7 @@ from __future__ import annotations
 import typer
 
 from supervisor import __version__
+from supervisor.cli import audit as _audit
 from supervisor.cli import check as _check
 from supervisor.cli import checklist as _checklist
 from supervisor.cli import log as _log
@@ -45,7 +46,8 @@ def _root(
     """Check proposed dive and chamber schedules before anyone gets wet."""
 
 
-for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log, _treatment):
+for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log, _treatment,
+             _audit):
     _mod.register(app)
 
 

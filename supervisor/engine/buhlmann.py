@@ -192,6 +192,11 @@ def mixed_coefficients(
     """
     pn = np.asarray(p_n2, dtype=float)
     ph = np.asarray(p_he, dtype=float)
+    if not ph.any():
+        # no helium anywhere (an air or nitrox dive): the nitrogen values, as the weighting
+        # with a zero helium share gives them exactly
+        shape = np.broadcast_shapes(pn.shape, ph.shape)
+        return np.broadcast_to(c.n2_a, shape), np.broadcast_to(c.n2_b, shape)
     tot = pn + ph
     safe = np.where(tot > 0, tot, 1.0)
     w_he = np.where(tot > 0, ph / safe, 0.0)

@@ -12,7 +12,7 @@ References
 
 from __future__ import annotations
 
-import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -94,57 +94,110 @@ class ProfileEvaluation:
         default_factory=lambda: np.zeros(0), repr=False)
 
 
-def infer_first_stop(profile: Profile) -> float | None:
+@dataclass(frozen=True)
+class ProfileArrays:
+    """A profile as one array per segment attribute: the evaluation's input.
+
+    Built from a :class:`~supervisor.profile.Profile` by :meth:`from_profile`, or
+    directly from sampled depths (an executed log) without a Python object per
+    sample.
+
+    Attributes
+    ----------
+    minutes, start_depth, end_depth : ndarray
+        Duration [min] and depths at the ends [profile unit] of each segment.
+    fn2, fhe : ndarray
+        Inert-gas fractions breathed [-].
+    inside : ndarray of bool
+        True for segments in the water or the chamber that the ceiling check
+        covers; False on the surface and in a ``surface interval`` of surface
+        decompression.
+    unit : {"fsw", "msw", "ft", "m"}
+        Depth unit.
+    water : {"salt", "fresh"}
+        Water, for length units.
+    p_surface_bar : float
+        Absolute surface pressure [bar].
+    """
+
+    minutes: NDArray[np.float64]
+    start_depth: NDArray[np.float64]
+    end_depth: NDArray[np.float64]
+    fn2: NDArray[np.float64]
+    fhe: NDArray[np.float64]
+    inside: NDArray[np.bool_]
+    unit: str
+    water: str
+    p_surface_bar: float
+
+    @classmethod
+    def from_profile(cls, profile: Profile) -> ProfileArrays:
+        """The arrays of a profile's segments."""
+        segs = profile.segments
+        if not segs:
+            raise InputError("profile", "the profile has no segments")
+        n = len(segs)
+        place = np.array([s.place for s in segs])
+        labels = np.array([s.label for s in segs], dtype=str)
+        return cls(
+            minutes=np.fromiter((s.minutes for s in segs), float, n),
+            start_depth=np.fromiter((s.start_depth for s in segs), float, n),
+            end_depth=np.fromiter((s.end_depth for s in segs), float, n),
+            fn2=np.fromiter((s.gas.fn2 for s in segs), float, n),
+            fhe=np.fromiter((s.gas.fhe for s in segs), float, n),
+            inside=(place != "surface") & ~np.char.startswith(labels, SURFACE_INTERVAL),
+            unit=profile.unit, water=profile.water, p_surface_bar=profile.p_surface_bar,
+        )
+
+    @property
+    def max_depth(self) -> float:
+        """Deepest point [unit]."""
+        return float(max(self.start_depth.max(), self.end_depth.max()))
+
+
+def infer_first_stop(profile: Profile | ProfileArrays) -> float | None:
     """Depth of the first stop: the deepest level segment shallower than the maximum depth.
 
     Only level segments after the profile first leaves its maximum depth count.
     Returns None when the profile has no stop.
     """
-    dmax = profile.max_depth
-    left_bottom = False
-    best = None
-    for s in profile.segments:
-        if not left_bottom:
-            if s.start_depth >= dmax - 1e-9 and s.end_depth < s.start_depth:
-                left_bottom = True
-            continue
-        if s.minutes > 0 and abs(s.start_depth - s.end_depth) < 1e-9 and 0 < s.start_depth < dmax:
-            best = s.start_depth if best is None else max(best, s.start_depth)
-    return best
+    a = profile if isinstance(profile, ProfileArrays) else ProfileArrays.from_profile(profile)
+    d0, d1 = a.start_depth, a.end_depth
+    dmax = a.max_depth
+    leaving = (d0 >= dmax - 1e-9) & (d1 < d0)
+    if not leaving.any():
+        return None
+    after = np.arange(d0.size) > int(np.argmax(leaving))
+    stop = after & (a.minutes > 0) & (np.abs(d0 - d1) < 1e-9) & (d0 > 0) & (d0 < dmax)
+    return float(d0[stop].max()) if stop.any() else None
 
 
-def _samples(profile: Profile, max_sample_min: float) -> dict[str, NDArray]:
+def _samples(a: ProfileArrays, max_sample_min: float) -> dict[str, NDArray]:
     """Sub-sampled segment arrays of one profile (depths in its unit)."""
-    if not profile.segments:
-        raise InputError("profile", "the profile has no segments")
-    segs = profile.segments
     # Travel is cut into pieces of at most max_sample_min.  At constant depth every
     # compartment's ceiling moves monotonically, so the worst point of a level segment is
     # one of its ends: level segments are cut only coarsely (for the chart).
-    n = np.array([
-        max(1, int(math.ceil(s.minutes / (max_sample_min if s.start_depth != s.end_depth
-                                           else _LEVEL_SAMPLE_MIN) - 1e-9)))
-        for s in segs
-    ])
-    idx = np.repeat(np.arange(len(segs)), n)
-    frac_end = np.concatenate([np.arange(1, k + 1) / k for k in n])
-    frac_start = np.concatenate([np.arange(0, k) / k for k in n])
-    d0 = np.array([s.start_depth for s in segs])[idx]
-    d1 = np.array([s.end_depth for s in segs])[idx]
-    place = np.array([s.place for s in segs])[idx]
-    labels = np.array([s.label for s in segs], dtype=str)[idx]
+    piece = np.where(a.start_depth != a.end_depth, max_sample_min, _LEVEL_SAMPLE_MIN)
+    n = np.maximum(1, np.ceil(a.minutes / piece - 1e-9).astype(int))
+    idx = np.repeat(np.arange(n.size), n)
+    pos = np.arange(idx.size) - np.repeat(np.cumsum(n) - n, n)
+    k = n[idx]
+    frac_end = (pos + 1) / k
+    frac_start = pos / k
+    d0 = a.start_depth[idx]
+    d1 = a.end_depth[idx]
     return {
-        "minutes": np.array([s.minutes for s in segs])[idx] / n[idx],
+        "minutes": a.minutes[idx] / k,
         "da": d0 + (d1 - d0) * frac_start,
         "db": d0 + (d1 - d0) * frac_end,
-        "fn2": np.array([s.gas.fn2 for s in segs])[idx],
-        "fhe": np.array([s.gas.fhe for s in segs])[idx],
-        "inside": (place != "surface") & ~np.char.startswith(labels, SURFACE_INTERVAL),
+        "fn2": a.fn2[idx],
+        "fhe": a.fhe[idx],
+        "inside": a.inside[idx],
     }
 
 
 def evaluate_profile(
-    profile: Profile,
+    profile: Profile | ProfileArrays,
     model: str = "zhl16c",
     gf_low: float = 0.30,
     gf_high: float = 0.85,
@@ -158,7 +211,7 @@ def evaluate_profile(
 
     Parameters
     ----------
-    profile : Profile
+    profile : Profile or ProfileArrays
         The dive (or chamber run); segments are subdivided to at most
         ``max_sample_min`` so ceilings are checked inside travel segments too.
     model : {"zhl16a", "zhl16b", "zhl16c"}
@@ -188,7 +241,7 @@ def evaluate_profile(
 
 
 def evaluate_profiles(
-    profiles: list[Profile],
+    profiles: Sequence[Profile | ProfileArrays],
     model: str = "zhl16c",
     gf_low: float = 0.30,
     gf_high: float = 0.85,
@@ -200,7 +253,8 @@ def evaluate_profiles(
 ) -> list[ProfileEvaluation]:
     """Run many profiles through the model in one vectorised pass.
 
-    Profiles are padded with zero-length segments to a common length and
+    Profiles (or their :class:`ProfileArrays`, e.g. of an executed log) are
+    padded with zero-length segments to a common length and
     integrated as one batch (:func:`supervisor.engine.kinetics.tissue_tensions`);
     the parameters are those of :func:`evaluate_profile`, given per profile
     where they are lists.
@@ -217,7 +271,9 @@ def evaluate_profiles(
     nprof = len(profiles)
     if nprof == 0:
         return []
-    samples = [_samples(p, max_sample_min) for p in profiles]
+    arrays = [p if isinstance(p, ProfileArrays) else ProfileArrays.from_profile(p)
+              for p in profiles]
+    samples = [_samples(p, max_sample_min) for p in arrays]
     width = max(sm["minutes"].size for sm in samples)
     mins = np.zeros((nprof, width))
     pa = np.empty((nprof, width))
@@ -226,7 +282,7 @@ def evaluate_profiles(
     fhe = np.zeros((nprof, width))
     pn0 = np.empty((nprof, c.n))
     ph0 = np.zeros((nprof, c.n))
-    for j, (prof, sm) in enumerate(zip(profiles, samples, strict=True)):
+    for j, (prof, sm) in enumerate(zip(arrays, samples, strict=True)):
         m = sm["minutes"].size
         bpu = bar_per_depth_unit(prof.unit, prof.water)  # type: ignore[arg-type]
         ps = prof.p_surface_bar
@@ -244,7 +300,7 @@ def evaluate_profiles(
     tn_all = tissue_tensions(mins, pa, pb, fn2, c.n2_half, pn0, ph2o_bar)
     th_all = tissue_tensions(mins, pa, pb, fhe, c.he_half, ph0, ph2o_bar)
     out = []
-    for j, (prof, sm) in enumerate(zip(profiles, samples, strict=True)):
+    for j, (prof, sm) in enumerate(zip(arrays, samples, strict=True)):
         m = sm["minutes"].size
         tn, th = tn_all[j, :m], th_all[j, :m]
         ps = prof.p_surface_bar
@@ -267,7 +323,7 @@ def evaluate_profiles(
         out.append(
             ProfileEvaluation(
                 t_min=np.concatenate([[0.0], t_end]),
-                depth=np.concatenate([[prof.segments[0].start_depth], db]),
+                depth=np.concatenate([[prof.start_depth[0]], db]),
                 ceiling_depth=np.concatenate([[0.0], np.maximum((ceil - ps) / bpu, 0.0)]),
                 ceiling_broken=bool(broken.any()),
                 worst_excess_bar=float(excess[inside].max()) if inside.any() else float("-inf"),

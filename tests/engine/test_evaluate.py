@@ -6,7 +6,12 @@ import numpy as np
 import pytest
 
 from supervisor.engine.buhlmann import load_coefficients
-from supervisor.engine.evaluate import evaluate_profile, infer_first_stop
+from supervisor.engine.evaluate import (
+    ProfileArrays,
+    evaluate_profile,
+    evaluate_profiles,
+    infer_first_stop,
+)
 from supervisor.engine.kinetics import final_tensions
 from supervisor.engine.schedule import ScheduleRequest, plan_schedule
 from supervisor.errors import InputError
@@ -59,3 +64,14 @@ def test_empty_profile_and_unknown_model():
         evaluate_profile(Profile(unit="fsw"))
     with pytest.raises(InputError, match="model"):
         evaluate_profile(Profile(unit="fsw").add(10, 1), model="zhl99")
+
+
+def test_profile_arrays_give_the_same_evaluation_as_the_profile():
+    # the array form (an executed log's input) is the same computation, value for value
+    r = _schedule()
+    arrays = ProfileArrays.from_profile(r.profile)
+    a, b = evaluate_profiles([r.profile, arrays], "zhl16c", 0.3, 0.85)
+    assert a.surfacing_gf == b.surfacing_gf and a.worst_excess_bar == b.worst_excess_bar
+    np.testing.assert_array_equal(a.ceiling_depth, b.ceiling_depth)
+    np.testing.assert_array_equal(a.final_p_n2, b.final_p_n2)
+    assert infer_first_stop(arrays) == infer_first_stop(r.profile) == a.first_stop_depth
