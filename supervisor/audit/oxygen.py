@@ -24,12 +24,14 @@ from typing import Any
 
 import numpy as np
 
+from supervisor import constants as C
 from supervisor.audit.context import FAMILY, AuditContext
 from supervisor.audit.executed import Executed
 from supervisor.engine import oxygen as ox
 from supervisor.findings import Finding
 from supervisor.rules.base import Rule
 from supervisor.rules.oxygen import CNS_LIMIT_PERCENT, NOAA_CNS, REPEX, _limit_finding
+from supervisor.rules.po2_limits import po2_limit
 
 PHASES: dict[str, tuple[str, str]] = {
     "bottom": ("po2_bottom_max", "bottom"),
@@ -41,7 +43,10 @@ PHASES: dict[str, tuple[str, str]] = {
 def exposure(ex: Executed) -> ox.OxygenExposure:
     """The oxygen exposure of the executed profile, segment by segment."""
     p = ex.p_bar(ex.depth)
-    return ox.segment_exposure(ex.minutes, p[:-1] * ex.fo2, p[1:] * ex.fo2)
+    chamber = ex.place == "chamber"
+    # chamber oxygen is kept apart, as in the check: no in-water CNS percentage for it
+    return ox.segment_exposure(ex.minutes, p[:-1] * ex.fo2, p[1:] * ex.fo2,
+                               in_chamber=chamber, chamber_oxygen=chamber & (ex.fo2 > 0.5))
 
 
 def po2_by_phase(ex: Executed) -> dict[str, float | None]:
@@ -66,18 +71,23 @@ def _po2_rule(phase: str) -> Any:
     field, what = PHASES[phase]
 
     def rule(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
-        limit = float(getattr(ctx.policy, field))
-        po2 = po2_by_phase(ctx.ex).get(phase)
-        if po2 is None:
+        # the check's own limits and their severity (supervisor.rules.po2_limits): one rule
+        lim = po2_limit(ctx.pa.plan.policy, phase, getattr(ctx.pa, "table", None))
+        po2_bar = po2_by_phase(ctx.ex).get(phase)
+        if po2_bar is None:
             return
-        kw = dict(measured=round(po2, 3), limit=limit, unit="bar", dive=ctx.dive.id)
-        if po2 > limit + 1e-6:
-            yield r.breach(f"{what} PO2 as breathed reached {po2:.2f} bar, above the policy "
-                           "limit", **kw)
+        po2 = po2_bar / C.P_ATM_BAR
+        sev = lim.judge(po2)
+        kw = dict(measured=round(po2, 3), limit=lim.limit_for(sev), unit="ata",
+                  dive=ctx.dive.id, citation=lim.citation)
+        if sev == "pass":
+            yield r.ok(f"{what} PO2 as breathed at most {po2:.2f} ata ({lim.basis})", **kw)
         else:
-            yield r.ok(f"{what} PO2 as breathed at most {po2:.2f} bar", **kw)
+            text = (f"{what} PO2 as breathed reached {po2:.2f} ata, above "
+                    f"{lim.limit_for(sev):g} ata ({lim.basis})")
+            yield r.finding(sev, text, verified=sev == "fail", **kw)
 
-    rule.__doc__ = f"Highest {what} PO2 as breathed against policy.{field}."
+    rule.__doc__ = f"Highest {what} PO2 as breathed against the policy's {what} limit."
     return rule
 
 
@@ -85,7 +95,7 @@ for _phase, (_field, _what) in PHASES.items():
     FAMILY.rule(
         f"audit-po2-{_phase}",
         title=f"{_what.capitalize()} PO2 as breathed within policy",
-        citation=f"contractor policy (policy.{_field})",
+        citation=f"contractor policy (policy.{_field}_ata)",
         kind="policy",
     )(_po2_rule(_phase))
 
@@ -113,9 +123,12 @@ def cns(ctx: AuditContext, r: Rule) -> Iterator[Finding]:
     bound = (f" (a lower bound: PO2 reached {e.max_po2_atm:.2f} atm, above the table's "
              f"{e.range_top_atm:g} atm for {e.minutes_above_range:.1f} min)"
              if e.out_of_range else "")
+    apart = (f"; chamber oxygen {e.chamber_oxygen_minutes:.0f} min counted apart (no in-water "
+             "CNS percentage; chamber oxygen periods against the procedure)"
+             if e.chamber_oxygen_minutes > 0 else "")
     f = _limit_finding(r, e.cns_limits, e.cns_percent > CNS_LIMIT_PERCENT + 1e-9,
-                       f"CNS exposure as breathed {e.cns_percent:.0f} %{bound} of the "
-                       "single-exposure limits", measured=round(e.cns_percent, 1),
+                       f"CNS exposure as breathed in the water {e.cns_percent:.0f} %{bound} of "
+                       f"the single-exposure limits{apart}", measured=round(e.cns_percent, 1),
                        limit=CNS_LIMIT_PERCENT, unit="%", dive=ctx.dive.id)
     if e.out_of_range and f.severity == "pass":
         text = f.message if "needs review" in f.message else f.message + "; needs review"

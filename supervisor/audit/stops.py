@@ -161,7 +161,12 @@ def measure(ex: Executed, stops: Sequence[Spec], step: float, travel_rate: float
     """
     if not stops:
         return []
-    left = ex.events.get("left_bottom", float(ex.t[int(np.argmax(ex.depth))]))
+    # stops count from the start of the ascent: the last time at the deepest depth reached
+    # (a recorder log's conservative bottom time runs to the last sample deeper than half
+    # the maximum depth, which would swallow a deep stop)
+    deepest = float(ex.depth.max())
+    start = float(ex.t[int(np.flatnonzero(ex.depth >= deepest - 1e-9)[-1])])
+    left = min(ex.events.get("left_bottom", start), start)
     after = ex.t[:-1] >= left - 1e-9
     if ex.held is not None:
         after &= ex.held

@@ -19,16 +19,16 @@ from collections.abc import Iterator
 from supervisor.audit.context import FAMILY, AuditContext, with_action
 from supervisor.findings import Finding
 from supervisor.rules.base import Rule
-from supervisor.rules.procedure import NAVY_REV7, SURD_INTERVAL_MAX_MIN, SURD_LATE_MAX_MIN
+from supervisor.rules.procedure import NAVY_REV7, SURD_INTERVAL_DEFAULT, SURD_LATE_TEXT
 
-#: What the procedure says about a late chamber (U.S. Navy Diving Manual Rev 7 ch. 9,
-#: from memory; a diving-forum post, SECONDARY, gives the 5-min limit and treatment).
+#: Past this interval the procedure abandons surface decompression [min] (from memory; the
+#: same procedure text as the check's proc-surd-interval, ``SURD_LATE_TEXT``).
+SURD_LATE_MAX_MIN = 7.0
+
+#: What the procedure says about a late chamber: the check's own text (one source of it).
 LATE_CHAMBER = {
     "procedure": "surface decompression interval exceeded",
-    "text": "over 5 but within 7 min: one extra half-period (15 min on oxygen) at 50 fsw; "
-            "over 7 min: treatment (Treatment Table 5 if two or fewer oxygen periods were "
-            "required, Treatment Table 6 if more, or on any symptom); follow the contractor's "
-            "manual",
+    "text": SURD_LATE_TEXT + "; follow the contractor's manual",
     "citation": f"{NAVY_REV7} (surface decompression on oxygen: surface interval exceeded)",
     "source_status": "FROM MEMORY",
 }
@@ -36,11 +36,12 @@ LATE_CHAMBER = {
 
 def interval_limit(ctx: AuditContext) -> tuple[float, str, str | None]:
     """The limit [min], its citation and source status (None: the contractor's policy)."""
-    own = getattr(ctx.pa.plan.policy, "surd_interval_max_min", None)
-    if own is not None:
-        return float(own), "contractor policy (policy.surd_interval_max_min)", None
-    return (SURD_INTERVAL_MAX_MIN,
-            f"{NAVY_REV7} (surface decompression on oxygen, surface interval)", "SECONDARY")
+    plan = ctx.pa.plan
+    value = float(plan.resolved_policy.surd_interval_max_min)
+    if "surd_interval_max_min" in plan.policy.model_fields_set:
+        return value, "contractor policy (policy.surd_interval_max_min)", None
+    return value, f"contractor policy (policy.surd_interval_max_min); {SURD_INTERVAL_DEFAULT}", \
+        "SECONDARY"
 
 
 def surface_interval(ctx: AuditContext) -> float | None:

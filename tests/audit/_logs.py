@@ -34,16 +34,17 @@ def d1(bt: float = 45.0, depth: float = 50.0, ascent: float = 30.0, descent: flo
             (1.0 + bt + t_up, 0.0), (2.0 + bt + t_up, 0.0)]
 
 
-def d2_water(stop50: float = 3.0, stop40: float = 3.0, bt: float = 40.0,
+def d2_water(stop60: float = 1.0, stop40: float = 3.0, bt: float = 40.0,
              depth: float = 110.0) -> list[Knot]:
-    """Knots of D2 in the water: descent at 60, ascent at 30 fsw/min, the two water stops."""
-    k = [(0.0, 0.0), (depth / 60.0, depth), (bt, depth)]
-    t = bt + (depth - 50.0) / 30.0
-    k.append((t, 50.0))
-    if stop50 > 0:
-        t += stop50
-        k.append((t, 50.0))
-    t += 10.0 / 30.0
+    """Knots of D2 in the water: descent at 75, ascent at 30 fsw/min, the two water stops
+    (60 fsw 1 min and 40 fsw 3 min, as approved)."""
+    k = [(0.0, 0.0), (depth / 75.0, depth), (bt, depth)]
+    t = bt + (depth - 60.0) / 30.0
+    k.append((t, 60.0))
+    if stop60 > 0:
+        t += stop60
+        k.append((t, 60.0))
+    t += 20.0 / 30.0
     k.append((t, 40.0))
     if stop40 > 0:
         t += stop40

@@ -1,9 +1,10 @@
 """Oxygen as breathed (supervisor.audit.oxygen).
 
-PO2 = absolute pressure x O2 fraction (Dalton's law) at 33 fsw per atmosphere
-(1 atm = 1.01325 bar); limits are the demo policy's (bottom 1.4, decompression
-1.6, chamber 2.8 bar).  CNS and OTU limits: NOAA CNS table and REPEX single-day
-850 OTU as bundled (FROM MEMORY, unverified, so over a limit warns).
+PO2 = absolute pressure x O2 fraction (Dalton's law) at 33 fsw per atmosphere;
+reported in ata, as the check's PO2 rules (supervisor.rules.po2_limits); limits are
+the demo policy's (bottom 1.4, decompression 1.6, chamber 2.8 ata).  CNS and OTU limits:
+NOAA CNS table and REPEX single-day 850 OTU as bundled (FROM MEMORY, unverified, so over
+a limit warns).
 """
 
 from __future__ import annotations
@@ -25,7 +26,7 @@ def test_air_at_50_fsw_passes(demo):
     r = audit_one(demo, item(demo, "D1", executed(demo, "D1", d1())))
     f = _f(r, "audit-po2-bottom")
     assert f.severity == "pass"
-    assert f.measured == pytest.approx(1.01325 * (1 + 50 / 33) * 0.21, abs=2e-3)
+    assert f.measured == pytest.approx((1 + 50 / 33) * 0.21, abs=2e-3) and f.unit == "ata"
 
 
 def test_rich_bottom_gas_fails_the_policy(demo):
@@ -34,8 +35,8 @@ def test_rich_bottom_gas_fails_the_policy(demo):
     ex.fo2 = np.full(ex.fo2.size, g.fo2)
     r = audit_one(demo, item(demo, "D1", ex))
     f = _f(r, "audit-po2-bottom")
-    assert f.severity == "fail" and f.limit == 1.4 and f.unit == "bar"
-    assert f.measured == pytest.approx(1.01325 * (1 + 50 / 33) * 0.80, abs=2e-3)
+    assert f.severity == "fail" and f.limit == 1.4 and f.unit == "ata"
+    assert f.measured == pytest.approx((1 + 50 / 33) * 0.80, abs=2e-3)
 
 
 def test_chamber_oxygen_phase(demo):

