@@ -17,6 +17,8 @@ from typing import Any
 import typer
 from typer.core import TyperCommand, TyperGroup
 
+from supervisor.cli.coercion import speed_up
+
 
 @dataclass(frozen=True)
 class Entry:
@@ -85,13 +87,15 @@ def family_commands(module: str, make_app: Callable[[], typer.Typer]) -> dict[st
     Returns
     -------
     dict
-        The click commands and groups by name, in registration order.
+        The click commands and groups by name, in registration order, their plain
+        options converted without pydantic (:mod:`supervisor.cli.coercion`).
     """
     app = make_app()
     importlib.import_module(module).register(app)
     app.callback()(lambda: None)    # always a group, whatever the family registers
     group = typer.main.get_command(app)
     assert isinstance(group, TyperGroup)
+    speed_up(group)
     return dict(group.commands)
 
 
@@ -110,6 +114,7 @@ class LazyGroup(TyperGroup):
         make_app = type(self).make_app
         self.commands = _LazyCommands(self.commands, self.table,
                                       lambda module: family_commands(module, make_app))
+        speed_up(self, recurse=False)
 
     def list_commands(self, ctx: Any) -> list[str]:
         """The command names in listing order (loads nothing)."""

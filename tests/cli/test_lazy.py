@@ -64,17 +64,19 @@ def _heavy(modules: list[str], names: tuple[str, ...]) -> list[str]:
 def test_help_imports_no_command_family():
     modules = _imported_after(["--help"])
     assert _heavy(modules, HEAVY) == []
-    assert [m for m in modules if m.startswith("supervisor.cli.")] == ["supervisor.cli.lazy"]
+    assert [m for m in modules if m.startswith("supervisor.cli.")] == [
+        "supervisor.cli.coercion", "supervisor.cli.lazy"]
 
 
 def test_schedule_imports_only_the_engine_side():
     modules = _imported_after(["schedule", "--depth", "100", "--bottom-time", "30"])
     assert "supervisor.engine.schedule" in modules
-    # pydantic is typer's own (it coerces option values); the row hashes of the CNS
-    # table are the only part of the reference-table layer the schedule needs
+    # plain option values need no pydantic (supervisor.cli.coercion); the row hashes of
+    # the CNS table are the only part of the reference-table layer the schedule needs
     assert _heavy(modules, ("supervisor.check", "supervisor.plan", "supervisor.plan_fields",
-                            "supervisor.analysis", "supervisor.rules", "supervisor.report",
-                            "supervisor.records", "supervisor.chamber", "reportlab",
+                            "pydantic", "supervisor.analysis", "supervisor.rules",
+                            "supervisor.report", "supervisor.records", "supervisor.chamber",
+                            "reportlab",
                             "sqlalchemy", "pyhanko", "cryptography", "asn1crypto",
                             "scipy")) == []
     assert [m for m in modules if m.startswith("supervisor.references")] == [
