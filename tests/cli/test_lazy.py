@@ -42,19 +42,25 @@ def _eager_app() -> typer.Typer:
 
 
 def _imported_after(args: list[str]) -> list[str]:
-    """Run ``supervisor ARGS`` in a fresh interpreter; return the modules it imported."""
+    """Run ``supervisor ARGS`` in a fresh interpreter; return the modules it imported.
+
+    The command must end with exit status 0 or 1 (it ran, whatever its verdict).
+    """
     code = (
         "import json, sys\n"
         "from supervisor.cli import main\n"
+        "status = 0\n"
         "try:\n"
         f"    main({args!r})\n"
-        "except SystemExit:\n"
-        "    pass\n"
-        "sys.stderr.write('\\nMODULES ' + json.dumps(sorted(sys.modules)))\n"
+        "except SystemExit as exc:\n"
+        "    status = exc.code\n"
+        "sys.stderr.write('\\nMODULES ' + json.dumps([status, sorted(sys.modules)]))\n"
     )
     res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          timeout=120, check=False)
-    return json.loads(res.stderr.rsplit("MODULES ", 1)[1])
+    status, modules = json.loads(res.stderr.rsplit("MODULES ", 1)[1])
+    assert status in (0, 1, None), res.stderr
+    return modules
 
 
 def _heavy(modules: list[str], names: tuple[str, ...]) -> list[str]:
@@ -112,3 +118,19 @@ def test_every_listed_command_loads():
     for name in COMMANDS:
         assert group.get_command(None, name).name == name
     assert group.get_command(None, "nosuch") is None
+
+
+SIGNING = ("pyhanko", "pyhanko_certvalidator", "cryptography", "asn1crypto", "oscrypto")
+
+
+@pytest.mark.parametrize("args", [
+    ["check", "{demo}"], ["check", "{demo}", "--json"], ["plan", "validate", "{demo}"],
+    ["tables", "list"], ["checklist", "{demo}", "--out", "{out}"], ["records", "--help"],
+])
+def test_signing_libraries_load_only_to_sign_or_verify(args, tmp_path):
+    """An unsigned checklist in a new folder, a check or a look-up signs nothing."""
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parents[2] / "examples" / "demo-job.toml"
+    args = [a.format(demo=demo, out=tmp_path / "out") for a in args]
+    assert _heavy(_imported_after(args), SIGNING) == []
