@@ -49,7 +49,6 @@ a name a table cell; a longer value is refused naming the field and the cap.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Annotated, Any
@@ -58,14 +57,15 @@ from pydantic import AfterValidator, Field, ValidationInfo, WithJsonSchema
 
 from supervisor import constants as C
 from supervisor.gas import parse_gas
+from supervisor.plan_ranges import (  # noqa: F401  (re-exported)
+    MAX_PLAN_DEPTH_FSW,
+    MAX_RATE_FSW_PER_MIN,
+    MIN_RATE_FSW_PER_MIN,
+    depth_range,
+    rate_range,
+)
 from supervisor.text import excerpt
-from supervisor.units import convert_pressure
 
-#: Deepest depth a plan may state [fsw]; anything deeper is taken as a typing error.
-MAX_PLAN_DEPTH_FSW = 2000.0
-#: Slowest and fastest rate a plan may state [fsw/min] (module docstring).
-MIN_RATE_FSW_PER_MIN = 1.0
-MAX_RATE_FSW_PER_MIN = 300.0
 #: Longest single stop [min] and longest sum of a dive's planned stops [min].
 MAX_STOP_MIN = 1440.0
 MAX_TOTAL_STOP_MIN = 2880.0
@@ -97,27 +97,6 @@ TEXT_CAPS: dict[str, int] = {
 def cap(kind: str) -> int:
     """Longest text of a field of ``kind`` (a key of :data:`TEXT_CAPS`) [characters]."""
     return TEXT_CAPS[kind]
-
-
-def _round_down(x: float) -> float:
-    return math.floor(x * 10 + 1e-9) / 10
-
-
-def _to_unit(x_fsw: float, unit: str) -> float:
-    return x_fsw if unit == "fsw" else float(convert_pressure(x_fsw, "fsw", "msw"))
-
-
-def depth_range(unit: str) -> tuple[float, float]:
-    """Accepted depths ``(lowest, highest)`` in ``unit`` (fsw or msw)."""
-    return 0.0, round(_to_unit(MAX_PLAN_DEPTH_FSW, unit), 1)
-
-
-def rate_range(unit: str) -> tuple[float, float]:
-    """Accepted rates ``(slowest, fastest)`` in ``unit``/min (fsw or msw)."""
-    if unit == "fsw":
-        return MIN_RATE_FSW_PER_MIN, MAX_RATE_FSW_PER_MIN
-    return (_round_down(_to_unit(MIN_RATE_FSW_PER_MIN, unit)),
-            round(_to_unit(MAX_RATE_FSW_PER_MIN, unit), 1))
 
 
 def altitude_unit(unit: str) -> str:

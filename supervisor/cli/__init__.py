@@ -2,7 +2,9 @@
 
 Exit status: 0 success (or a plan that conforms / needs review), 1 a plan that
 does not conform or a signature that does not verify, 2 bad input or usage.
-Each command family lives in its own module and registers itself here.
+Each command family lives in its own module with a ``register(app)`` function;
+the root group (:mod:`supervisor.cli.lazy`) imports it only when one of its
+commands is used.
 """
 
 from __future__ import annotations
@@ -10,24 +12,58 @@ from __future__ import annotations
 import typer
 
 from supervisor import __version__
-from supervisor.cli import audit as _audit
-from supervisor.cli import check as _check
-from supervisor.cli import checklist as _checklist
-from supervisor.cli import log as _log
-from supervisor.cli import plan as _plan
-from supervisor.cli import records as _records
-from supervisor.cli import schedule as _schedule
-from supervisor.cli import tables as _tables
-from supervisor.cli import treatment as _treatment
+from supervisor.cli.lazy import Entry, LazyGroup
 
-app = typer.Typer(
+# Every top-level command, in listing order, with the family module that registers
+# it and its help text's first paragraph.  A module is imported only when one of its
+# commands is invoked or its own --help is asked (tests/cli/test_lazy.py checks this
+# table against the registered commands).
+COMMANDS: dict[str, Entry] = {
+    "schedule": Entry("supervisor.cli.schedule",
+                      "Compute a model decompression schedule (ZH-L16 with gradient factors)."),
+    "check": Entry("supervisor.cli.check", "Check a plan against the regulatory, procedure and "
+                   "team rules; print the verdict."),
+    "checklist": Entry("supervisor.cli.checklist", "Check a plan and write the pre-dive "
+                       "checklist (PDF and JSON record), optionally signed."),
+    "verify": Entry("supervisor.cli.checklist", "Check a signed checklist: intact or not, who "
+                    "signed, trusted or not, what it says."),
+    "tables": Entry("supervisor.cli.tables", "Reference tables: list, show, validate, verify, "
+                    "import, build and screen."),
+    "plan": Entry("supervisor.cli.plan",
+                  "Plan files: validate a plan, print the plan file's JSON Schema."),
+    "keys": Entry("supervisor.cli.checklist", "Signing keys for supervisors, and keyrings of the "
+                  "certificates trusted to sign."),
+    "records": Entry("supervisor.cli.records", "The dive records: add, list, show, verify the "
+                     "hash chain, export, retention."),
+    "log": Entry("supervisor.cli.log", "Depth logs: read a recorder CSV or a timed log (TOML); "
+                 "the timed log's JSON Schema."),
+    "treatment": Entry("supervisor.cli.treatment", "Recompression treatments: plan one from a "
+                       "treatment table, log it as run."),    "audit": Entry("supervisor.cli.audit", "Audit an executed dive (its log) against the "
+                   "approved plan; print the verdict."),
+}
+
+
+def _new_app(**settings: object) -> typer.Typer:
+    """An application with the root's settings (the root passes ``cls`` and ``help``)."""
+    return typer.Typer(
+        add_completion=False,
+        pretty_exceptions_show_locals=False,
+        # help texts carry units in brackets ([min], [m]); they are text, not markup
+        rich_markup_mode=None,
+        **settings,  # type: ignore[arg-type]
+    )
+
+
+class _Root(LazyGroup):
+    table = COMMANDS
+    make_app = staticmethod(_new_app)
+
+
+app = _new_app(
+    cls=_Root,
     name="supervisor",
     help="Check proposed dive and chamber schedules before anyone gets wet.",
     no_args_is_help=True,
-    add_completion=False,
-    pretty_exceptions_show_locals=False,
-    # help texts carry units in brackets ([min], [m]); they are text, not markup
-    rich_markup_mode=None,
 )
 
 
@@ -44,11 +80,6 @@ def _root(
     ),
 ) -> None:
     """Check proposed dive and chamber schedules before anyone gets wet."""
-
-
-for _mod in (_schedule, _tables, _plan, _check, _checklist, _records, _log, _treatment,
-             _audit):
-    _mod.register(app)
 
 
 def main(argv: list[str] | None = None) -> None:

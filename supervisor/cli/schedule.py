@@ -11,7 +11,7 @@ from supervisor.cli._common import fail_input, guarded, json_text, say
 from supervisor.engine.schedule import ScheduleRequest, SurfaceDecompression, plan_schedule
 from supervisor.gas import parse_gas
 from supervisor.periods import periods_text
-from supervisor.plan_fields import rate_range
+from supervisor.plan_ranges import rate_range
 from supervisor.quantities import gf_percent_text
 from supervisor.text import excerpt
 from supervisor.units import altitude_pressure

@@ -2,7 +2,7 @@
 
 Row hash
     sha256 (hex) of the row's canonical form: the row's data columns (every key
-    but :data:`~supervisor.references.schema.VERIFICATION_COLUMNS`) as JSON with
+    but :data:`VERIFICATION_COLUMNS`) as JSON with
     keys sorted at every level, no whitespace, UTF-8, strings in Unicode NFC,
     floats with an integral value written as integers (``20.0`` hashes as
     ``20``) and TOML dates as ``YYYY-MM-DD`` strings.  Anyone can recompute it
@@ -32,7 +32,15 @@ from pathlib import Path
 from typing import Any
 
 from supervisor.errors import TableError
-from supervisor.references.schema import VERIFICATION_COLUMNS
+
+#: Row columns that record the two-person check; they are not hashed.
+VERIFICATION_COLUMNS: tuple[str, ...] = (
+    "verification",
+    "verified_by",
+    "verified_on",
+    "verification_method",
+    "row_hash",
+)
 
 CONTEXT_PROVENANCE_KEYS: tuple[str, ...] = (
     "source_document",

@@ -35,6 +35,7 @@ from pydantic import (
 
 from supervisor.errors import InputError
 from supervisor.gas import parse_gas
+from supervisor.references.canonical import VERIFICATION_COLUMNS  # noqa: F401 (re-exported)
 from supervisor.text import excerpt
 
 SCHEMA_ID = "supervisor-table/1"
@@ -50,15 +51,6 @@ SOURCE_STATUSES: tuple[str, ...] = (
 )
 
 Verification = Literal["verified", "unverified"]
-
-#: Row columns that record the two-person check; they are not hashed.
-VERIFICATION_COLUMNS: tuple[str, ...] = (
-    "verification",
-    "verified_by",
-    "verified_on",
-    "verification_method",
-    "row_hash",
-)
 
 #: Decompression modes a decompression row may carry, as TOML keys of the row.
 MODES: tuple[str, ...] = ("air", "air_o2", "surd_o2")

@@ -33,7 +33,7 @@ from supervisor.report.styles import (
     para,
     rich,
 )
-from supervisor.report.summary import findings_of
+from supervisor.report.summary import dive_findings, findings_of
 from supervisor.report.units import UnitSystem, unit_system
 
 
@@ -209,8 +209,7 @@ def information_lines(record: Mapping[str, Any], dive_id: object,
     figures are, in the dive's section.  Information that the section
     prints already (:data:`SHOWN_IN_DIVE_SECTION`) is named, not repeated.
     """
-    items = [f for f in findings_of(record) if f.get("severity") == "info"
-             and f.get("dive") == dive_id]
+    items = [f for f in dive_findings(record, dive_id) if f.get("severity") == "info"]
     if not items:
         return []
     elsewhere = sorted({w for f in items if dive_id is not None

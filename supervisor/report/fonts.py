@@ -76,6 +76,12 @@ def _primary_covers(char: str) -> bool:
     return _has_glyph(REGULAR, char)
 
 
+@functools.cache
+def _primary_covers_ascii() -> bool:
+    """Whether the primary face has a glyph for every printable ASCII character."""
+    return all(_primary_covers(chr(c)) for c in range(0x20, 0x7F))
+
+
 def clean(text: str) -> str:
     """Normalise user text for printing.
 
@@ -91,6 +97,15 @@ def clean(text: str) -> str:
         tabs into spaces, and other control characters into a visible
         ``[U+XXXX]`` code.
     """
+    if text.isascii():  # NFC leaves ASCII alone; only control characters need the loop
+        plain = text.replace("\r\n", "\n").replace("\r", "\n").replace("\t", " ")
+        if plain.replace("\n", "").isprintable():
+            return plain
+    return _clean_by_char(text)
+
+
+def _clean_by_char(text: str) -> str:
+    """:func:`clean`, one character at a time (any text)."""
     text = unicodedata.normalize("NFC", text).replace("\r\n", "\n").replace("\r", "\n")
     out = []
     for char in text:
@@ -122,8 +137,18 @@ def runs(text: str, *, bold: bool = False) -> list[Run]:
         in the primary face.  Spaces and line breaks stay in the current run.
     """
     primary = BOLD if bold else REGULAR
+    cleaned = clean(text)
+    if cleaned.isascii() and not cleaned.startswith("\n") and _primary_covers_ascii():
+        # cleaned ASCII is printable characters and line breaks: one run in the primary
+        # face (a leading line break has no run to join and prints as its code)
+        return [Run(primary, cleaned)] if cleaned else []
+    return _runs_by_char(cleaned, primary)
+
+
+def _runs_by_char(cleaned: str, primary: str) -> list[Run]:
+    """:func:`runs` of cleaned text, one character at a time (any text)."""
     result: list[Run] = []
-    for char in clean(text):
+    for char in cleaned:
         if char in " \n" and result:
             font, piece = result[-1].font, char
         elif _primary_covers(char):
@@ -160,9 +185,15 @@ def markup(text: object, *, bold: bool = False) -> str:
     """
     if text is None:
         return ""
+    return _markup(str(text), bold)
+
+
+@functools.lru_cache(maxsize=16384)
+def _markup(text: str, bold: bool) -> str:
+    """:func:`markup` of a string (labels and figures repeat on every dive: kept)."""
     register_fonts()
     parts = []
-    for run in runs(str(text), bold=bold):
+    for run in runs(text, bold=bold):
         body = escape(run.text).replace("\n", "<br/>")
         if run.font == REGULAR:
             parts.append(body)

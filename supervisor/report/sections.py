@@ -29,7 +29,6 @@ from supervisor.report.fonts import REGULAR
 from supervisor.report.formatting import (
     NOT_COMPUTED,
     VERDICT_LABEL,
-    count_findings,
     effective_verdict,
     flatten,
     fmt_number,
@@ -54,6 +53,7 @@ from supervisor.report.styles import (
     para,
     rich,
 )
+from supervisor.report.summary import dive_counts
 from supervisor.report.units import UnitSystem, unit_system
 
 __all__ = ["SignerNote", "dive_section", "has_surface_interval", "model_label"]
@@ -619,9 +619,7 @@ def contingency_section(dive: Mapping[str, Any], record: Mapping[str, Any],
 
 def dive_verdict(dive: Mapping[str, Any], record: Mapping[str, Any]) -> Flowable:
     """The dive's verdict and counts, over its own findings and the job-wide ones."""
-    findings = [f for f in record.get("findings") or [] if isinstance(f, Mapping)
-                and f.get("dive") in (dive.get("id"), None)]
-    counts = count_findings(findings)
+    counts = dive_counts(record, dive.get("id"))
     verdict, _ = effective_verdict(dive.get("verdict"), counts)
     return rich([("Dive verdict: ", False), (VERDICT_LABEL[verdict], True), (
         f" ({counts['fail']} fail, {counts['warn']} warn, {counts['info']} info, "

@@ -53,14 +53,41 @@ def _limited(text: object) -> object:
     return value if len(value) <= limit else value[:limit] + CUT_NOTE
 
 
+class _Paragraph(Paragraph):
+    """A paragraph that does not break its lines again for the width it was last wrapped to.
+
+    A table cell's paragraph is wrapped several times at the same width (to size
+    the row, to split it, to draw it); breaking the lines is most of the layout
+    time, and the result depends on the width alone (the text and style do not
+    change), so it is kept until the paragraph is wrapped at another width or split.
+    """
+
+    _wrapped_at: float | None = None
+
+    def wrap(self, availWidth: float, availHeight: float) -> tuple[float, float]:  # noqa: N803
+        """Lay the lines out for ``availWidth`` [pt] (reused when it is unchanged)."""
+        if availWidth == self._wrapped_at:
+            return self.width, self.height
+        self._wrapped_at = None
+        size = super().wrap(availWidth, availHeight)
+        if getattr(self, "width", None) == availWidth:
+            self._wrapped_at = availWidth
+        return size
+
+    def split(self, availWidth: float, availHeight: float) -> list[Flowable]:  # noqa: N803
+        """Split as reportlab does; the pieces wrap afresh."""
+        self._wrapped_at = None
+        return super().split(availWidth, availHeight)
+
+
 def para(text: object, style: ParagraphStyle = BODY, *, bold: bool = False) -> Paragraph:
     """A paragraph that prints ``text`` literally (escaped, font fallback applied)."""
-    return Paragraph(markup("" if text is None else _limited(text), bold=bold), style)
+    return _Paragraph(markup("" if text is None else _limited(text), bold=bold), style)
 
 
 def rich(parts: Sequence[tuple[object, bool]], style: ParagraphStyle = BODY) -> Paragraph:
     """A paragraph of several literal pieces, each ``(text, bold)``."""
-    return Paragraph("".join(markup(_limited(t), bold=b) for t, b in parts), style)
+    return _Paragraph("".join(markup(_limited(t), bold=b) for t, b in parts), style)
 
 
 def grid(

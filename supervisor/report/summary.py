@@ -70,6 +70,47 @@ def findings_of(record: Mapping[str, Any]) -> list[Mapping[str, Any]]:
     return [f for f in raw if isinstance(f, Mapping)] if isinstance(raw, list) else []
 
 
+#: The last record's findings by dive: ``[findings list, {dive: findings}, unindexed]``.
+_BY_DIVE: list[Any] = [None, {}, []]
+
+
+def dive_findings(record: Mapping[str, Any], dive_id: object) -> list[Mapping[str, Any]]:
+    """The findings of one dive (``None``: the job-wide ones), in the record's order.
+
+    Parameters
+    ----------
+    record : mapping
+        The checklist record.
+    dive_id : object
+        A dive's id, or ``None`` for the findings of no dive.
+
+    Returns
+    -------
+    list of mapping
+        The findings whose ``dive`` equals ``dive_id``.  The record's findings are
+        indexed by dive once (the last record's index is kept), so asking for every
+        dive of a job costs time linear in its findings, not dives times findings.
+    """
+    raw = record.get("findings")
+    if _BY_DIVE[0] is not raw:
+        index: dict[object, list[Mapping[str, Any]]] = {}
+        odd: list[Mapping[str, Any]] = []
+        for f in findings_of(record):
+            try:
+                index.setdefault(f.get("dive"), []).append(f)
+            except TypeError:  # a dive that is no hashable value: looked up one by one
+                odd.append(f)
+        _BY_DIVE[:] = [raw, index, odd]
+    index, odd = _BY_DIVE[1], _BY_DIVE[2]
+    try:
+        hash(dive_id)
+    except TypeError:
+        odd = [None]
+    if odd:  # keep the record's order exactly when some keys could not be indexed
+        return [f for f in findings_of(record) if f.get("dive") == dive_id]
+    return list(index.get(dive_id, ()))
+
+
 def title_block(record: Mapping[str, Any]) -> list[Flowable]:
     """Title and job line."""
     job = m(record.get("job"))
@@ -147,7 +188,8 @@ def verdict_panel(record: Mapping[str, Any], width: float) -> list[Flowable]:
 
 def dive_counts(record: Mapping[str, Any], dive_id: object) -> dict[str, int]:
     """Counts of one dive's own findings and the job-wide ones."""
-    return count_findings([f for f in findings_of(record) if f.get("dive") in (dive_id, None)])
+    own = dive_findings(record, dive_id) if dive_id is not None else []
+    return count_findings(own + dive_findings(record, None))
 
 
 def dives_table(record: Mapping[str, Any], width: float) -> list[Flowable]:

@@ -52,3 +52,24 @@ def test_line_breaks_become_br() -> None:
 
 def test_plain_width_grows_with_text() -> None:
     assert fonts.plain_width("WWW", 10) > fonts.plain_width("W", 10) > 0
+
+
+ASCII_TEXTS = ["", " ", "\n", "\nleading break", " \n", "plain text", " leading and trailing ",
+               "a\nb\n\nc", "tab\there",
+               "cr\r\nlf\rcr", "bell\x07and\x1b[31m", "del\x7f", "".join(map(chr, range(128))),
+               "<b>&amp;</b>", "30/85 GF, 100 fsw @ 30 min"]
+
+
+@pytest.mark.parametrize("text", ASCII_TEXTS)
+@pytest.mark.parametrize("bold", [False, True])
+def test_ascii_fast_path_matches_the_character_loop(text: str, bold: bool) -> None:
+    """The quick answers for ASCII text equal the general per-character code."""
+    assert fonts.clean(text) == fonts._clean_by_char(text)
+    primary = fonts.BOLD if bold else fonts.REGULAR
+    assert fonts.runs(text, bold=bold) == fonts._runs_by_char(fonts._clean_by_char(text), primary)
+
+
+def test_markup_of_a_repeated_text_is_the_same() -> None:
+    first = fonts.markup("Dive D1 — 中文 <x>", bold=True)
+    assert fonts.markup("Dive D1 — 中文 <x>", bold=True) == first
+    assert fonts.markup("Dive D1 — 中文 <x>", bold=False) != first

@@ -11,7 +11,7 @@ from typing import Any
 import pytest
 
 from supervisor.report import summary
-from supervisor.report.formatting import NOT_COMPUTED
+from supervisor.report.formatting import NOT_COMPUTED, count_findings
 from tests.report.test_sections import _texts
 
 
@@ -98,3 +98,21 @@ def test_altitude_without_the_check_key_is_not_computed(check_result: dict[str, 
                           ("tomorrow", "tomorrow"), (None, "not computed")])
 def test_fmt_time(given: object, shown: str) -> None:
     assert summary.fmt_time(given) == shown
+
+
+def test_dive_findings_equal_a_scan_of_the_findings() -> None:
+    """The by-dive index answers as filtering every finding (order kept)."""
+    from supervisor.report.summary import dive_counts, dive_findings
+
+    findings = [{"rule": f"r{i}", "severity": ("fail", "warn", "info", "pass")[i % 4],
+                 "dive": (None, "D1", "D2", "D3")[i % 4 if i % 7 else 1]} for i in range(60)]
+    record = {"findings": findings}
+    for dive in (None, "D1", "D2", "D3", "D9"):
+        assert dive_findings(record, dive) == [f for f in findings if f.get("dive") == dive]
+        assert dive_counts(record, dive) == count_findings(
+            [f for f in findings if f.get("dive") in (dive, None)])
+    odd = {"findings": [*findings, {"rule": "x", "severity": "warn", "dive": ["D1"]}]}
+    assert dive_findings(odd, ["D1"]) == [odd["findings"][-1]]
+    assert dive_findings(odd, "D2") == [f for f in findings if f.get("dive") == "D2"]
+    assert dive_findings({"findings": findings[:10]}, "D1") == [
+        f for f in findings[:10] if f.get("dive") == "D1"]
