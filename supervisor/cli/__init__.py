@@ -27,6 +27,8 @@ COMMANDS: dict[str, Entry] = {
                        "checklist (PDF and JSON record), optionally signed."),
     "verify": Entry("supervisor.cli.checklist", "Check a signed checklist: intact or not, who "
                     "signed, trusted or not, what it says."),
+    "audit": Entry("supervisor.cli.audit", "Audit an executed dive (its log) against the "
+                   "approved plan; print the verdict."),
     "tables": Entry("supervisor.cli.tables", "Reference tables: list, show, validate, verify, "
                     "import, build and screen."),
     "plan": Entry("supervisor.cli.plan",
@@ -38,8 +40,7 @@ COMMANDS: dict[str, Entry] = {
     "log": Entry("supervisor.cli.log", "Depth logs: read a recorder CSV or a timed log (TOML); "
                  "the timed log's JSON Schema."),
     "treatment": Entry("supervisor.cli.treatment", "Recompression treatments: plan one from a "
-                       "treatment table, log it as run."),    "audit": Entry("supervisor.cli.audit", "Audit an executed dive (its log) against the "
-                   "approved plan; print the verdict."),
+                       "treatment table, log it as run."),
 }
 
 

@@ -21,7 +21,8 @@ from supervisor.cli import COMMANDS, _new_app, app
 from supervisor.cli.lazy import family_commands
 
 # the order in which the families registered themselves before the registration was lazy
-FAMILIES = ("schedule", "tables", "plan", "check", "checklist", "records", "log", "treatment")
+FAMILIES = ("schedule", "tables", "plan", "check", "checklist", "records", "log", "treatment",
+            "audit")
 
 # nothing behind a command is imported to list the commands
 HEAVY = ("supervisor.check", "supervisor.plan", "supervisor.analysis", "supervisor.rules",
