@@ -44,8 +44,9 @@ def tables_dir() -> Path:
         if not path.is_dir():
             from supervisor.errors import InputError
 
-            raise InputError(TABLES_ENV, f"{own!r} is not a folder; expected a folder laid "
-                             "out like the bundled tables/ (limits/, models/, no-stop/ ...)")
+            raise InputError(TABLES_ENV, f"the environment variable {TABLES_ENV} names {own!r}, "
+                             "which is not a folder; expected a folder laid out like the "
+                             "bundled tables/ (limits/, models/, no-stop/ ...)")
         return path.resolve()
     return _bundled("tables")
 

@@ -92,3 +92,11 @@ def test_same_dive_needs_review_with_bundled_references(verified: tuple[Path, Pa
     names = {r["name"] for r in refs[0]["references_to_confirm"]}
     assert {"zhl16c-gf30-85-air-msw", "noaa-cns-limits"} <= names
     assert all("tables verify" in r["how_to_confirm"] for r in refs[0]["references_to_confirm"])
+
+
+def test_a_tables_folder_that_is_not_one_is_bad_input(tmp_path: Path) -> None:
+    env = {**os.environ, TABLES_ENV: str(tmp_path / "missing")}
+    res = subprocess.run([sys.executable, "-m", "supervisor", "check", str(HARBOUR)],
+                         capture_output=True, text=True, env=env, check=False)
+    assert res.returncode == 2 and "Traceback" not in res.stderr
+    assert len(res.stderr.strip().splitlines()) == 1 and TABLES_ENV in res.stderr
